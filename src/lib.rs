@@ -1,0 +1,15 @@
+//! bowgrip: sizing of bowed-strip expanding segments (a ring of spring strips between two
+//! end plates that bow out and grip a bore when the plates are drawn together).
+//!
+//! The mechanics (`elliptic`, `elastica`, `segment`, `checks`, and the data tables
+//! `material`, `pipe`, `friction`) import nothing from the GUI, file dialogs or the PDF
+//! writer. `design` is the RON design file; `cli`, `app` and `sheet` are the front ends.
+
+pub mod elliptic;
+pub mod elastica;
+pub mod material;
+pub mod pipe;
+pub mod friction;
+pub mod design;
+pub mod segment;
+pub mod checks;
