@@ -1,1 +1,1086 @@
-//! placeholder
+//! One strip as an inextensible Euler elastica between two end plates, with a straight bore
+//! wall at gap `g` in its meridional plane: free bulge, point contact at the crest, line
+//! contact (a flat run on the wall), and the limit where the model stops.
+//!
+//! Everything here is nondimensional: lengths are divided by the free length `L`, forces
+//! by `B / L^2`, energy by `B / L`, curvature multiplied by `L`. The equations are those of
+//! the project's mechanics note (inclined-resultant elastica in Legendre form). Clamped and
+//! hinged strips share one geometry: a clamped half strip is two hinged half strips of half
+//! the length, point-mirrored about the inflection, so at the same `g / L` and `delta / L`
+//! the hinged strip has the same shape parameters with `lambda` halved (forces and energy
+//! divided by four, curvature by two). The tests hold both to their own small-gap laws.
+//!
+//! The path for one gap (`Path::new`) is followed from rest with a parameter that is
+//! monotonic along it: the modulus `k` in the free phase and in line contact, the stroke
+//! itself (two-equation Newton in `k` and the plate phase `phi0`) in point contact.
+
+use std::f64::consts::{FRAC_PI_2, PI};
+
+use serde::{Deserialize, Serialize};
+
+use crate::design::Ends;
+use crate::elliptic;
+
+/// Phase of the strip at a stroke.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Phase {
+    /// No contact: the strip bows freely.
+    Free,
+    /// The crest touches the wall at one point.
+    PointContact,
+    /// A flat run of the strip lies on the wall.
+    LineContact,
+    /// Past the limit of the model: no state is reported.
+    BeyondLimit,
+}
+
+impl Phase {
+    /// The name used in files, tables and JSON (`free`, `point-contact`, ...).
+    pub fn name(self) -> &'static str {
+        match self {
+            Phase::Free => "free",
+            Phase::PointContact => "point-contact",
+            Phase::LineContact => "line-contact",
+            Phase::BeyondLimit => "beyond-limit",
+        }
+    }
+}
+
+/// Why the model stops along a path.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum LimitReason {
+    /// The flat run, a column under the axial force, reaches its buckling load and can lift
+    /// off the wall (the strip may snap to a two-lobe shape).
+    FlatRunBuckling,
+    /// Past the fold of line contact the flat run shrinks back to zero length.
+    FlatRunCloses,
+    /// The end plates would meet or cross (chord `L - stroke <= 0`).
+    ChordClosed,
+    /// The axial force falls to zero: the plates no longer need pulling.
+    AxialForceVanishes,
+    /// The contact force peaks on a point-contact branch that never reaches line contact;
+    /// further stroke would loosen the grip.
+    ContactForcePeaks,
+    /// The solver could not follow the branch further (no continuous solution found).
+    BranchLost,
+}
+
+impl LimitReason {
+    /// One-line explanation for tables, the app and the sheet.
+    pub fn describe(self) -> &'static str {
+        match self {
+            LimitReason::FlatRunBuckling => {
+                "flat run on the wall reaches its column buckling load and can snap off the wall"
+            }
+            LimitReason::FlatRunCloses => "flat run shrinks back to zero past the fold of line contact",
+            LimitReason::ChordClosed => "end plates would meet (strip chord reaches zero)",
+            LimitReason::AxialForceVanishes => "axial force per strip falls to zero",
+            LimitReason::ContactForcePeaks => {
+                "contact force peaks before line contact; more stroke would loosen the grip"
+            }
+            LimitReason::BranchLost => "solver lost the continuous solution branch",
+        }
+    }
+
+    /// Short machine name for CSV and JSON.
+    pub fn name(self) -> &'static str {
+        match self {
+            LimitReason::FlatRunBuckling => "flat-run-buckling",
+            LimitReason::FlatRunCloses => "flat-run-closes",
+            LimitReason::ChordClosed => "chord-closed",
+            LimitReason::AxialForceVanishes => "axial-force-vanishes",
+            LimitReason::ContactForcePeaks => "contact-force-peaks",
+            LimitReason::BranchLost => "branch-lost",
+        }
+    }
+}
+
+/// Why a path could not be set up at all.
+#[derive(Clone, Copy, Debug, PartialEq, thiserror::Error)]
+pub enum PathError {
+    /// The gap to the wall is zero or negative: the relaxed strip already touches or cuts
+    /// the bore, so the model has no state.
+    #[error("the relaxed strip does not clear the bore (gap {gap:.6} L <= 0)")]
+    NoClearance {
+        /// Nondimensional gap.
+        gap: f64,
+    },
+    /// The gap is not a finite number.
+    #[error("the gap to the wall is not a finite number")]
+    NotFinite,
+}
+
+/// State of one strip (nondimensional).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct StripState {
+    /// Phase at this stroke.
+    pub phase: Phase,
+    /// Stroke `delta / L`.
+    pub stroke: f64,
+    /// Elliptic modulus `k = sin(alpha / 2)` of the solution.
+    pub k: f64,
+    /// Phase `phi0` at the plate (point contact) or 0.
+    pub phi0: f64,
+    /// Length of each free arc `l / L` (line contact) or 0.5.
+    pub arc: f64,
+    /// Axial compression per strip, `P L^2 / B`.
+    pub axial: f64,
+    /// Wall contact force per strip, `F L^2 / B`.
+    pub contact: f64,
+    /// Crest height above the strip's rest line, `h / L`.
+    pub crest_height: f64,
+    /// Length of the flat run on the wall, `(L - 2 l) / L`.
+    pub flat_length: f64,
+    /// Peak magnitude of curvature, `kappa_max L`.
+    pub kappa_max: f64,
+    /// Strain energy of the strip, `U L / B`.
+    pub energy: f64,
+}
+
+// ---------------------------------------------------------------------------------------
+// Forward-mode dual numbers with two partials, so Newton steps have exact Jacobians.
+
+#[derive(Clone, Copy, Debug)]
+struct D {
+    v: f64,
+    d: [f64; 2],
+}
+
+impl D {
+    fn c(v: f64) -> D {
+        D { v, d: [0.0, 0.0] }
+    }
+    fn var(v: f64, i: usize) -> D {
+        let mut d = [0.0, 0.0];
+        d[i] = 1.0;
+        D { v, d }
+    }
+    fn chain(self, v: f64, dv: f64) -> D {
+        D { v, d: [self.d[0] * dv, self.d[1] * dv] }
+    }
+    fn sin(self) -> D {
+        let (s, c) = self.v.sin_cos();
+        self.chain(s, c)
+    }
+    fn cos(self) -> D {
+        let (s, c) = self.v.sin_cos();
+        self.chain(c, -s)
+    }
+    fn sqrt(self) -> D {
+        let r = self.v.sqrt();
+        self.chain(r, 0.5 / r)
+    }
+    fn sq(self) -> D {
+        self * self
+    }
+}
+
+impl std::ops::Add for D {
+    type Output = D;
+    fn add(self, o: D) -> D {
+        D { v: self.v + o.v, d: [self.d[0] + o.d[0], self.d[1] + o.d[1]] }
+    }
+}
+impl std::ops::Sub for D {
+    type Output = D;
+    fn sub(self, o: D) -> D {
+        D { v: self.v - o.v, d: [self.d[0] - o.d[0], self.d[1] - o.d[1]] }
+    }
+}
+impl std::ops::Mul for D {
+    type Output = D;
+    fn mul(self, o: D) -> D {
+        D {
+            v: self.v * o.v,
+            d: [self.d[0] * o.v + self.v * o.d[0], self.d[1] * o.v + self.v * o.d[1]],
+        }
+    }
+}
+impl std::ops::Div for D {
+    type Output = D;
+    fn div(self, o: D) -> D {
+        let q = self.v / o.v;
+        D { v: q, d: [(self.d[0] - q * o.d[0]) / o.v, (self.d[1] - q * o.d[1]) / o.v] }
+    }
+}
+impl std::ops::Mul<D> for f64 {
+    type Output = D;
+    fn mul(self, o: D) -> D {
+        D { v: self * o.v, d: [self * o.d[0], self * o.d[1]] }
+    }
+}
+impl std::ops::Sub<D> for f64 {
+    type Output = D;
+    fn sub(self, o: D) -> D {
+        D { v: self - o.v, d: [-o.d[0], -o.d[1]] }
+    }
+}
+
+/// Complete integrals `(K, E)` of a dual modulus.
+fn complete_d(k: D) -> (D, D) {
+    let ke = elliptic::complete(k.v);
+    let (dk, de) = elliptic::complete_dk(k.v, ke);
+    (k.chain(ke.0, dk), k.chain(ke.1, de))
+}
+
+/// Incomplete integrals `(F, E)` at `|phi| <= pi/2` of a dual phase and modulus.
+fn incomplete_d(phi: D, k: D) -> (D, D) {
+    let fe = elliptic::incomplete(phi.v, k.v);
+    let (fk, ek) = elliptic::incomplete_dk(phi.v, k.v, fe);
+    let s = phi.v.sin();
+    let delta = (1.0 - k.v * k.v * s * s).sqrt();
+    let f = D {
+        v: fe.0,
+        d: [phi.d[0] / delta + k.d[0] * fk, phi.d[1] / delta + k.d[1] * fk],
+    };
+    let e = D {
+        v: fe.1,
+        d: [phi.d[0] * delta + k.d[0] * ek, phi.d[1] * delta + k.d[1] * ek],
+    };
+    (f, e)
+}
+
+// ---------------------------------------------------------------------------------------
+// The three phases of a clamped strip as functions of their parameters. `scale` converts
+// to the end condition: forces and energy times `scale^2`... see `EndScale`.
+
+/// Force, energy and curvature factors of an end condition relative to clamped.
+#[derive(Clone, Copy, Debug)]
+struct EndScale {
+    force: f64,
+    curvature: f64,
+}
+
+impl EndScale {
+    fn of(ends: Ends) -> EndScale {
+        match ends {
+            Ends::Clamped => EndScale { force: 1.0, curvature: 1.0 },
+            Ends::Hinged => EndScale { force: 0.25, curvature: 0.5 },
+        }
+    }
+}
+
+/// Free phase at modulus `k` (clamped form): `(stroke, axial, crest, kappa_max, energy)`.
+fn free_d(k: D) -> [D; 5] {
+    let (kk, ee) = complete_d(k);
+    let stroke = 2.0 * (1.0 - ee / kk);
+    let lam = 4.0 * kk;
+    let axial = lam.sq();
+    let crest = k / kk;
+    let kappa = 2.0 * (k * lam);
+    let kp2 = 1.0 - k.sq();
+    let energy = 8.0 * (lam * (ee - kp2 * kk));
+    [stroke, axial, crest, kappa, energy]
+}
+
+/// Point-contact quantities at `(k, phi0)` (clamped form).
+#[derive(Clone, Copy, Debug)]
+struct PointQ {
+    crest: D,
+    stroke: D,
+    axial: D,
+    contact: D,
+    kappa: D,
+    energy: D,
+}
+
+fn point_d(k: D, phi0: D) -> PointQ {
+    let (kk, ee) = complete_d(k);
+    let (f0, e0) = incomplete_d(phi0, k);
+    let span = kk - f0;
+    let lam = 4.0 * span;
+    let xi = (4.0 * (ee - e0) - 2.0 * span) / lam;
+    let eta = 4.0 * (k * phi0.cos()) / lam;
+    let s = D::c(0.0) - k * phi0.sin(); // sin(psi / 2)
+    let c = (1.0 - s.sq()).sqrt();
+    let sin_psi = 2.0 * (s * c);
+    let cos_psi = 1.0 - 2.0 * s.sq();
+    let crest = xi * sin_psi + eta * cos_psi;
+    let x_half = xi * cos_psi - eta * sin_psi;
+    let q = lam.sq();
+    let kp2 = 1.0 - k.sq();
+    PointQ {
+        crest,
+        stroke: 1.0 - 2.0 * x_half,
+        axial: q * cos_psi,
+        contact: 2.0 * (q * sin_psi),
+        kappa: 2.0 * (k * lam),
+        energy: 8.0 * (lam * ((ee - e0) - kp2 * span)),
+    }
+}
+
+/// Line-contact quantities at modulus `k` and gap `g` (clamped form).
+#[derive(Clone, Copy, Debug)]
+struct LineQ {
+    arc: D,
+    stroke: D,
+    axial: D,
+    contact: D,
+    kappa: D,
+    energy: D,
+}
+
+/// `c sin(alpha) / l` of a free arc in line contact: its peak 0.64214 at k = 0.4897 bounds
+/// the gaps that line contact can start at.
+fn line_reach_d(k: D) -> (D, D, D, D) {
+    let (kk, ee) = complete_d(k);
+    let kp = (1.0 - k.sq()).sqrt();
+    let sin_a = 2.0 * (k * kp);
+    let chord_ratio = 2.0 * (ee / kk) - D::c(1.0);
+    (chord_ratio * sin_a, chord_ratio, kk, ee)
+}
+
+fn line_d(k: D, gap: f64) -> LineQ {
+    let (reach, chord_ratio, kk, ee) = line_reach_d(k);
+    let kp = (1.0 - k.sq()).sqrt();
+    let sin_a = 2.0 * (k * kp);
+    let cos_a = 1.0 - 2.0 * k.sq();
+    let arc = D::c(gap) / reach;
+    let chord = chord_ratio * arc;
+    let lam = 4.0 * kk / arc;
+    let q = lam.sq();
+    let kp2 = 1.0 - k.sq();
+    LineQ {
+        arc,
+        stroke: 2.0 * arc - 2.0 * (chord * cos_a),
+        axial: q * cos_a,
+        contact: 2.0 * (q * sin_a),
+        kappa: 2.0 * (k * lam),
+        energy: 16.0 * (lam * (ee - kp2 * kk)),
+    }
+}
+
+// ---------------------------------------------------------------------------------------
+// Scalar root finding with iteration bounds.
+
+/// Iteration bound of every Newton solve here.
+const MAX_NEWTON: usize = 60;
+
+/// Safeguarded Newton on `[lo, hi]` for `f(x) = 0` with `f` increasing or decreasing and a
+/// sign change across the bracket. `f` returns value and derivative.
+fn newton_bracketed(
+    mut lo: f64,
+    mut hi: f64,
+    x0: f64,
+    tol: f64,
+    mut f: impl FnMut(f64) -> (f64, f64),
+) -> Option<f64> {
+    let (flo, _) = f(lo);
+    let (fhi, _) = f(hi);
+    if !(flo.is_finite() && fhi.is_finite()) || flo * fhi > 0.0 {
+        return None;
+    }
+    if flo == 0.0 {
+        return Some(lo);
+    }
+    if fhi == 0.0 {
+        return Some(hi);
+    }
+    let rising = fhi > flo;
+    let mut x = x0.clamp(lo, hi);
+    for _ in 0..MAX_NEWTON {
+        let (fx, dfx) = f(x);
+        if fx == 0.0 {
+            return Some(x);
+        }
+        if (fx > 0.0) == rising {
+            hi = x;
+        } else {
+            lo = x;
+        }
+        let mut next = x - fx / dfx;
+        if !(next > lo && next < hi) || !next.is_finite() {
+            next = 0.5 * (lo + hi);
+        }
+        if (next - x).abs() <= tol * (1.0 + x.abs()) || hi - lo <= tol * (1.0 + x.abs()) {
+            return Some(next);
+        }
+        x = next;
+    }
+    Some(x)
+}
+
+/// Modulus at which `E/K = 1/2`: the free strip's chord closes (`X = 0`).
+fn k_chord_closed() -> f64 {
+    use std::sync::OnceLock;
+    static K: OnceLock<f64> = OnceLock::new();
+    *K.get_or_init(|| {
+        newton_bracketed(0.5, 0.999_999, 0.9, 1e-15, |k| {
+            let [stroke, ..] = free_d(D::var(k, 0));
+            (stroke.v - 1.0, stroke.d[0])
+        })
+        .unwrap_or(0.908_908_728_5)
+    })
+}
+
+/// Modulus of the free strip's highest crest, where `d(k/K)/dk = 0` (`E = 2 k'^2 K`).
+fn k_highest_crest() -> f64 {
+    use std::sync::OnceLock;
+    static K: OnceLock<f64> = OnceLock::new();
+    *K.get_or_init(|| {
+        newton_bracketed(0.3, 0.99, 0.8, 1e-15, |k| {
+            let h = 1e-6;
+            let d1 = |k: f64| free_d(D::var(k, 0))[2].d[0];
+            (d1(k), (d1(k + h) - d1(k - h)) / (2.0 * h))
+        })
+        .unwrap_or(0.826)
+    })
+}
+
+/// Modulus of the fold of line contact, where `c sin(alpha) / l` peaks (0.4897).
+pub fn k_line_fold() -> f64 {
+    use std::sync::OnceLock;
+    static K: OnceLock<f64> = OnceLock::new();
+    *K.get_or_init(|| {
+        newton_bracketed(0.3, 0.65, 0.49, 1e-15, |k| {
+            let h = 1e-6;
+            let d1 = |k: f64| line_reach_d(D::var(k, 0)).0.d[0];
+            (d1(k), (d1(k + h) - d1(k - h)) / (2.0 * h))
+        })
+        .unwrap_or(0.4897)
+    })
+}
+
+/// Largest gap a free strip can reach: `max over k of k / K(k)` (about 0.4 L).
+pub fn max_reachable_gap() -> f64 {
+    let k = k_highest_crest();
+    k / elliptic::ellip_k(k)
+}
+
+/// Largest gap at which line contact can begin: `max c sin(alpha) / (2 l)` at `l = L/2`.
+pub fn max_line_contact_gap() -> f64 {
+    0.5 * line_reach_d(D::c(k_line_fold())).0.v
+}
+
+// ---------------------------------------------------------------------------------------
+// The path for one gap.
+
+/// A solved point on the point-contact branch.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct PointNode {
+    k: f64,
+    phi0: f64,
+    stroke: f64,
+}
+
+/// The whole path of one strip at one gap: phase boundaries and the limit. Cheap to build;
+/// states and inverse queries solve from it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Path {
+    ends: Ends,
+    scale_force: f64,
+    scale_curvature: f64,
+    gap: f64,
+    /// Free-phase modulus and stroke at first contact (`None`: the gap is unreachable).
+    first_contact: Option<(f64, f64)>,
+    /// Line-contact onset modulus and stroke (`None`: line contact never begins).
+    line_onset: Option<(f64, f64)>,
+    /// Where the model stops.
+    limit: Limit,
+    /// Line-contact modulus at the limit, when the limit lies in line contact.
+    limit_k: Option<f64>,
+}
+
+/// The end of the model along a path.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Limit {
+    /// Stroke `delta / L` where the model stops.
+    pub stroke: f64,
+    /// Why it stops.
+    pub reason: LimitReason,
+    /// Phase just before the limit.
+    pub phase: Phase,
+}
+
+/// What a point-contact Newton solve pins besides the gap.
+#[derive(Clone, Copy, Debug)]
+enum PointGoal {
+    Stroke(f64),
+    /// `wk * kappa + wp * axial + wf * contact = value` (clamped-form quantities).
+    Linear { wk: f64, wp: f64, wf: f64, value: f64 },
+}
+
+impl Path {
+    /// Sets up the path at nondimensional gap `gap = g / L` for the end condition `ends`.
+    pub fn new(ends: Ends, gap: f64) -> Result<Path, PathError> {
+        if !gap.is_finite() {
+            return Err(PathError::NotFinite);
+        }
+        if gap <= 0.0 {
+            return Err(PathError::NoClearance { gap });
+        }
+        let scale = EndScale::of(ends);
+        let mut path = Path {
+            ends,
+            scale_force: scale.force,
+            scale_curvature: scale.curvature,
+            gap,
+            first_contact: None,
+            line_onset: None,
+            limit: Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::Free },
+            limit_k: None,
+        };
+        let k_top = k_highest_crest();
+        if gap >= max_reachable_gap() {
+            return Ok(path);
+        }
+        // First contact: crest height k/K rises with k up to k_top.
+        let k1 = newton_bracketed(0.0, k_top, gap * FRAC_PI_2, 1e-15, |k| {
+            let [_, _, crest, ..] = free_d(D::var(k, 0));
+            (crest.v - gap, crest.d[0])
+        });
+        let Some(k1) = k1 else {
+            path.limit.reason = LimitReason::BranchLost;
+            return Ok(path);
+        };
+        let d1 = free_d(D::c(k1))[0].v;
+        path.first_contact = Some((k1, d1));
+        // Line-contact onset: c sin(alpha)/l = 2 g on the rising side of the fold.
+        let k_fold = k_line_fold();
+        if 2.0 * gap < line_reach_d(D::c(k_fold)).0.v {
+            let ks = newton_bracketed(0.0, k_fold, gap, 1e-15, |k| {
+                let r = line_reach_d(D::var(k, 0)).0;
+                (r.v - 2.0 * gap, r.d[0])
+            });
+            if let Some(ks) = ks {
+                let ds = line_d(D::c(ks), gap).stroke.v;
+                path.line_onset = Some((ks, ds));
+                let (limit, k_limit) = path.line_limit(ks);
+                path.limit = limit;
+                path.limit_k = Some(k_limit);
+                return Ok(path);
+            }
+        }
+        path.limit = path.point_limit_without_line();
+        Ok(path)
+    }
+
+    /// Nondimensional gap `g / L`.
+    pub fn gap(&self) -> f64 {
+        self.gap
+    }
+
+    /// End condition.
+    pub fn ends(&self) -> Ends {
+        self.ends
+    }
+
+    /// Stroke at first contact, `None` when the gap is beyond the highest free crest.
+    pub fn first_contact_stroke(&self) -> Option<f64> {
+        self.first_contact.map(|(_, d)| d)
+    }
+
+    /// Stroke at which line contact begins, `None` when it never does.
+    pub fn line_contact_stroke(&self) -> Option<f64> {
+        self.line_onset.map(|(_, d)| d)
+    }
+
+    /// Where the model stops.
+    pub fn limit(&self) -> Limit {
+        self.limit
+    }
+
+    /// The limit in line contact, scanning `k` upward from the onset `ks`.
+    fn line_limit(&self, ks: f64) -> (Limit, f64) {
+        let gap = self.gap;
+        let k_fold = k_line_fold();
+        // The flat run closes again where the reach falls back to 2 g beyond the fold.
+        let k_close = newton_bracketed(k_fold, 0.999_999, 0.5 * (k_fold + 1.0), 1e-15, |k| {
+            let r = line_reach_d(D::var(k, 0)).0;
+            (r.v - 2.0 * gap, r.d[0])
+        })
+        .unwrap_or(0.999_999);
+        let k_axial = std::f64::consts::FRAC_1_SQRT_2; // cos(alpha) = 1 - 2k^2 = 0
+        let k_end = k_close.min(k_axial);
+        // Conditions, each negative before and crossing zero at its limit.
+        let buckling = |k: f64| {
+            let q = line_d(D::var(k, 0), gap);
+            let flat = 1.0 - 2.0 * q.arc;
+            // P (L - 2l)^2 - 4 pi^2, clamped form (the hinged forms differ by the same factor).
+            let v = q.axial * flat.sq() - D::c(4.0 * PI * PI);
+            (v.v, v.d[0])
+        };
+        let chord = |k: f64| {
+            let q = line_d(D::var(k, 0), gap);
+            (q.stroke.v - 1.0, q.stroke.d[0])
+        };
+        const SAMPLES: usize = 24;
+        let mut prev = ks;
+        for i in 1..=SAMPLES {
+            // Denser sampling near the onset, where the flat run grows fastest.
+            let t = i as f64 / SAMPLES as f64;
+            let k = ks + (k_end - ks) * t * t;
+            let hit_buckling = buckling(k).0 >= 0.0;
+            let hit_chord = chord(k).0 >= 0.0;
+            if hit_buckling || hit_chord {
+                let kb = if hit_buckling {
+                    newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, buckling)
+                } else {
+                    None
+                };
+                let kc = if hit_chord {
+                    newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, chord)
+                } else {
+                    None
+                };
+                let (kl, reason) = match (kb, kc) {
+                    (Some(a), Some(b)) if b < a => (b, LimitReason::ChordClosed),
+                    (Some(a), _) => (a, LimitReason::FlatRunBuckling),
+                    (None, Some(b)) => (b, LimitReason::ChordClosed),
+                    (None, None) => (k, LimitReason::BranchLost),
+                };
+                let stroke = line_d(D::c(kl), gap).stroke.v;
+                return (Limit { stroke, reason, phase: Phase::LineContact }, kl);
+            }
+            prev = k;
+        }
+        let reason = if k_close < k_axial {
+            LimitReason::FlatRunCloses
+        } else {
+            LimitReason::AxialForceVanishes
+        };
+        let stroke = line_d(D::c(k_end), gap).stroke.v;
+        (Limit { stroke, reason, phase: Phase::LineContact }, k_end)
+    }
+
+    /// The limit on a point-contact branch that never reaches line contact: march in
+    /// stroke until the contact force peaks, the axial force vanishes or the chord closes.
+    fn point_limit_without_line(&self) -> Limit {
+        let Some((k1, d1)) = self.first_contact else {
+            return self.limit;
+        };
+        let lost = |stroke| Limit { stroke, reason: LimitReason::BranchLost, phase: Phase::PointContact };
+        let mut node = PointNode { k: k1, phi0: 0.0, stroke: d1 };
+        let mut prev: Option<PointNode> = None;
+        let mut prev_contact = 0.0;
+        let mut step = 0.01 * (1.0 - d1).max(0.05);
+        for _ in 0..2_000 {
+            let target = node.stroke + step;
+            let guess = match prev {
+                Some(p) => {
+                    let r = step / (node.stroke - p.stroke);
+                    (node.k + r * (node.k - p.k), node.phi0 + r * (node.phi0 - p.phi0))
+                }
+                None => (node.k * 0.98, -0.2 * step.sqrt().min(0.3)),
+            };
+            let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(target), guess) else {
+                if step < 1e-9 {
+                    return lost(node.stroke);
+                }
+                step *= 0.5;
+                continue;
+            };
+            let q = point_d(D::c(k), D::c(phi0));
+            let next = PointNode { k, phi0, stroke: target };
+            if q.axial.v <= 0.0 || q.stroke.v >= 1.0 || q.contact.v < prev_contact {
+                // Refine the stop between node and next.
+                return self.refine_point_limit(node, next, prev_contact);
+            }
+            prev_contact = q.contact.v;
+            prev = Some(node);
+            node = next;
+            step = (step * 1.5).min(0.02);
+        }
+        lost(node.stroke)
+    }
+
+    /// Refines where a point branch stops, between two solved nodes.
+    fn refine_point_limit(&self, a: PointNode, b: PointNode, contact_a: f64) -> Limit {
+        let qb = point_d(D::c(b.k), D::c(b.phi0));
+        if qb.stroke.v >= 1.0 {
+            return Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::PointContact };
+        }
+        if qb.axial.v <= 0.0 {
+            // Bisect on the axial force along the stroke.
+            let (mut lo, mut hi) = (a, b);
+            for _ in 0..60 {
+                let mid = 0.5 * (lo.stroke + hi.stroke);
+                let guess = (0.5 * (lo.k + hi.k), 0.5 * (lo.phi0 + hi.phi0));
+                let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(mid), guess) else { break };
+                let node = PointNode { k, phi0, stroke: mid };
+                if point_d(D::c(k), D::c(phi0)).axial.v > 0.0 { lo = node } else { hi = node }
+                if hi.stroke - lo.stroke < 1e-13 {
+                    break;
+                }
+            }
+            return Limit { stroke: lo.stroke, reason: LimitReason::AxialForceVanishes, phase: Phase::PointContact };
+        }
+        // Contact force peak: golden-section search on F over [a - step, b].
+        let _ = contact_a;
+        let span = b.stroke - a.stroke;
+        let (mut lo, mut hi) = (a.stroke - span, b.stroke);
+        let contact_at = |s: f64| {
+            let t = (s - a.stroke) / span;
+            let guess = (a.k + t * (b.k - a.k), a.phi0 + t * (b.phi0 - a.phi0));
+            self.solve_point(PointGoal::Stroke(s), guess)
+                .map(|(k, p)| point_d(D::c(k), D::c(p)).contact.v)
+                .unwrap_or(f64::NEG_INFINITY)
+        };
+        let ratio = 0.5 * (5.0_f64.sqrt() - 1.0);
+        let mut x1 = hi - ratio * (hi - lo);
+        let mut x2 = lo + ratio * (hi - lo);
+        let (mut f1, mut f2) = (contact_at(x1), contact_at(x2));
+        for _ in 0..80 {
+            if hi - lo < 1e-10 {
+                break;
+            }
+            if f1 < f2 {
+                lo = x1;
+                x1 = x2;
+                f1 = f2;
+                x2 = lo + ratio * (hi - lo);
+                f2 = contact_at(x2);
+            } else {
+                hi = x2;
+                x2 = x1;
+                f2 = f1;
+                x1 = hi - ratio * (hi - lo);
+                f1 = contact_at(x1);
+            }
+        }
+        Limit { stroke: 0.5 * (lo + hi), reason: LimitReason::ContactForcePeaks, phase: Phase::PointContact }
+    }
+
+    /// Two-equation Newton on `(k, phi0)`: crest on the wall plus `goal`.
+    fn solve_point(&self, goal: PointGoal, guess: (f64, f64)) -> Option<(f64, f64)> {
+        let gap = self.gap;
+        let (mut k, mut phi0) = guess;
+        for _ in 0..MAX_NEWTON {
+            let q = point_d(D::var(k, 0), D::var(phi0, 1));
+            let r1 = q.crest - D::c(gap);
+            let r2 = match goal {
+                PointGoal::Stroke(s) => q.stroke - D::c(s),
+                PointGoal::Linear { wk, wp, wf, value } => {
+                    wk * q.kappa + wp * q.axial + wf * q.contact - D::c(value)
+                }
+            };
+            let det = r1.d[0] * r2.d[1] - r1.d[1] * r2.d[0];
+            if !det.is_finite() || det == 0.0 {
+                return None;
+            }
+            let mut dk = -(r1.v * r2.d[1] - r2.v * r1.d[1]) / det;
+            let mut dp = -(r2.v * r1.d[0] - r1.v * r2.d[0]) / det;
+            // Limit the step so Newton stays on this branch.
+            let shrink = (0.1 / dk.abs().max(1e-300)).min(0.25 / dp.abs().max(1e-300)).min(1.0);
+            dk *= shrink;
+            dp *= shrink;
+            k += dk;
+            phi0 += dp;
+            if !(k > 0.0 && k < 1.0) || !(-FRAC_PI_2 - 0.5..=0.5).contains(&phi0) {
+                return None;
+            }
+            if shrink == 1.0 && dk.abs() < 1e-14 && dp.abs() < 1e-13 {
+                return Some((k, phi0));
+            }
+        }
+        None
+    }
+
+    /// Guess for `(k, phi0)` at a point-contact stroke, from the branch ends.
+    fn point_guess(&self, stroke: f64) -> (f64, f64) {
+        let (k1, d1) = self.first_contact.unwrap_or((0.0, 0.0));
+        match self.line_onset {
+            Some((ks, ds)) => {
+                let t = ((stroke - d1) / (ds - d1)).clamp(0.0, 1.0);
+                let shape = 1.0 - (1.0 - t).powf(1.7);
+                (k1 + (ks - k1) * t, -FRAC_PI_2 * shape)
+            }
+            None => (k1 * 0.9, -0.5),
+        }
+    }
+
+    /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
+    /// marching from first contact.
+    fn point_at(&self, stroke: f64) -> Option<(f64, f64)> {
+        if let Some(sol) = self.solve_point(PointGoal::Stroke(stroke), self.point_guess(stroke)) {
+            return Some(sol);
+        }
+        self.march_point(PointGoal::Stroke(stroke), stroke)
+    }
+
+    /// Marches the point branch in stroke from first contact to `stroke`, then solves `goal`.
+    fn march_point(&self, goal: PointGoal, stroke: f64) -> Option<(f64, f64)> {
+        let (k1, d1) = self.first_contact?;
+        let mut node = PointNode { k: k1, phi0: 0.0, stroke: d1 };
+        let mut prev: Option<PointNode> = None;
+        let total = stroke - d1;
+        let mut step = total / 16.0;
+        for _ in 0..400 {
+            if node.stroke >= stroke - 1e-15 {
+                break;
+            }
+            let target = (node.stroke + step).min(stroke);
+            let h = target - node.stroke;
+            let guess = match prev {
+                Some(p) => {
+                    let r = h / (node.stroke - p.stroke);
+                    (node.k + r * (node.k - p.k), node.phi0 + r * (node.phi0 - p.phi0))
+                }
+                None => (node.k * 0.99, -(h / total.max(1e-300)).sqrt().min(1.0) * 0.5),
+            };
+            match self.solve_point(PointGoal::Stroke(target), guess) {
+                Some((k, phi0)) => {
+                    prev = Some(node);
+                    node = PointNode { k, phi0, stroke: target };
+                    step *= 1.3;
+                }
+                None => {
+                    step *= 0.3;
+                    if step < 1e-12 * (1.0 + total) {
+                        return None;
+                    }
+                }
+            }
+        }
+        match goal {
+            PointGoal::Stroke(_) => Some((node.k, node.phi0)),
+            other => self.solve_point(other, (node.k, node.phi0)),
+        }
+    }
+
+    /// Solves the free phase at `stroke`: `2 (1 - E/K) = stroke`.
+    fn free_k(&self, stroke: f64) -> Option<f64> {
+        if stroke <= 0.0 {
+            return Some(0.0);
+        }
+        let hi = self.first_contact.map(|(k, _)| k).unwrap_or(k_chord_closed());
+        newton_bracketed(0.0, hi, stroke.sqrt().min(0.9 * hi), 1e-15, |k| {
+            let s = free_d(D::var(k, 0))[0];
+            (s.v - stroke, s.d[0])
+        })
+    }
+
+    /// Solves line contact at `stroke` for `k`.
+    fn line_k(&self, stroke: f64) -> Option<f64> {
+        let (ks, _) = self.line_onset?;
+        let hi = self.limit_k?;
+        let gap = self.gap;
+        newton_bracketed(ks, hi, ks + 0.3 * (hi - ks), 1e-15, |k| {
+            let s = line_d(D::var(k, 0), gap).stroke;
+            (s.v - stroke, s.d[0])
+        })
+    }
+
+    /// The phase the path is in at `stroke`.
+    pub fn phase_at(&self, stroke: f64) -> Phase {
+        if !(stroke >= 0.0) || stroke > self.limit.stroke {
+            return Phase::BeyondLimit;
+        }
+        match (self.first_contact, self.line_onset) {
+            (None, _) => Phase::Free,
+            (Some((_, d1)), _) if stroke <= d1 => Phase::Free,
+            (Some(_), Some((_, ds))) if stroke >= ds => Phase::LineContact,
+            _ => Phase::PointContact,
+        }
+    }
+
+    /// State of the strip at `stroke` (nondimensional). Past the limit the phase is
+    /// `BeyondLimit` and the force and stress fields are NaN.
+    pub fn state(&self, stroke: f64) -> StripState {
+        let phase = self.phase_at(stroke);
+        let solved = match phase {
+            Phase::Free => self.free_k(stroke).map(|k| self.free_state(k, stroke)),
+            Phase::PointContact => self.point_at(stroke).map(|(k, p)| self.point_state(k, p, stroke)),
+            Phase::LineContact => self.line_k(stroke).map(|k| self.line_state(k, stroke)),
+            Phase::BeyondLimit => None,
+        };
+        solved.unwrap_or_else(|| beyond(stroke))
+    }
+
+    fn free_state(&self, k: f64, stroke: f64) -> StripState {
+        let [_, axial, crest, kappa, energy] = free_d(D::c(k));
+        StripState {
+            phase: Phase::Free,
+            stroke,
+            k,
+            phi0: 0.0,
+            arc: 0.5,
+            axial: axial.v * self.scale_force,
+            contact: 0.0,
+            crest_height: crest.v,
+            flat_length: 0.0,
+            kappa_max: kappa.v * self.scale_curvature,
+            energy: energy.v * self.scale_force,
+        }
+    }
+
+    fn point_state(&self, k: f64, phi0: f64, stroke: f64) -> StripState {
+        let q = point_d(D::c(k), D::c(phi0));
+        StripState {
+            phase: Phase::PointContact,
+            stroke,
+            k,
+            phi0,
+            arc: 0.5,
+            axial: q.axial.v * self.scale_force,
+            contact: q.contact.v * self.scale_force,
+            crest_height: self.gap,
+            flat_length: 0.0,
+            kappa_max: q.kappa.v * self.scale_curvature,
+            energy: q.energy.v * self.scale_force,
+        }
+    }
+
+    fn line_state(&self, k: f64, stroke: f64) -> StripState {
+        let q = line_d(D::c(k), self.gap);
+        StripState {
+            phase: Phase::LineContact,
+            stroke,
+            k,
+            phi0: -FRAC_PI_2,
+            arc: q.arc.v,
+            axial: q.axial.v * self.scale_force,
+            contact: q.contact.v * self.scale_force,
+            crest_height: self.gap,
+            flat_length: 1.0 - 2.0 * q.arc.v,
+            kappa_max: q.kappa.v * self.scale_curvature,
+            energy: q.energy.v * self.scale_force,
+        }
+    }
+
+    /// Least stroke at which the contact force per strip reaches `contact`
+    /// (nondimensional, this end condition), `None` if it is not reached before the limit.
+    pub fn stroke_for_contact(&self, contact: f64) -> Option<f64> {
+        if !(contact > 0.0) {
+            return self.first_contact_stroke();
+        }
+        self.stroke_for_goal(contact, 0.0, 0.0, 1.0)
+    }
+
+    /// Least stroke at which `wk * kappa_max + wp * axial` (this end condition's values)
+    /// reaches `value`; `None` if not before the limit. Used for the stress limit.
+    pub fn stroke_for_linear(&self, wk: f64, wp: f64, value: f64) -> Option<f64> {
+        // Free phase first: the combination rises with k from zero.
+        let (wk_c, wp_c) = (wk * self.scale_curvature, wp * self.scale_force);
+        let eval_free = |k: f64| {
+            let [_, axial, _, kappa, _] = free_d(D::var(k, 0));
+            let v = wk_c * kappa + wp_c * axial - D::c(value);
+            (v.v, v.d[0])
+        };
+        let k_end = self.first_contact.map(|(k, _)| k).unwrap_or(k_chord_closed());
+        if eval_free(k_end).0 >= 0.0 {
+            let k = newton_bracketed(0.0, k_end, 0.5 * k_end, 1e-15, eval_free)?;
+            let stroke = free_d(D::c(k))[0].v;
+            return (stroke <= self.limit.stroke).then_some(stroke);
+        }
+        if self.first_contact.is_none() {
+            return None;
+        }
+        self.stroke_for_goal(value, wk, wp, 0.0)
+    }
+
+    /// Least contact-phase stroke where `wk kappa + wp axial + wf contact` (weights on this
+    /// end condition's values) reaches `value`. Each phase is taken as rising.
+    fn stroke_for_goal(&self, value: f64, wk: f64, wp: f64, wf: f64) -> Option<f64> {
+        let (_, d1) = self.first_contact?;
+        let measure = |s: &StripState| wk * s.kappa_max + wp * s.axial + wf * s.contact;
+        let m1 = measure(&self.state(d1));
+        if m1 >= value {
+            return Some(d1);
+        }
+        // Clamped-form weights for the phase equations.
+        let (sk, sp, sf) = (wk * self.scale_curvature, wp * self.scale_force, wf * self.scale_force);
+        let point_end = self.line_onset.map(|(_, d)| d).unwrap_or(self.limit.stroke);
+        let m_end = measure(&self.state(point_end));
+        if m_end >= value {
+            let goal = PointGoal::Linear { wk: sk, wp: sp, wf: sf, value };
+            let t = ((value - m1) / (m_end - m1)).clamp(0.0, 1.0);
+            let guess_stroke = d1 + t * (point_end - d1);
+            let solved = self
+                .point_at(guess_stroke)
+                .and_then(|guess| self.solve_point(goal, guess))
+                .or_else(|| self.march_point(goal, guess_stroke))?;
+            let stroke = point_d(D::c(solved.0), D::c(solved.1)).stroke.v;
+            return (stroke <= self.limit.stroke).then_some(stroke);
+        }
+        let (ks, _) = self.line_onset?;
+        let kl = self.limit_k?;
+        let gap = self.gap;
+        let eval_line = |k: f64| {
+            let q = line_d(D::var(k, 0), gap);
+            let v = sk * q.kappa + sp * q.axial + sf * q.contact - D::c(value);
+            (v.v, v.d[0])
+        };
+        if eval_line(kl).0 < 0.0 {
+            return None;
+        }
+        let k = newton_bracketed(ks, kl, 0.5 * (ks + kl), 1e-15, eval_line)?;
+        Some(line_d(D::c(k), gap).stroke.v.min(self.limit.stroke))
+    }
+
+    /// Points `(x, y)` along the whole strip (nondimensional; `x` from the first plate,
+    /// `y` outward from the rest line), `n` per span, for drawing the side view.
+    pub fn shape(&self, stroke: f64, n: usize) -> Vec<[f64; 2]> {
+        let s = self.state(stroke);
+        let n = n.max(4);
+        let hinged = self.ends == Ends::Hinged;
+        let k = s.k;
+        let ke = elliptic::complete(k);
+        // One span of the elliptic family from phi_a to phi_b, rotated by psi, starting at
+        // the origin; `lam` only scales.
+        let span = |phi_a: f64, phi_b: f64, psi: f64, lam: f64, out: &mut Vec<[f64; 2]>| {
+            let at = |phi: f64| {
+                let (f, e) = elliptic::incomplete_with(phi, k, ke);
+                let xi = (2.0 * e - f) / lam;
+                let eta = -2.0 * k * phi.cos() / lam;
+                (xi, eta)
+            };
+            let (x0, y0) = at(phi_a);
+            let (sp, cp) = psi.sin_cos();
+            for i in 0..=n {
+                let phi = phi_a + (phi_b - phi_a) * i as f64 / n as f64;
+                let (xi, eta) = at(phi);
+                let (dx, dy) = (xi - x0, eta - y0);
+                out.push([dx * cp - dy * sp, dx * sp + dy * cp]);
+            }
+        };
+        let mut half = Vec::with_capacity(2 * n + 2);
+        let chord;
+        match s.phase {
+            Phase::BeyondLimit => return Vec::new(),
+            Phase::Free => {
+                let lam = if hinged { 2.0 * ke.0 } else { 4.0 * ke.0 };
+                let (a, b) = if hinged { (FRAC_PI_2, 1.5 * PI) } else { (0.0, 2.0 * PI) };
+                span(a, b, 0.0, lam, &mut half);
+                return half;
+            }
+            Phase::PointContact => {
+                let (f0, _) = elliptic::incomplete(s.phi0, k);
+                let psi = -2.0 * (k * s.phi0.sin()).asin();
+                let lam = if hinged { 2.0 * (ke.0 - f0) } else { 4.0 * (ke.0 - f0) };
+                let a = if hinged { FRAC_PI_2 } else { s.phi0 };
+                span(a, PI - s.phi0, psi, lam, &mut half);
+                chord = 1.0 - stroke;
+            }
+            Phase::LineContact => {
+                let alpha = 2.0 * k.asin();
+                let lam = if hinged { 2.0 * ke.0 / s.arc } else { 4.0 * ke.0 / s.arc };
+                let a = if hinged { FRAC_PI_2 } else { -FRAC_PI_2 };
+                span(a, 1.5 * PI, alpha, lam, &mut half);
+                chord = 1.0 - stroke;
+            }
+        }
+        let mut all = half.clone();
+        for p in half.iter().rev() {
+            all.push([chord - p[0], p[1]]);
+        }
+        all
+    }
+}
+
+/// A state past the limit: phase `BeyondLimit`, force and stress fields NaN.
+fn beyond(stroke: f64) -> StripState {
+    StripState {
+        phase: Phase::BeyondLimit,
+        stroke,
+        k: f64::NAN,
+        phi0: f64::NAN,
+        arc: f64::NAN,
+        axial: f64::NAN,
+        contact: f64::NAN,
+        crest_height: f64::NAN,
+        flat_length: f64::NAN,
+        kappa_max: f64::NAN,
+        energy: f64::NAN,
+    }
+}
