@@ -1,1 +1,3 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
+mod data_tables;
+mod elliptic_reference;
