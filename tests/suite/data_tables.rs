@@ -38,6 +38,7 @@ fn pipe_spot_checks_against_b36_10m() {
 /// ASME B36.10M inch columns (from memory): OD in, Sch 40 wall in, Sch 80 wall in, and the
 /// Schedule 10S wall of ASME B36.19M in. The metric columns are these converted at
 /// 25.4 mm/in and rounded (OD to 0.1 mm, walls to 0.01 mm).
+#[allow(clippy::approx_constant)] // 0.318 in is a wall thickness, not 1/pi
 const INCH_TABLE: [(&str, f64, f64, f64, f64); 15] = [
     ("1/2", 0.840, 0.109, 0.147, 0.083),
     ("3/4", 1.050, 0.113, 0.154, 0.083),
