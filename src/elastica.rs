@@ -216,28 +216,31 @@ impl std::ops::Sub<D> for f64 {
     }
 }
 
-/// Complete integrals `(K, E)` of a dual modulus.
-fn complete_d(k: D) -> (D, D) {
+/// Complete integrals `(K, E, D)` of a dual modulus, `D = (K - E) / k^2`.
+fn complete_d(k: D) -> (D, D, D) {
     let ke = elliptic::complete(k.v);
+    let dc = elliptic::complete_d(k.v);
     let (dk, de) = elliptic::complete_dk(k.v, ke);
-    (k.chain(ke.0, dk), k.chain(ke.1, de))
+    let dd = elliptic::incomplete_d_dk(FRAC_PI_2, k.v, (ke.0, ke.1, dc));
+    (k.chain(ke.0, dk), k.chain(ke.1, de), k.chain(dc, dd))
 }
 
-/// Incomplete integrals `(F, E)` at `|phi| <= pi/2` of a dual phase and modulus.
-fn incomplete_d(phi: D, k: D) -> (D, D) {
-    let fe = elliptic::incomplete(phi.v, k.v);
-    let (fk, ek) = elliptic::incomplete_dk(phi.v, k.v, fe);
+/// Incomplete integrals `(F, E, D)` at `|phi| <= pi/2` of a dual phase and modulus.
+fn incomplete_d(phi: D, k: D) -> (D, D, D) {
+    let fed = elliptic::incomplete_fed(phi.v, k.v);
+    let (fk, ek) = elliptic::incomplete_dk(phi.v, k.v, (fed.0, fed.1));
+    let dk = elliptic::incomplete_d_dk(phi.v, k.v, fed);
     let s = phi.v.sin();
     let delta = (1.0 - k.v * k.v * s * s).sqrt();
-    let f = D {
-        v: fe.0,
-        d: [phi.d[0] / delta + k.d[0] * fk, phi.d[1] / delta + k.d[1] * fk],
+    let mix = |v: f64, by_phi: f64, by_k: f64| D {
+        v,
+        d: [phi.d[0] * by_phi + k.d[0] * by_k, phi.d[1] * by_phi + k.d[1] * by_k],
     };
-    let e = D {
-        v: fe.1,
-        d: [phi.d[0] * delta + k.d[0] * ek, phi.d[1] * delta + k.d[1] * ek],
-    };
-    (f, e)
+    (
+        mix(fed.0, 1.0 / delta, fk),
+        mix(fed.1, delta, ek),
+        mix(fed.2, s * s / delta, dk),
+    )
 }
 
 // ---------------------------------------------------------------------------------------
@@ -261,15 +264,17 @@ impl EndScale {
 }
 
 /// Free phase at modulus `k` (clamped form): `(stroke, axial, crest, kappa_max, energy)`.
+/// Differences such as `K - E` are formed from `D = (K - E)/k^2` so that small gaps keep
+/// full relative precision.
 fn free_d(k: D) -> [D; 5] {
-    let (kk, ee) = complete_d(k);
-    let stroke = 2.0 * (1.0 - ee / kk);
+    let (kk, _, dc) = complete_d(k);
+    let k2 = k.sq();
+    let stroke = 2.0 * (k2 * dc / kk);
     let lam = 4.0 * kk;
     let axial = lam.sq();
     let crest = k / kk;
     let kappa = 2.0 * (k * lam);
-    let kp2 = 1.0 - k.sq();
-    let energy = 8.0 * (lam * (ee - kp2 * kk));
+    let energy = 8.0 * (lam * (k2 * (kk - dc)));
     [stroke, axial, crest, kappa, energy]
 }
 
@@ -285,27 +290,32 @@ struct PointQ {
 }
 
 fn point_d(k: D, phi0: D) -> PointQ {
-    let (kk, ee) = complete_d(k);
-    let (f0, e0) = incomplete_d(phi0, k);
-    let span = kk - f0;
+    let (kk, _, dc) = complete_d(k);
+    let (f0, _, d0) = incomplete_d(phi0, k);
+    let span = kk - f0; // K - F(phi0)
+    let k2 = k.sq();
     let lam = 4.0 * span;
-    let xi = (4.0 * (ee - e0) - 2.0 * span) / lam;
-    let eta = 4.0 * (k * phi0.cos()) / lam;
-    let s = D::c(0.0) - k * phi0.sin(); // sin(psi / 2)
+    // (K - F0) - (E - E0) = k^2 (D - D0): xi = 1/2 - k^2 (D - D0) / (K - F0).
+    let ddiff = dc - d0;
+    let xi = D::c(0.5) - k2 * ddiff / span;
+    let (sin0, cos0) = (phi0.sin(), phi0.cos());
+    let eta = k * cos0 / span;
+    let s = D::c(0.0) - k * sin0; // sin(psi / 2)
     let c = (1.0 - s.sq()).sqrt();
     let sin_psi = 2.0 * (s * c);
     let cos_psi = 1.0 - 2.0 * s.sq();
     let crest = xi * sin_psi + eta * cos_psi;
-    let x_half = xi * cos_psi - eta * sin_psi;
+    // 1/2 - x_half = s^2 + k^2 (D - D0) cos(psi) / (K - F0) + eta sin(psi): all terms >= 0.
+    let shortening = s.sq() + k2 * ddiff * cos_psi / span + eta * sin_psi;
     let q = lam.sq();
-    let kp2 = 1.0 - k.sq();
     PointQ {
         crest,
-        stroke: 1.0 - 2.0 * x_half,
+        stroke: 2.0 * shortening,
         axial: q * cos_psi,
         contact: 2.0 * (q * sin_psi),
         kappa: 2.0 * (k * lam),
-        energy: 8.0 * (lam * ((ee - e0) - kp2 * span)),
+        // (E - E0) - k'^2 (K - F0) = k^2 ((K - F0) - (D - D0)).
+        energy: 8.0 * (lam * (k2 * (span - ddiff))),
     }
 }
 
@@ -321,32 +331,32 @@ struct LineQ {
 }
 
 /// `c sin(alpha) / l` of a free arc in line contact: its peak 0.64214 at k = 0.4897 bounds
-/// the gaps that line contact can start at.
-fn line_reach_d(k: D) -> (D, D, D, D) {
-    let (kk, ee) = complete_d(k);
+/// the gaps that line contact can start at. Returns `(reach, K, D)`.
+fn line_reach_d(k: D) -> (D, D, D) {
+    let (kk, _, dc) = complete_d(k);
     let kp = (1.0 - k.sq()).sqrt();
     let sin_a = 2.0 * (k * kp);
-    let chord_ratio = 2.0 * (ee / kk) - D::c(1.0);
-    (chord_ratio * sin_a, chord_ratio, kk, ee)
+    let chord_ratio = 1.0 - 2.0 * (k.sq() * dc / kk); // 2E/K - 1
+    (chord_ratio * sin_a, kk, dc)
 }
 
 fn line_d(k: D, gap: f64) -> LineQ {
-    let (reach, chord_ratio, kk, ee) = line_reach_d(k);
-    let kp = (1.0 - k.sq()).sqrt();
+    let (reach, kk, dc) = line_reach_d(k);
+    let k2 = k.sq();
+    let kp = (1.0 - k2).sqrt();
     let sin_a = 2.0 * (k * kp);
-    let cos_a = 1.0 - 2.0 * k.sq();
+    let cos_a = 1.0 - 2.0 * k2;
     let arc = D::c(gap) / reach;
-    let chord = chord_ratio * arc;
     let lam = 4.0 * kk / arc;
     let q = lam.sq();
-    let kp2 = 1.0 - k.sq();
     LineQ {
         arc,
-        stroke: 2.0 * arc - 2.0 * (chord * cos_a),
+        // 2 l (1 - (c/l) cos(alpha)) = 4 l k^2 (1 + D cos(alpha) / K).
+        stroke: 4.0 * (arc * k2 * (D::c(1.0) + dc * cos_a / kk)),
         axial: q * cos_a,
         contact: 2.0 * (q * sin_a),
         kappa: 2.0 * (k * lam),
-        energy: 16.0 * (lam * (ee - kp2 * kk)),
+        energy: 16.0 * (lam * (k2 * (kk - dc))),
     }
 }
 
@@ -741,11 +751,11 @@ impl Path {
         Limit { stroke: 0.5 * (lo + hi), reason: LimitReason::ContactForcePeaks, phase: Phase::PointContact }
     }
 
-    /// Two-equation Newton on `(k, phi0)`: crest on the wall plus `goal`.
+    /// Two-equation Newton on `(k, phi0)`: crest on the wall plus `goal`, with a
+    /// backtracking line search on the scaled residual so that it stays on the branch.
     fn solve_point(&self, goal: PointGoal, guess: (f64, f64)) -> Option<(f64, f64)> {
         let gap = self.gap;
-        let (mut k, mut phi0) = guess;
-        for _ in 0..MAX_NEWTON {
+        let residual = |k: f64, phi0: f64| {
             let q = point_d(D::var(k, 0), D::var(phi0, 1));
             let r1 = q.crest - D::c(gap);
             let r2 = match goal {
@@ -754,39 +764,78 @@ impl Path {
                     wk * q.kappa + wp * q.axial + wf * q.contact - D::c(value)
                 }
             };
+            (r1, r2)
+        };
+        // Scales that make both residuals order one: the gap, and the goal's own size.
+        let (s1, s2) = {
+            let (_, r2) = residual(guess.0, guess.1);
+            let scale2 = match goal {
+                PointGoal::Stroke(_) => gap * gap,
+                PointGoal::Linear { value, .. } => value.abs().max(1e-300),
+            };
+            let _ = r2;
+            (1.0 / gap, 1.0 / scale2)
+        };
+        let norm = |r1: D, r2: D| (r1.v * s1).powi(2) + (r2.v * s2).powi(2);
+        let inside = |k: f64, phi0: f64| k > 0.0 && k < 1.0 && (-FRAC_PI_2 - 0.6..=0.6).contains(&phi0);
+        let (mut k, mut phi0) = guess;
+        if !inside(k, phi0) {
+            return None;
+        }
+        let (mut r1, mut r2) = residual(k, phi0);
+        for _ in 0..MAX_NEWTON {
             let det = r1.d[0] * r2.d[1] - r1.d[1] * r2.d[0];
             if !det.is_finite() || det == 0.0 {
                 return None;
             }
-            let mut dk = -(r1.v * r2.d[1] - r2.v * r1.d[1]) / det;
-            let mut dp = -(r2.v * r1.d[0] - r1.v * r2.d[0]) / det;
-            // Limit the step so Newton stays on this branch.
-            let shrink = (0.1 / dk.abs().max(1e-300)).min(0.25 / dp.abs().max(1e-300)).min(1.0);
-            dk *= shrink;
-            dp *= shrink;
-            k += dk;
-            phi0 += dp;
-            if !(k > 0.0 && k < 1.0) || !(-FRAC_PI_2 - 0.5..=0.5).contains(&phi0) {
-                return None;
+            let dk = -(r1.v * r2.d[1] - r2.v * r1.d[1]) / det;
+            let dp = -(r2.v * r1.d[0] - r1.v * r2.d[0]) / det;
+            if dk.abs() < 1e-15 * (1.0 + k) && dp.abs() < 1e-14 {
+                return Some((k + dk, phi0 + dp));
             }
-            if shrink == 1.0 && dk.abs() < 1e-14 && dp.abs() < 1e-13 {
-                return Some((k, phi0));
+            let base = norm(r1, r2);
+            let mut t = (0.3 / dp.abs()).min(0.5 * k / dk.abs()).min(1.0);
+            let mut accepted = false;
+            for _ in 0..30 {
+                let (kn, pn) = (k + t * dk, phi0 + t * dp);
+                if inside(kn, pn) {
+                    let (n1, n2) = residual(kn, pn);
+                    if norm(n1, n2) < base || base < 1e-28 {
+                        k = kn;
+                        phi0 = pn;
+                        r1 = n1;
+                        r2 = n2;
+                        accepted = true;
+                        break;
+                    }
+                }
+                t *= 0.5;
+            }
+            if !accepted {
+                return None;
             }
         }
         None
     }
 
-    /// Guess for `(k, phi0)` at a point-contact stroke, from the branch ends.
+    /// Guess for `(k, phi0)` at a point-contact stroke: `phi0` from a shape fitted to the
+    /// branch between its ends, then `k` from the gap equation at that `phi0`.
     fn point_guess(&self, stroke: f64) -> (f64, f64) {
         let (k1, d1) = self.first_contact.unwrap_or((0.0, 0.0));
-        match self.line_onset {
-            Some((ks, ds)) => {
+        let phi0 = match self.line_onset {
+            Some((_, ds)) => {
                 let t = ((stroke - d1) / (ds - d1)).clamp(0.0, 1.0);
-                let shape = 1.0 - (1.0 - t).powf(1.7);
-                (k1 + (ks - k1) * t, -FRAC_PI_2 * shape)
+                -FRAC_PI_2 * (1.0 - (1.0 - t) * (1.0 - t))
             }
-            None => (k1 * 0.9, -0.5),
-        }
+            None => -FRAC_PI_2 * ((stroke - d1) / (1.0 - d1)).clamp(0.0, 1.0).sqrt(),
+        };
+        let gap = self.gap;
+        let k = newton_bracketed(1e-3 * k1, k1.max(1e-300) * 1.05, 0.8 * k1, 1e-12, |k| {
+            let q = point_d(D::var(k, 0), D::c(phi0));
+            (q.crest.v - gap, q.crest.d[0])
+        })
+        .unwrap_or(0.8 * k1);
+        (k, phi0)
     }
 
     /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
@@ -1084,3 +1133,5 @@ fn beyond(stroke: f64) -> StripState {
         energy: f64::NAN,
     }
 }
+
+

@@ -171,6 +171,41 @@ pub fn ellip_e_inc(phi: f64, k: f64) -> f64 {
     incomplete(phi, k).1
 }
 
+/// Complete integral `D(k) = (K - E) / k^2 = R_D(0, k'^2, 1) / 3` (DLMF 19.2.6, 19.25.1),
+/// free of the cancellation in `K - E` at small `k`.
+pub fn complete_d(k: f64) -> f64 {
+    carlson_rd(0.0, co_square(k), 1.0) / 3.0
+}
+
+/// Incomplete integrals `(F, E, D)` at `|phi| <= pi/2`, where
+/// `D(phi, k) = (F - E) / k^2 = sin^3(phi) R_D(cos^2 phi, 1 - k^2 sin^2 phi, 1) / 3`
+/// (DLMF 19.2.6, 19.25.5, 19.25.9). `E` is formed as `F - k^2 D`.
+pub fn incomplete_fed(phi: f64, k: f64) -> (f64, f64, f64) {
+    let (s, c) = phi.sin_cos();
+    if s == 0.0 {
+        return (0.0, 0.0, 0.0);
+    }
+    let c2 = c * c;
+    let d2 = 1.0 - k * k * s * s;
+    let f = s * carlson_rf(c2, d2, 1.0);
+    let d = s * s * s * carlson_rd(c2, d2, 1.0) / 3.0;
+    (f, f - k * k * d, d)
+}
+
+/// Derivative of `D(phi, k)` with respect to `k` at fixed `phi` (from DLMF 19.4.2, 19.4.4),
+/// given `(F, E, D)`; a series below `k = 1e-3` avoids the cancellation of the closed form.
+pub fn incomplete_d_dk(phi: f64, k: f64, fed: (f64, f64, f64)) -> f64 {
+    let (s, c) = phi.sin_cos();
+    if k.abs() < 1e-3 {
+        // D = int sin^2 (1 + k^2 sin^2 / 2 + ...): dD/dk = k int sin^4 = k (3 phi/8 - sin 2phi/4 + sin 4phi/32).
+        return k * (3.0 * phi / 8.0 - (2.0 * phi).sin() / 4.0 + (4.0 * phi).sin() / 32.0);
+    }
+    let (_, e, d) = fed;
+    let kp2 = co_square(k);
+    let delta = (1.0 - k * k * s * s).sqrt();
+    (e - s * c / delta) / (k * kp2) - 2.0 * d / k
+}
+
 /// Derivatives of the complete integrals with respect to the modulus,
 /// `(dK/dk, dE/dk)` (DLMF 19.4.1), given `(K, E)`.
 pub fn complete_dk(k: f64, ke: (f64, f64)) -> (f64, f64) {
@@ -236,6 +271,29 @@ mod tests {
             }
             let (f, e) = incomplete(FRAC_PI_2, k);
             assert!((f / kk - 1.0).abs() < 2e-15 && (e / ee - 1.0).abs() < 2e-15);
+        }
+    }
+
+    #[test]
+    fn d_integral_matches_its_definition() {
+        // DLMF 19.2.6: D = (F - E) / k^2.
+        for &k in &[0.3, 0.7, 0.95] {
+            let (kk, ee) = complete(k);
+            assert!((complete_d(k) - (kk - ee) / (k * k)).abs() < 1e-13);
+            for &phi in &[-1.3, 0.2, 1.5] {
+                let (f, e, d) = incomplete_fed(phi, k);
+                let (f2, e2) = incomplete(phi, k);
+                assert!((f - f2).abs() < 1e-15 && (e - e2).abs() < 1e-14);
+                assert!((d - (f - e) / (k * k)).abs() < 1e-13);
+                let h = 1e-6;
+                let num = (incomplete_fed(phi, k + h).2 - incomplete_fed(phi, k - h).2) / (2.0 * h);
+                assert!((incomplete_d_dk(phi, k, (f, e, d)) - num).abs() < 1e-6);
+            }
+        }
+        for &k in &[1e-4, 5e-4] {
+            let h = 1e-6;
+            let num = (incomplete_fed(0.7, k + h).2 - incomplete_fed(0.7, k - h).2) / (2.0 * h);
+            assert!((incomplete_d_dk(0.7, k, incomplete_fed(0.7, k)) - num).abs() < 1e-8);
         }
     }
 

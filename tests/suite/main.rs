@@ -1,3 +1,4 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod data_tables;
 mod elliptic_reference;
+mod small_gap;
