@@ -13,3 +13,7 @@ pub mod friction;
 pub mod design;
 pub mod segment;
 pub mod checks;
+pub mod analysis;
+pub mod app;
+pub mod sheet;
+pub mod cli;

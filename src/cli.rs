@@ -1,0 +1,1 @@
+//! The command line (placeholder until the CLI lands).
