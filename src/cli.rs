@@ -1,1 +1,786 @@
-//! The command line (placeholder until the CLI lands).
+//! The command line: argument types, the five sub-commands (`point`, `sweep`, `bores`,
+//! `check`, `sheet`) and the hand-off to the desktop app when no sub-command is given.
+//!
+//! Data goes to stdout (human tables by default, `--json` or `--csv` for scripts), every
+//! message to stderr as one line. Exit status: 0 success, 1 when `check` finds a failing
+//! check, 2 for bad input of any kind (a missing or malformed design file, a value out of
+//! range, a bore the relaxed segment does not fit for `point`/`sweep`, a bad number on the
+//! command line) and for anything else that stops a run. A closed stdout (`| head`) ends the
+//! run quietly with status 0.
+
+use std::fmt::Write as _;
+use std::fs;
+use std::io::{self, BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, anyhow, bail};
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+use crate::checks::{self, Check};
+use crate::design::{self, Design};
+use crate::segment::{BorePath, BoreRow, Segment, SegmentState};
+use crate::sheet::{self, Paper};
+
+/// Default number of strokes on a `sweep`.
+pub const SWEEP_POINTS: usize = 200;
+
+/// Most points `sweep` and `bores` accept.
+pub const MAX_POINTS: usize = 100_000_000;
+
+/// One line of caution printed under every human-readable table.
+pub const CAUTION: &str = "Caution: bowed strips store spring energy and can snap; end plates pinch; \
+pipe work brings confined-space and pressure hazards. These results are a design aid: \
+follow local codes and licensed engineering practice.";
+
+/// The command line of `bowgrip`.
+#[derive(Debug, Parser)]
+#[command(
+    name = "bowgrip",
+    version,
+    about = "Size bowed-strip expanding segments: strips, stroke, grip and stress across a bore tolerance",
+    long_about = "Size bowed-strip expanding segments: strips, stroke, grip and stress across a \
+                  bore tolerance.\n\nWithout a sub-command the desktop app opens, on FILE or on a \
+                  built-in demo design.",
+    args_conflicts_with_subcommands = true
+)]
+pub struct Cli {
+    /// Design file (.ron) to open in the app; without it the app starts on a demo design.
+    pub file: Option<PathBuf>,
+    /// What to compute; none opens the app.
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+/// The sub-commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// One state of the segment at a stroke: forces, diameter, flat run, stress.
+    Point(PointArgs),
+    /// The force-stroke curve at one bore, from rest to the model's limit or the actuator's
+    /// maximum stroke, whichever comes first.
+    Sweep(SweepArgs),
+    /// Strokes against bore: first contact, holding, stress limit, line contact and model
+    /// limit for equally spaced bores.
+    Bores(BoresArgs),
+    /// Every design check with its margin and reason; exit status 1 when any fails.
+    Check(CheckArgs),
+    /// Write the printable sizing sheet (PDF).
+    Sheet(SheetArgs),
+}
+
+/// Arguments of `point`.
+#[derive(Debug, Args)]
+pub struct PointArgs {
+    /// Design file (.ron).
+    pub file: PathBuf,
+    /// End-plate travel from rest, mm.
+    #[arg(long = "stroke-mm", value_name = "MM", value_parser = stroke_mm, allow_negative_numbers = true)]
+    pub stroke_mm: f64,
+    /// Bore diameter, mm [default: the design's nominal bore].
+    #[arg(long = "bore-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
+    pub bore_mm: Option<f64>,
+    /// Print one JSON object instead of a table.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Arguments of `sweep`.
+#[derive(Debug, Args)]
+pub struct SweepArgs {
+    /// Design file (.ron).
+    pub file: PathBuf,
+    /// Bore diameter, mm [default: the design's nominal bore].
+    #[arg(long = "bore-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
+    pub bore_mm: Option<f64>,
+    /// Number of strokes, both ends included.
+    #[arg(long, value_name = "N", default_value_t = SWEEP_POINTS, value_parser = points, allow_negative_numbers = true)]
+    pub points: usize,
+    /// Print CSV with a header row instead of a table.
+    #[arg(long)]
+    pub csv: bool,
+}
+
+/// Arguments of `bores`.
+#[derive(Debug, Args)]
+pub struct BoresArgs {
+    /// Design file (.ron).
+    pub file: PathBuf,
+    /// First bore diameter, mm.
+    #[arg(long = "from-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
+    pub from_mm: f64,
+    /// Last bore diameter, mm (included).
+    #[arg(long = "to-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
+    pub to_mm: f64,
+    /// Number of bores, both ends included.
+    #[arg(long, value_name = "N", value_parser = points, allow_negative_numbers = true)]
+    pub points: usize,
+    /// Print CSV with a header row instead of a table.
+    #[arg(long)]
+    pub csv: bool,
+}
+
+/// Arguments of `check`.
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// Design file (.ron).
+    pub file: PathBuf,
+    /// Print one JSON object instead of a table.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Arguments of `sheet`.
+#[derive(Debug, Args)]
+pub struct SheetArgs {
+    /// Design file (.ron).
+    pub file: PathBuf,
+    /// Where to write the PDF.
+    #[arg(short = 'o', long = "output", value_name = "SHEET.pdf")]
+    pub output: PathBuf,
+    /// Paper size.
+    #[arg(long, value_enum, default_value_t = PaperArg::A4)]
+    pub paper: PaperArg,
+}
+
+/// Paper sizes as spelled on the command line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum PaperArg {
+    /// ISO A4.
+    A4,
+    /// US Letter.
+    Letter,
+}
+
+impl From<PaperArg> for Paper {
+    fn from(p: PaperArg) -> Paper {
+        match p {
+            PaperArg::A4 => Paper::A4,
+            PaperArg::Letter => Paper::Letter,
+        }
+    }
+}
+
+/// How a successful run ended.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Status {
+    /// Everything asked for was done (and every check passed).
+    Done,
+    /// `check` ran and at least one check failed.
+    ChecksFailed,
+}
+
+impl From<Status> for ExitCode {
+    fn from(s: Status) -> ExitCode {
+        match s {
+            Status::Done => ExitCode::SUCCESS,
+            Status::ChecksFailed => ExitCode::from(1),
+        }
+    }
+}
+
+// ---------------------------------------------------------------------------------------
+// Number parsers: say what was wrong and the allowed range.
+
+fn number(text: &str) -> Result<f64, String> {
+    text.trim()
+        .parse::<f64>()
+        .map_err(|_| format!("{text:?} is not a number"))
+}
+
+fn stroke_mm(text: &str) -> Result<f64, String> {
+    let v = number(text)?;
+    if v.is_finite() && v >= 0.0 {
+        Ok(v)
+    } else {
+        Err(format!(
+            "{v} is outside the allowed range: a finite stroke >= 0 mm"
+        ))
+    }
+}
+
+fn bore_mm(text: &str) -> Result<f64, String> {
+    let v = number(text)?;
+    if v.is_finite() && v > 0.0 {
+        Ok(v)
+    } else {
+        Err(format!(
+            "{v} is outside the allowed range: a finite bore diameter > 0 mm"
+        ))
+    }
+}
+
+fn points(text: &str) -> Result<usize, String> {
+    let allowed = format!("a whole number from 2 to {MAX_POINTS}");
+    match text.trim().parse::<usize>() {
+        Ok(n) if (2..=MAX_POINTS).contains(&n) => Ok(n),
+        Ok(n) => Err(format!("{n} is outside the allowed range: {allowed}")),
+        Err(_) => Err(format!("{text:?} is not {allowed}")),
+    }
+}
+
+// ---------------------------------------------------------------------------------------
+// Entry points used by `main`.
+
+/// Makes a panic print one line on stderr and exit with status 2, instead of a backtrace.
+/// A last resort: every expected failure is an error value, not a panic.
+pub fn install_panic_hook() {
+    std::panic::set_hook(Box::new(|info| {
+        let message = info
+            .payload()
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| info.payload().downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "unknown cause".to_string());
+        let place = info
+            .location()
+            .map(|l| format!(" at {}:{}", l.file(), l.line()))
+            .unwrap_or_default();
+        let _ = writeln!(
+            io::stderr(),
+            "bowgrip: internal error{place}: {}",
+            one_line(&message)
+        );
+        std::process::exit(2);
+    }));
+}
+
+/// Parses the process arguments. On help or version it prints them and gives status 0; on
+/// a bad command line it prints one line and gives status 2.
+pub fn parse_args() -> Result<Cli, ExitCode> {
+    Cli::try_parse().map_err(|e| usage_error(&e))
+}
+
+/// Prints a clap error (or help text) the way this program reports: help and version in
+/// full on stdout, anything else as one line on stderr with status 2.
+pub fn usage_error(e: &clap::Error) -> ExitCode {
+    use clap::error::ErrorKind;
+    match e.kind() {
+        ErrorKind::DisplayHelp
+        | ErrorKind::DisplayVersion
+        | ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+            let _ = e.print();
+            ExitCode::from(u8::try_from(e.exit_code()).unwrap_or(2))
+        }
+        _ => {
+            let text = e.render().to_string();
+            // Drop the usage block and the pointer to --help; keep what went wrong.
+            let what = text
+                .split("\n\nUsage:")
+                .next()
+                .unwrap_or(&text)
+                .split("\n\nFor more information")
+                .next()
+                .unwrap_or(&text);
+            let what = what.trim().trim_start_matches("error:").trim();
+            let _ = writeln!(
+                io::stderr(),
+                "bowgrip: {} (see bowgrip --help)",
+                one_line(what)
+            );
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// Reports an error from [`run`] once: nothing for a closed stdout (status 0), else one line
+/// on stderr and status 2.
+pub fn report(e: &anyhow::Error) -> ExitCode {
+    if is_broken_pipe(e) {
+        return ExitCode::SUCCESS;
+    }
+    let _ = writeln!(io::stderr(), "bowgrip: {}", one_line(&format!("{e:#}")));
+    ExitCode::from(2)
+}
+
+fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|cause| {
+        cause
+            .downcast_ref::<io::Error>()
+            .is_some_and(|io| io.kind() == io::ErrorKind::BrokenPipe)
+    })
+}
+
+/// Collapses a message onto one line.
+fn one_line(text: &str) -> String {
+    text.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+/// Runs the parsed command line.
+pub fn run(cli: Cli) -> anyhow::Result<Status> {
+    let Some(command) = cli.command else {
+        crate::app::run(cli.file)?;
+        return Ok(Status::Done);
+    };
+    let stdout = io::stdout();
+    let mut out = BufWriter::new(stdout.lock());
+    let status = match command {
+        Command::Point(a) => point(&a, &mut out)?,
+        Command::Sweep(a) => sweep(&a, &mut out)?,
+        Command::Bores(a) => bores(&a, &mut out)?,
+        Command::Check(a) => check(&a, &mut out)?,
+        Command::Sheet(a) => write_sheet(&a)?,
+    };
+    out.flush()?;
+    Ok(status)
+}
+
+// ---------------------------------------------------------------------------------------
+// Loading.
+
+/// Reads, parses and resolves a design file; every failure names the file.
+fn load(path: &Path) -> anyhow::Result<(Design, Segment)> {
+    let design = design::load(path).map_err(|e| anyhow!(e.in_file(path)))?;
+    let segment = Segment::new(&design).map_err(|e| match e {
+        crate::segment::SegmentError::Design(d) => anyhow!(d.in_file(path)),
+        other => anyhow!("{}: {other}", path.display()),
+    })?;
+    Ok((design, segment))
+}
+
+/// The path at the asked bore (nominal by default); a bore the relaxed segment does not
+/// fit is an error here.
+fn bore_path<'a>(seg: &'a Segment, bore_mm: Option<f64>) -> anyhow::Result<BorePath<'a>> {
+    let bore = bore_mm.unwrap_or(seg.bore_nominal_mm);
+    seg.at_bore(bore).map_err(|e| anyhow!("{e}"))
+}
+
+// ---------------------------------------------------------------------------------------
+// point
+
+fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+    let (_, seg) = load(&a.file)?;
+    let path = bore_path(&seg, a.bore_mm)?;
+    let state = path.state(a.stroke_mm);
+    if a.json {
+        serde_json::to_writer(&mut *out, &state)?;
+        writeln!(out)?;
+    } else {
+        write!(out, "{}", point_table(&seg, &state))?;
+    }
+    Ok(Status::Done)
+}
+
+/// Fixed decimals for tables; `-` where the quantity does not exist.
+fn fixed(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(v) => format!("{v:.decimals$}"),
+        None => "-".to_string(),
+    }
+}
+
+fn point_table(seg: &Segment, s: &SegmentState) -> String {
+    let mut t = String::new();
+    let bore_note = if s.bore_mm == seg.bore_nominal_mm {
+        " (nominal)"
+    } else {
+        ""
+    };
+    let rows: Vec<(&str, String, &str)> = vec![
+        ("bore", format!("{:.3}{bore_note}", s.bore_mm), "mm"),
+        ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
+        ("stroke", format!("{:.3}", s.stroke_mm), "mm"),
+        ("phase", s.phase.to_string(), ""),
+        (
+            "axial force per strip",
+            fixed(s.axial_force_per_strip_n, 3),
+            "N",
+        ),
+        (
+            "contact force per strip",
+            fixed(s.contact_force_per_strip_n, 3),
+            "N",
+        ),
+        ("actuator pull", fixed(s.actuator_force_n, 3), "N"),
+        ("radial force", fixed(s.radial_force_n, 3), "N"),
+        ("holding force", fixed(s.holding_force_n, 3), "N"),
+        ("outer diameter", fixed(s.outer_diameter_mm, 3), "mm"),
+        ("flat run on the wall", fixed(s.flat_length_mm, 3), "mm"),
+        ("peak stress", fixed(s.max_stress_mpa, 1), "MPa"),
+        (
+            "static factor of safety",
+            fixed(s.static_safety_factor, 3),
+            "",
+        ),
+        (
+            "fatigue factor of safety",
+            fixed(s.fatigue_safety_factor, 3),
+            "",
+        ),
+        (
+            "first contact at stroke",
+            fixed(s.first_contact_stroke_mm, 3),
+            "mm",
+        ),
+        (
+            "line contact from stroke",
+            fixed(s.line_contact_stroke_mm, 3),
+            "mm",
+        ),
+        (
+            "model limit at stroke",
+            format!("{:.3}", s.limit_stroke_mm),
+            "mm",
+        ),
+    ];
+    for (label, value, unit) in rows {
+        let _ = writeln!(t, "{label:<26} {value:>14} {unit}");
+    }
+    if let Some(r) = &s.actuator {
+        let _ = writeln!(
+            t,
+            "{:<26} {:>14.3} {} at {:.3} {}",
+            "actuator effort", r.effort, r.effort_unit, r.position, r.position_unit
+        );
+    }
+    let _ = writeln!(t, "{:<26} {}", "limit reason", s.limit_reason);
+    if let Some(reason) = &s.reason {
+        let _ = writeln!(t, "{:<26} {reason}", "no state");
+    }
+    let _ = writeln!(t, "stiffness: {}", seg.stiffness_reason);
+    let _ = writeln!(t, "{CAUTION}");
+    t
+}
+
+// ---------------------------------------------------------------------------------------
+// sweep
+
+/// The fixed outside columns of `sweep`, then extras.
+const SWEEP_HEADER: &str = "stroke_mm,phase,axial_force_per_strip_n,contact_force_per_strip_n,\
+actuator_force_n,radial_force_n,holding_force_n,outer_diameter_mm,flat_length_mm,\
+max_stress_mpa,first_contact_stroke_mm,line_contact_stroke_mm,bore_mm,crest_height_mm,\
+static_safety_factor,fatigue_safety_factor,limit_stroke_mm,limit_reason";
+
+/// A CSV cell: Rust's default `f64` formatting (shortest round trip), empty for `None`.
+fn cell(v: Option<f64>) -> String {
+    v.map(|v| v.to_string()).unwrap_or_default()
+}
+
+fn sweep_csv_row(s: &SegmentState) -> String {
+    let cells = [
+        s.stroke_mm.to_string(),
+        s.phase.to_string(),
+        cell(s.axial_force_per_strip_n),
+        cell(s.contact_force_per_strip_n),
+        cell(s.actuator_force_n),
+        cell(s.radial_force_n),
+        cell(s.holding_force_n),
+        cell(s.outer_diameter_mm),
+        cell(s.flat_length_mm),
+        cell(s.max_stress_mpa),
+        cell(s.first_contact_stroke_mm),
+        cell(s.line_contact_stroke_mm),
+        s.bore_mm.to_string(),
+        cell(s.crest_height_mm),
+        cell(s.static_safety_factor),
+        cell(s.fatigue_safety_factor),
+        s.limit_stroke_mm.to_string(),
+        s.limit_reason.to_string(),
+    ];
+    cells.join(",")
+}
+
+fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+    let (_, seg) = load(&a.file)?;
+    let path = bore_path(&seg, a.bore_mm)?;
+    // The strokes of `BorePath::sweep`, computed one at a time so that a long sweep
+    // streams instead of collecting.
+    let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
+    let n = a.points;
+    let states = (0..n).map(|i| path.state(end_mm * i as f64 / (n - 1) as f64));
+    if a.csv {
+        writeln!(out, "{SWEEP_HEADER}")?;
+        for s in states {
+            writeln!(out, "{}", sweep_csv_row(&s))?;
+        }
+        return Ok(Status::Done);
+    }
+    writeln!(
+        out,
+        "bore {:.3} mm, gap {:.3} mm; first contact at {} mm, line contact from {} mm; \
+         model limit {:.3} mm ({}); actuator maximum {:.3} mm",
+        path.bore_mm(),
+        path.gap_mm(),
+        fixed(path.first_contact_stroke_mm(), 3),
+        fixed(path.line_contact_stroke_mm(), 3),
+        path.limit_stroke_mm(),
+        path.limit_reason().describe(),
+        seg.max_stroke_mm()
+    )?;
+    writeln!(
+        out,
+        "{:>10} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
+        "stroke",
+        "phase",
+        "P/strip",
+        "F/strip",
+        "pull",
+        "radial",
+        "holding",
+        "outer D",
+        "flat",
+        "stress"
+    )?;
+    writeln!(
+        out,
+        "{:>10} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
+        "mm", "", "N", "N", "N", "N", "N", "mm", "mm", "MPa"
+    )?;
+    for s in states {
+        writeln!(
+            out,
+            "{:>10.4} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
+            s.stroke_mm,
+            s.phase,
+            fixed(s.axial_force_per_strip_n, 3),
+            fixed(s.contact_force_per_strip_n, 3),
+            fixed(s.actuator_force_n, 2),
+            fixed(s.radial_force_n, 2),
+            fixed(s.holding_force_n, 2),
+            fixed(s.outer_diameter_mm, 3),
+            fixed(s.flat_length_mm, 2),
+            fixed(s.max_stress_mpa, 1),
+        )?;
+    }
+    writeln!(out, "{CAUTION}")?;
+    Ok(Status::Done)
+}
+
+// ---------------------------------------------------------------------------------------
+// bores
+
+/// The `bores` columns, exactly.
+const BORES_HEADER: &str = "bore_mm,first_contact_stroke_mm,holding_stroke_mm,\
+stress_limit_stroke_mm,line_contact_stroke_mm,limit_stroke_mm";
+
+/// The `i`-th of `n` equally spaced values from `from` to `to`, both ends exact.
+fn spaced(from: f64, to: f64, i: usize, n: usize) -> f64 {
+    let t = i as f64 / (n - 1) as f64;
+    from * (1.0 - t) + to * t
+}
+
+fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+    let (_, seg) = load(&a.file)?;
+    let rows = (0..a.points).map(|i| seg.bore_row(spaced(a.from_mm, a.to_mm, i, a.points)));
+    if a.csv {
+        writeln!(out, "{BORES_HEADER}")?;
+        for r in rows {
+            writeln!(out, "{}", bore_csv_row(&r))?;
+        }
+        return Ok(Status::Done);
+    }
+    writeln!(
+        out,
+        "strokes in mm against bore; '-' where the quantity does not exist (the segment does not \
+         fit or reach, or the path never gets there)"
+    )?;
+    writeln!(
+        out,
+        "{:>10} {:>14} {:>10} {:>13} {:>13} {:>10}",
+        "bore mm", "first contact", "holding", "stress limit", "line contact", "limit"
+    )?;
+    for r in rows {
+        writeln!(
+            out,
+            "{:>10.3} {:>14} {:>10} {:>13} {:>13} {:>10}",
+            r.bore_mm,
+            fixed(r.first_contact_stroke_mm, 3),
+            fixed(r.holding_stroke_mm, 3),
+            fixed(r.stress_limit_stroke_mm, 3),
+            fixed(r.line_contact_stroke_mm, 3),
+            fixed(r.limit_stroke_mm, 3),
+        )?;
+    }
+    writeln!(out, "{CAUTION}")?;
+    Ok(Status::Done)
+}
+
+fn bore_csv_row(r: &BoreRow) -> String {
+    format!(
+        "{},{},{},{},{},{}",
+        r.bore_mm,
+        cell(r.first_contact_stroke_mm),
+        cell(r.holding_stroke_mm),
+        cell(r.stress_limit_stroke_mm),
+        cell(r.line_contact_stroke_mm),
+        cell(r.limit_stroke_mm)
+    )
+}
+
+// ---------------------------------------------------------------------------------------
+// check
+
+fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+    let (design, seg) = load(&a.file)?;
+    let list = checks::run(&seg);
+    let pass = checks::all_pass(&list);
+    let limiting = checks::limiting(&list).map(|i| list[i].id);
+    if a.json {
+        let items: Vec<serde_json::Value> = list.iter().map(check_json).collect();
+        let doc = serde_json::json!({
+            "file": a.file.display().to_string(),
+            "title": design.title,
+            "pass": pass,
+            "limiting": limiting,
+            "stiffness": seg.stiffness_used.name(),
+            "stiffness_reason": seg.stiffness_reason,
+            "checks": items,
+        });
+        serde_json::to_writer(&mut *out, &doc)?;
+        writeln!(out)?;
+    } else {
+        write!(out, "{}", check_table(&design, &seg, &list, limiting))?;
+    }
+    Ok(if pass {
+        Status::Done
+    } else {
+        Status::ChecksFailed
+    })
+}
+
+fn check_json(c: &Check) -> serde_json::Value {
+    serde_json::json!({
+        "id": c.id,
+        "title": c.title,
+        "pass": c.pass,
+        "margin": c.margin,
+        "unit": c.unit.label(),
+        "reason": c.reason,
+        "bore_mm": c.bore_mm,
+        "stroke_mm": c.stroke_mm,
+    })
+}
+
+fn check_table(design: &Design, seg: &Segment, list: &[Check], limiting: Option<&str>) -> String {
+    let mut t = String::new();
+    if !design.title.is_empty() {
+        let _ = writeln!(t, "{}", design.title);
+    }
+    let _ = writeln!(
+        t,
+        "bore {:.3} mm (smallest {:.3}, largest {:.3}); stiffness {}",
+        seg.bore_nominal_mm, seg.bore_smallest_mm, seg.bore_largest_mm, seg.stiffness_reason
+    );
+    for c in list {
+        let verdict = if c.pass { "pass" } else { "FAIL" };
+        let margin = match c.margin {
+            Some(m) => format!("{m:+.3} {}", c.unit.label()),
+            None => "-".to_string(),
+        };
+        let mark = if Some(c.id) == limiting {
+            " (limiting)"
+        } else {
+            ""
+        };
+        let _ = writeln!(
+            t,
+            "{:<9} {verdict:<5} {margin:>14}  {}{mark}: {}",
+            c.id, c.title, c.reason
+        );
+    }
+    let failed = list.iter().filter(|c| !c.pass).count();
+    if failed == 0 {
+        let _ = writeln!(t, "all {} checks pass", list.len());
+    } else {
+        let _ = writeln!(t, "{failed} of {} checks fail", list.len());
+    }
+    let _ = writeln!(t, "{CAUTION}");
+    t
+}
+
+// ---------------------------------------------------------------------------------------
+// sheet
+
+fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
+    // Parse the very bytes that are hashed on the sheet.
+    let unreadable = |source| {
+        anyhow!(
+            design::DesignError::Io {
+                path: a.file.clone(),
+                source
+            }
+            .to_string()
+        )
+    };
+    let bytes = fs::read(&a.file).map_err(unreadable)?;
+    let text = std::str::from_utf8(&bytes)
+        .map_err(|e| unreadable(io::Error::new(io::ErrorKind::InvalidData, e)))?;
+    let design = design::parse(text).map_err(|e| anyhow!(e.in_file(&a.file)))?;
+    if same_file(&a.file, &a.output) {
+        bail!(
+            "{}: the sheet would overwrite the design file itself; choose another -o path",
+            a.output.display()
+        );
+    }
+    let label = a.file.display().to_string();
+    let pdf = sheet::render(&design, &label, &bytes, a.paper.into())
+        .with_context(|| format!("cannot make the sheet for {label}"))?;
+    write_atomic(&a.output, &pdf)
+        .with_context(|| format!("cannot write {}", a.output.display()))?;
+    let _ = writeln!(io::stderr(), "sheet written to {}", a.output.display());
+    Ok(Status::Done)
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (fs::canonicalize(a), fs::canonicalize(b)) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    }
+}
+
+/// Writes `bytes` to `path` through a temporary file in the same directory and a rename,
+/// so a reader never sees half a file and a failed write leaves the old one in place.
+fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    let name = path
+        .file_name()
+        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "the path names no file"))?
+        .to_string_lossy()
+        .into_owned();
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let temp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
+    let written = (|| {
+        let mut f = fs::OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&temp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        drop(f);
+        fs::rename(&temp, path)
+    })();
+    if written.is_err() {
+        let _ = fs::remove_file(&temp);
+    }
+    written
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn spacing_hits_both_ends_exactly() {
+        assert_eq!(spaced(60.1, 80.7, 0, 7), 60.1);
+        assert_eq!(spaced(60.1, 80.7, 6, 7), 80.7);
+        assert_eq!(spaced(60.0, 80.0, 1, 3), 70.0);
+    }
+
+    #[test]
+    fn number_parsers_state_the_range() {
+        assert!(stroke_mm("NaN").is_err_and(|e| e.contains(">= 0 mm")));
+        assert!(stroke_mm("-1").is_err());
+        assert_eq!(stroke_mm("2.5"), Ok(2.5));
+        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 mm")));
+        assert!(points("1").is_err_and(|e| e.contains("from 2 to")));
+        assert_eq!(points("1000000"), Ok(1_000_000));
+        assert!(points("abc").is_err());
+    }
+
+    #[test]
+    fn messages_fold_onto_one_line() {
+        assert_eq!(one_line("a\n  b\tc "), "a b c");
+    }
+}

@@ -182,7 +182,7 @@ impl Default for Design {
             strip: Strip {
                 count: 8,
                 free_length_mm: 90.0,
-                width_mm: 8.0,
+                width_mm: 12.0,
                 thickness_mm: 0.2,
                 material: MaterialChoice::Grade("ss301-full-hard".to_string()),
                 ends: Ends::Clamped,
@@ -203,7 +203,7 @@ impl Default for Design {
                 max_torque_nm: 0.5,
                 max_turns: 10.0,
             },
-            operating_stroke_mm: 3.0,
+            operating_stroke_mm: 1.85,
             duty: Duty {
                 holding_force_n: 20.0,
                 safety_factor: 2.0,
