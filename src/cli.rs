@@ -340,9 +340,14 @@ fn load(path: &Path) -> anyhow::Result<(Design, Segment)> {
 
 /// The path at the asked bore (nominal by default); a bore the relaxed segment does not
 /// fit is an error here.
-fn bore_path<'a>(seg: &'a Segment, bore_mm: Option<f64>) -> anyhow::Result<BorePath<'a>> {
+fn bore_path<'a>(
+    file: &Path,
+    seg: &'a Segment,
+    bore_mm: Option<f64>,
+) -> anyhow::Result<BorePath<'a>> {
     let bore = bore_mm.unwrap_or(seg.bore_nominal_mm);
-    seg.at_bore(bore).map_err(|e| anyhow!("{e}"))
+    seg.at_bore(bore)
+        .map_err(|e| anyhow!("{}: {e}", file.display()))
 }
 
 // ---------------------------------------------------------------------------------------
@@ -350,7 +355,7 @@ fn bore_path<'a>(seg: &'a Segment, bore_mm: Option<f64>) -> anyhow::Result<BoreP
 
 fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
-    let path = bore_path(&seg, a.bore_mm)?;
+    let path = bore_path(&a.file, &seg, a.bore_mm)?;
     let state = path.state(a.stroke_mm);
     if a.json {
         serde_json::to_writer(&mut *out, &state)?;
@@ -482,7 +487,7 @@ fn sweep_csv_row(s: &SegmentState) -> String {
 
 fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
-    let path = bore_path(&seg, a.bore_mm)?;
+    let path = bore_path(&a.file, &seg, a.bore_mm)?;
     // The strokes of `BorePath::sweep`, computed one at a time so that a long sweep
     // streams instead of collecting.
     let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());

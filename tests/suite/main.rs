@@ -2,3 +2,4 @@
 mod data_tables;
 mod elliptic_reference;
 mod small_gap;
+mod cli;
