@@ -1,5 +1,5 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
+mod cli;
 mod data_tables;
 mod elliptic_reference;
 mod small_gap;
-mod cli;
