@@ -489,10 +489,10 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
     // The strokes of `BorePath::sweep`, computed one at a time so that a long sweep
-    // streams instead of collecting.
+    // streams instead of collecting, and spaced so that the last is the end exactly.
     let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
     let n = a.points;
-    let states = (0..n).map(|i| path.state(end_mm * i as f64 / (n - 1) as f64));
+    let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
     if a.csv {
         writeln!(out, "{SWEEP_HEADER}")?;
         for s in states {
