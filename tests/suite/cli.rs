@@ -505,9 +505,11 @@ fn check_exit_status_follows_the_verdict() {
 
     // Plates larger than the bore: the fit check fails (contract: `check` reports fit
     // failed, exit 1), not an input error.
-    let mut fat = Design::default();
-    fat.end_plate_diameter_mm = 75.0;
-    fat.mount_radius_mm = 36.0;
+    let fat = Design {
+        end_plate_diameter_mm: 75.0,
+        mount_radius_mm: 36.0,
+        ..Design::default()
+    };
     let fat = tmp.design("fat.ron", &fat);
     let r = run(&["check", s(&fat)]);
     assert_eq!(r.code, Some(1), "{}", r.stderr);
