@@ -42,7 +42,8 @@ follow local codes and licensed engineering practice.";
     long_about = "Size bowed-strip expanding segments: strips, stroke, grip and stress across a \
                   bore tolerance.\n\nWithout a sub-command the desktop app opens, on FILE or on a \
                   built-in demo design.",
-    args_conflicts_with_subcommands = true
+    args_conflicts_with_subcommands = true,
+    after_help = CAUTION
 )]
 pub struct Cli {
     /// Design file (.ron) to open in the app; without it the app starts on a demo design.
