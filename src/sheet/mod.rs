@@ -1,0 +1,379 @@
+//! The printable sizing sheet: a PDF that reads like an engineering calculation, to be
+//! reviewed, signed and filed with the drawings. It holds a title block with sign-off
+//! boxes, every input with its unit, the material with its sources, the stiffness model,
+//! the results at the smallest, nominal and largest bore, every check with its margin,
+//! vector plots, a side and an end view to scale, the model's assumptions and limits,
+//! references and the safety cautions.
+//!
+//! The sheet is laid out in two steps: sections are built as measured blocks
+//! (`sections`), then placed on pages (`paginate`), breaking to a new page before a
+//! section that would not fit. [`layout`] returns where everything landed, so tests can
+//! hold every section and every text line inside the printable area; [`render`] writes
+//! the same layout to PDF with krilla, the text real and selectable, the two embedded
+//! faces subset.
+
+mod draw;
+mod font;
+mod format;
+mod plot;
+mod sections;
+
+use krilla::Document;
+use krilla::metadata::Metadata;
+use krilla::page::PageSettings;
+use sha2::{Digest, Sha256};
+
+use crate::analysis;
+use crate::design::Design;
+use draw::{Block, GREY, INK, Mark};
+use font::Weight;
+
+pub use format::{civil_from_days, utc_stamp};
+
+/// Paper size of the sheet.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum Paper {
+    /// ISO A4, 210 x 297 mm.
+    #[default]
+    A4,
+    /// US Letter, 8.5 x 11 in.
+    Letter,
+}
+
+impl Paper {
+    /// Width and height in PDF points (1/72 in).
+    pub fn size_pt(self) -> (f32, f32) {
+        match self {
+            Paper::A4 => (595.276, 841.89),
+            Paper::Letter => (612.0, 792.0),
+        }
+    }
+
+    /// Name as printed.
+    pub fn name(self) -> &'static str {
+        match self {
+            Paper::A4 => "A4",
+            Paper::Letter => "Letter",
+        }
+    }
+}
+
+/// Margin on every side, points (15 mm).
+pub const MARGIN_PT: f32 = 42.52;
+/// Height of the running header on every page, inside the top margin's printable area.
+const HEADER_PT: f32 = 30.0;
+/// Height of the running footer, inside the printable area.
+const FOOTER_PT: f32 = 22.0;
+/// Space between sections.
+const GAP_PT: f32 = 14.0;
+
+/// Where one section (or one part of a section split over pages) landed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SectionExtent {
+    /// The section's title.
+    pub title: String,
+    /// Page number, from 1.
+    pub page: usize,
+    /// Top edge, points from the top of the page.
+    pub top_pt: f32,
+    /// Bottom edge, points from the top of the page.
+    pub bottom_pt: f32,
+}
+
+/// Where one line of text landed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TextExtent {
+    /// Page number, from 1.
+    pub page: usize,
+    /// Left edge, points.
+    pub left_pt: f32,
+    /// Right edge (left plus the measured advance), points.
+    pub right_pt: f32,
+    /// Baseline, points from the top of the page.
+    pub baseline_pt: f32,
+    /// Font size, points.
+    pub size_pt: f32,
+    /// The text.
+    pub text: String,
+}
+
+/// The laid-out sheet: page size, printable area and where everything landed.
+#[derive(Clone, Debug)]
+pub struct SheetLayout {
+    /// Paper used.
+    pub paper: Paper,
+    /// Page width, points.
+    pub page_width_pt: f32,
+    /// Page height, points.
+    pub page_height_pt: f32,
+    /// Printable area `[left, top, right, bottom]` in points from the top left.
+    pub printable_pt: [f32; 4],
+    /// Number of pages.
+    pub pages: usize,
+    /// Every section part, in order.
+    pub sections: Vec<SectionExtent>,
+    /// Every line of text, in order.
+    pub texts: Vec<TextExtent>,
+    placed: Vec<Vec<Mark>>,
+}
+
+/// Everything the sections print that is not in the analysis itself.
+pub(crate) struct SheetMeta {
+    file_label: String,
+    hash16: String,
+    version: &'static str,
+    date: String,
+    paper: Paper,
+}
+
+/// A section: a title and blocks kept together when they fit a page. A section taller
+/// than a page breaks between its blocks.
+pub(crate) struct Section {
+    title: String,
+    blocks: Vec<Block>,
+}
+
+/// First 16 hex digits of the SHA-256 of `bytes`.
+pub fn content_hash16(bytes: &[u8]) -> String {
+    let digest = Sha256::digest(bytes);
+    digest.iter().take(8).map(|b| format!("{b:02x}")).collect()
+}
+
+/// Lays the sheet out (with the given date text) without writing the PDF.
+pub fn layout_dated(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    date: &str,
+) -> anyhow::Result<SheetLayout> {
+    font::faces()?;
+    let analysis = analysis::analyse(design)
+        .map_err(|e| anyhow::anyhow!("cannot print a sheet for {file_label}: {e}"))?;
+    let meta = SheetMeta {
+        file_label: file_label.to_string(),
+        hash16: content_hash16(file_bytes),
+        version: env!("CARGO_PKG_VERSION"),
+        date: date.to_string(),
+        paper,
+    };
+    let (w, h) = paper.size_pt();
+    let printable = [MARGIN_PT, MARGIN_PT, w - MARGIN_PT, h - MARGIN_PT];
+    let content_w = printable[2] - printable[0];
+    let sections = sections::build(&analysis, &meta, content_w);
+    Ok(paginate(
+        sections, &meta, &analysis, paper, printable, design,
+    ))
+}
+
+/// Lays the sheet out, dated now (UTC).
+pub fn layout(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+) -> anyhow::Result<SheetLayout> {
+    layout_dated(design, file_label, file_bytes, paper, &format::now_utc())
+}
+
+/// Renders the sheet for `design` to PDF bytes. `file_label` names the design file and
+/// `file_bytes` are its contents (hashed on the sheet).
+pub fn render(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+) -> anyhow::Result<Vec<u8>> {
+    let laid = layout(design, file_label, file_bytes, paper)?;
+    write_pdf(&laid, design)
+}
+
+/// Writes a laid-out sheet to PDF bytes.
+pub fn write_pdf(laid: &SheetLayout, design: &Design) -> anyhow::Result<Vec<u8>> {
+    let mut document = Document::new();
+    let title = if design.title.trim().is_empty() {
+        "bowgrip sizing sheet".to_string()
+    } else {
+        design.title.clone()
+    };
+    document.set_metadata(
+        Metadata::new()
+            .title(title)
+            .creator(format!("bowgrip {}", env!("CARGO_PKG_VERSION")))
+            .description("Sizing calculation of a bowed-strip expanding segment".to_string()),
+    );
+    for marks in &laid.placed {
+        let settings = PageSettings::from_wh(laid.page_width_pt, laid.page_height_pt)
+            .ok_or_else(|| anyhow::anyhow!("invalid page size"))?;
+        let mut page = document.start_page_with(settings);
+        let mut surface = page.surface();
+        draw::emit(&mut surface, marks)?;
+        surface.finish();
+        page.finish();
+    }
+    document
+        .finish()
+        .map_err(|e| anyhow::anyhow!("the PDF could not be written: {e:?}"))
+}
+
+fn paginate(
+    sections: Vec<Section>,
+    meta: &SheetMeta,
+    analysis: &analysis::Analysis,
+    paper: Paper,
+    printable: [f32; 4],
+    design: &Design,
+) -> SheetLayout {
+    let (w, h) = paper.size_pt();
+    let [left, top, right, bottom] = printable;
+    let body_top = |page: usize| if page == 0 { top } else { top + HEADER_PT };
+    let body_bottom = bottom - FOOTER_PT;
+    let mut pages: Vec<Vec<Mark>> = vec![Vec::new()];
+    let mut extents = Vec::new();
+    let mut y = body_top(0);
+    for section in sections {
+        let total: f32 = section.blocks.iter().map(|b| b.height).sum();
+        let page_room = body_bottom - body_top(pages.len());
+        let fresh = y <= body_top(pages.len() - 1) + 0.5;
+        if y + total > body_bottom && !fresh && total <= page_room {
+            pages.push(Vec::new());
+            y = body_top(pages.len() - 1);
+        }
+        let mut part_top = y;
+        for block in &section.blocks {
+            let fresh = y <= body_top(pages.len() - 1) + 0.5;
+            if y + block.height > body_bottom && !fresh {
+                extents.push(SectionExtent {
+                    title: section.title.clone(),
+                    page: pages.len(),
+                    top_pt: part_top,
+                    bottom_pt: y,
+                });
+                pages.push(Vec::new());
+                y = body_top(pages.len() - 1);
+                part_top = y;
+            }
+            let page = pages.len() - 1;
+            pages[page].extend(block.marks.iter().map(|m| m.shifted(left, y)));
+            y += block.height;
+        }
+        extents.push(SectionExtent {
+            title: section.title.clone(),
+            page: pages.len(),
+            top_pt: part_top,
+            bottom_pt: y,
+        });
+        y += GAP_PT;
+    }
+    let count = pages.len();
+    for (i, marks) in pages.iter_mut().enumerate() {
+        let mut frame = Block::new();
+        let cw = right - left;
+        if i > 0 {
+            let title = if design.title.trim().is_empty() {
+                "(untitled design)"
+            } else {
+                design.title.trim()
+            };
+            let title = fit(title, cw - 120.0, 8.5, Weight::Bold);
+            frame.text(0.0, 9.0, 8.5, Weight::Bold, title);
+            frame.text_right(
+                cw,
+                9.0,
+                8.5,
+                Weight::Bold,
+                format!("Sheet {} of {count}", i + 1),
+            );
+            let file = fit(
+                &format!("{}  ·  SHA-256 {}", meta.file_label, meta.hash16),
+                cw - 150.0,
+                7.5,
+                Weight::Regular,
+            );
+            frame.text_in(0.0, 20.0, 7.5, Weight::Regular, GREY, file);
+            let d = format!("bowgrip {}  ·  {}", meta.version, meta.date);
+            let dw = draw::text_width(&d, 7.5, Weight::Regular);
+            frame.text_in(cw - dw, 20.0, 7.5, Weight::Regular, GREY, d);
+            frame.line([0.0, 24.0], [cw, 24.0], 0.6, INK);
+        }
+        let fy = bottom - top - FOOTER_PT + 8.0;
+        frame.line([0.0, fy], [cw, fy], 0.4, GREY);
+        let verdict = if crate::checks::all_pass(&analysis.checks) {
+            "all checks pass"
+        } else {
+            "CHECKS FAIL: see the check table"
+        };
+        frame.text_in(
+            0.0,
+            fy + 10.0,
+            7.0,
+            Weight::Regular,
+            GREY,
+            format!(
+                "Strips store spring energy and can snap; end plates pinch. Model results: confirm by test and local codes. Design {verdict}."
+            ),
+        );
+        frame.text_right(
+            cw,
+            fy + 10.0,
+            7.0,
+            Weight::Regular,
+            format!("{} of {count}", i + 1),
+        );
+        marks.extend(frame.marks.iter().map(|m| m.shifted(left, top)));
+        // The title block prints "Sheet 1 of N" once the count is known.
+        for m in marks.iter_mut() {
+            if let Mark::Text { text, .. } = m
+                && text.contains(sections::PAGE_COUNT_SLOT)
+            {
+                *text = text.replace(sections::PAGE_COUNT_SLOT, &count.to_string());
+            }
+        }
+    }
+    let texts = pages
+        .iter()
+        .enumerate()
+        .flat_map(|(i, marks)| {
+            marks.iter().filter_map(move |m| match m {
+                Mark::Text {
+                    x,
+                    y,
+                    size,
+                    weight,
+                    text,
+                    ..
+                } if !text.is_empty() => Some(TextExtent {
+                    page: i + 1,
+                    left_pt: *x,
+                    right_pt: x + draw::text_width(text, *size, *weight),
+                    baseline_pt: *y,
+                    size_pt: *size,
+                    text: text.clone(),
+                }),
+                _ => None,
+            })
+        })
+        .collect();
+    SheetLayout {
+        paper,
+        page_width_pt: w,
+        page_height_pt: h,
+        printable_pt: printable,
+        pages: count,
+        sections: extents,
+        texts,
+        placed: pages,
+    }
+}
+
+/// `text` shortened with an ellipsis to fit `width`.
+pub(crate) fn fit(text: &str, width: f32, size: f32, weight: Weight) -> String {
+    if draw::text_width(text, size, weight) <= width {
+        return text.to_string();
+    }
+    let mut s: String = text.to_string();
+    while !s.is_empty() && draw::text_width(&format!("{s}…"), size, weight) > width {
+        s.pop();
+    }
+    format!("{s}…")
+}

@@ -1,0 +1,304 @@
+//! Vector x-y plots for the sheet: a framed plot area with ticks at round values,
+//! tick labels, axis titles with units, series drawn as clipped polylines (a `None`
+//! breaks the line), horizontal and vertical reference lines, shaded bands and a legend
+//! below the frame.
+
+use super::draw::{Block, GREY, INK, LIGHT, Rgb};
+use super::font::Weight;
+use super::format::fixed;
+
+/// How a series is stroked.
+#[derive(Clone, Debug)]
+pub struct Pen {
+    /// Line colour.
+    pub color: Rgb,
+    /// Line width, points.
+    pub width: f32,
+    /// Dash pattern, points (solid when `None`).
+    pub dash: Option<Vec<f32>>,
+}
+
+impl Pen {
+    /// A solid pen.
+    pub fn solid(color: Rgb, width: f32) -> Pen {
+        Pen {
+            color,
+            width,
+            dash: None,
+        }
+    }
+
+    /// A dashed pen.
+    pub fn dashed(color: Rgb, width: f32, dash: &[f32]) -> Pen {
+        Pen {
+            color,
+            width,
+            dash: Some(dash.to_vec()),
+        }
+    }
+}
+
+/// Something drawn in a plot.
+#[derive(Clone, Debug)]
+pub enum Item {
+    /// A data series; `None` y values break the line.
+    Series {
+        label: String,
+        pen: Pen,
+        points: Vec<(f64, Option<f64>)>,
+    },
+    /// A horizontal line at `y` across the plot.
+    HLine { label: String, pen: Pen, y: f64 },
+    /// A vertical line at `x` across the plot.
+    VLine { label: String, pen: Pen, x: f64 },
+    /// A shaded band between `x0` and `x1`.
+    Band {
+        label: String,
+        color: Rgb,
+        x0: f64,
+        x1: f64,
+    },
+}
+
+/// A plot to lay out.
+#[derive(Clone, Debug)]
+pub struct Plot {
+    /// Title above the frame.
+    pub title: String,
+    /// Axis title with unit, e.g. "bore diameter (mm)".
+    pub x_label: String,
+    /// Axis title with unit.
+    pub y_label: String,
+    /// Data range on x.
+    pub x_range: (f64, f64),
+    /// Data range on y.
+    pub y_range: (f64, f64),
+    /// What to draw, back to front.
+    pub items: Vec<Item>,
+}
+
+/// Round tick positions covering `[lo, hi]`, about `target` of them, and the number of
+/// decimals their labels need.
+pub fn ticks(lo: f64, hi: f64, target: usize) -> (Vec<f64>, usize) {
+    let span = hi - lo;
+    if !(span.is_finite() && span > 0.0) {
+        return (vec![lo], 3);
+    }
+    let raw = span / target.max(2) as f64;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|f| f * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
+    let first = (lo / step).ceil() * step;
+    let mut out = Vec::new();
+    let mut i = 0.0;
+    while first + i * step <= hi + 1e-9 * span {
+        out.push(first + i * step);
+        i += 1.0;
+    }
+    let decimals = (0..6)
+        .find(|&d| {
+            let s = step * 10f64.powi(d);
+            (s - s.round()).abs() < 1e-6 * s.max(1.0)
+        })
+        .unwrap_or(6) as usize;
+    (out, decimals)
+}
+
+/// Widens a range that is empty or inverted so it can be drawn.
+pub fn usable_range(lo: f64, hi: f64) -> (f64, f64) {
+    if !(lo.is_finite() && hi.is_finite()) {
+        return (0.0, 1.0);
+    }
+    if hi > lo {
+        (lo, hi)
+    } else {
+        let pad = lo.abs().max(1.0) * 0.05;
+        (lo - pad, lo + pad)
+    }
+}
+
+const TICK_SIZE: f32 = 7.0;
+const LABEL_SIZE: f32 = 8.0;
+const LEGEND_SIZE: f32 = 7.5;
+
+impl Plot {
+    /// Lays the plot out in a block `width` points wide with a frame `frame_height` tall.
+    pub fn layout(&self, width: f32, frame_height: f32) -> Block {
+        let mut b = Block::new();
+        let (xlo, xhi) = usable_range(self.x_range.0, self.x_range.1);
+        let (ylo, yhi) = usable_range(self.y_range.0, self.y_range.1);
+        let (xt, xd) = ticks(xlo, xhi, 6);
+        let (yt, yd) = ticks(ylo, yhi, 5);
+        let y_tick_w = yt
+            .iter()
+            .map(|v| super::draw::text_width(&fixed(*v, yd), TICK_SIZE, Weight::Regular))
+            .fold(0.0f32, f32::max);
+        let left = 14.0 + y_tick_w + 6.0;
+        let top = 26.0;
+        let right = width - 6.0;
+        let bottom = top + frame_height;
+        let fw = right - left;
+        let fh = bottom - top;
+        let px = |x: f64| left + ((x - xlo) / (xhi - xlo)) as f32 * fw;
+        let py = |y: f64| bottom - ((y - ylo) / (yhi - ylo)) as f32 * fh;
+
+        b.text(0.0, 9.0, 9.0, Weight::Bold, self.title.clone());
+        // Bands first, then the grid, then lines.
+        for item in &self.items {
+            if let Item::Band { color, x0, x1, .. } = item {
+                let (a, c) = (px(x0.max(xlo)), px(x1.min(xhi)));
+                if c > a {
+                    b.fill_rect(a, top, c - a, fh, *color);
+                }
+            }
+        }
+        for &v in &xt {
+            let x = px(v);
+            b.line([x, top], [x, bottom], 0.3, LIGHT);
+            b.line([x, bottom], [x, bottom + 3.0], 0.5, INK);
+            b.text_centre(
+                x,
+                bottom + 11.0,
+                TICK_SIZE,
+                Weight::Regular,
+                INK,
+                fixed(v, xd),
+            );
+        }
+        for &v in &yt {
+            let y = py(v);
+            b.line([left, y], [right, y], 0.3, LIGHT);
+            b.line([left - 3.0, y], [left, y], 0.5, INK);
+            b.text_right(
+                left - 4.0,
+                y + 2.5,
+                TICK_SIZE,
+                Weight::Regular,
+                fixed(v, yd),
+            );
+        }
+        b.text_centre(
+            0.5 * (left + right),
+            bottom + 22.0,
+            LABEL_SIZE,
+            Weight::Regular,
+            INK,
+            self.x_label.clone(),
+        );
+        // The y title sits above the tick labels (no rotated text: it stays easy to read and search).
+        b.text(
+            left - y_tick_w - 4.0,
+            top - 2.0,
+            LABEL_SIZE,
+            Weight::Regular,
+            self.y_label.clone(),
+        );
+
+        b.marks
+            .push(super::draw::Mark::Clip([left, top, right, bottom]));
+        for item in &self.items {
+            match item {
+                Item::Series { pen, points, .. } => {
+                    let mut run: Vec<[f32; 2]> = Vec::new();
+                    for (x, y) in points {
+                        match y.filter(|v| v.is_finite()) {
+                            Some(y) => run
+                                .push([px(*x), py(y.clamp(ylo - (yhi - ylo), yhi + (yhi - ylo)))]),
+                            None => {
+                                b.polyline(
+                                    std::mem::take(&mut run),
+                                    pen.width,
+                                    pen.color,
+                                    pen.dash.clone(),
+                                );
+                            }
+                        }
+                    }
+                    if run.len() == 1 {
+                        // A lone point: a short tick so it still shows.
+                        let [x, y] = run[0];
+                        run = vec![[x - 1.5, y], [x + 1.5, y]];
+                    }
+                    b.polyline(run, pen.width, pen.color, pen.dash.clone());
+                }
+                Item::HLine { pen, y, .. } if y.is_finite() => {
+                    b.polyline(
+                        vec![[left, py(*y)], [right, py(*y)]],
+                        pen.width,
+                        pen.color,
+                        pen.dash.clone(),
+                    );
+                }
+                Item::VLine { pen, x, .. } if x.is_finite() => {
+                    b.polyline(
+                        vec![[px(*x), top], [px(*x), bottom]],
+                        pen.width,
+                        pen.color,
+                        pen.dash.clone(),
+                    );
+                }
+                _ => {}
+            }
+        }
+        b.marks.push(super::draw::Mark::Unclip);
+        b.rect(left, top, fw, fh, 0.6, INK);
+
+        // Legend: entries flow left to right in rows below the axis title.
+        let mut lx = left;
+        let mut ly = bottom + 34.0;
+        for item in &self.items {
+            let (label, sample) = match item {
+                Item::Series { label, pen, .. }
+                | Item::HLine { label, pen, .. }
+                | Item::VLine { label, pen, .. } => (label, Some(pen)),
+                Item::Band { label, .. } => (label, None),
+            };
+            if label.is_empty() {
+                continue;
+            }
+            let w = 20.0 + super::draw::text_width(label, LEGEND_SIZE, Weight::Regular) + 12.0;
+            if lx + w > right && lx > left {
+                lx = left;
+                ly += 10.0;
+            }
+            match (sample, item) {
+                (Some(pen), _) => b.polyline(
+                    vec![[lx, ly - 2.5], [lx + 16.0, ly - 2.5]],
+                    pen.width.max(0.8),
+                    pen.color,
+                    pen.dash.clone(),
+                ),
+                (None, Item::Band { color, .. }) => {
+                    b.fill_rect(lx, ly - 6.0, 16.0, 7.0, *color);
+                    b.rect(lx, ly - 6.0, 16.0, 7.0, 0.3, GREY);
+                }
+                _ => {}
+            }
+            b.text(lx + 20.0, ly, LEGEND_SIZE, Weight::Regular, label.clone());
+            lx += w;
+        }
+        b.height = ly + 6.0;
+        b
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_are_round_and_cover_the_range() {
+        let (t, d) = ticks(69.1, 70.9, 6);
+        assert_eq!(d, 1);
+        assert!(t.first().is_some_and(|v| *v >= 69.1) && t.last().is_some_and(|v| *v <= 70.9));
+        assert!(t.len() >= 4 && t.len() <= 10, "{t:?}");
+        for v in &t {
+            assert!(((v * 10.0).round() - v * 10.0).abs() < 1e-6);
+        }
+        let (t, d) = ticks(0.0, 1000.0, 5);
+        assert_eq!((t.len(), d), (6, 0));
+    }
+}

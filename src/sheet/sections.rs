@@ -1,0 +1,1550 @@
+//! The sheet's sections, each built as measured blocks at the content width: title block,
+//! result summary, inputs, material and stiffness model, results at the three bores,
+//! checks, the two plots, the side and end views, the model's assumptions and limits,
+//! references and safety cautions. Numbers go through `format` only.
+
+use std::f64::consts::PI;
+
+use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, text_width, wrap};
+use super::font::Weight;
+use super::format::{self as f, NONE};
+use super::plot::{Item, Pen, Plot};
+use super::{Section, SheetMeta, fit};
+use crate::analysis::{Analysis, BoreCase, BoreResult};
+use crate::checks::{self, MarginUnit};
+use crate::design::{Actuator, MaterialChoice, Stiffness};
+use crate::segment::SegmentState;
+
+/// Replaced by the page count once pagination knows it.
+pub const PAGE_COUNT_SLOT: &str = "\u{1}N\u{1}";
+
+const BODY: f32 = 8.5;
+const SMALL: f32 = 7.5;
+const LEAD: f32 = 1.25;
+
+const BLUE: Rgb = (20, 70, 170);
+const ORANGE: Rgb = (210, 110, 0);
+const PURPLE: Rgb = (120, 40, 140);
+const BAND: Rgb = (215, 228, 245);
+const SHADE: Rgb = (238, 238, 238);
+const WARN: Rgb = (255, 236, 200);
+
+/// Builds every section.
+pub fn build(a: &Analysis, meta: &SheetMeta, width: f32) -> Vec<Section> {
+    let mut out = vec![
+        title_block(a, meta, width),
+        summary(a, width),
+        inputs(a, width),
+        check_table(a, width),
+        material(a, width),
+        bore_results(a, width),
+        window_plot(a, width),
+        views(a, meta, width),
+        curve_plots(a, width),
+    ];
+    out.extend(text_sections(width));
+    out
+}
+
+fn heading(title: &str, width: f32) -> Block {
+    let mut b = Block::new();
+    b.text(0.0, 11.0, 11.0, Weight::Bold, title);
+    b.line([0.0, 15.0], [width, 15.0], 0.8, INK);
+    b.height = 22.0;
+    b
+}
+
+fn section(title: &str, width: f32, body: Vec<Block>) -> Section {
+    let mut blocks = body;
+    if let Some(first) = blocks.first_mut() {
+        let h = heading(title, width);
+        let mut joined = h.clone();
+        joined.append(first, 0.0, h.height);
+        joined.height = h.height + first.height;
+        *first = joined;
+    } else {
+        blocks.push(heading(title, width));
+    }
+    Section {
+        title: title.to_string(),
+        blocks,
+    }
+}
+
+/// A table column.
+struct Col {
+    width: f32,
+    right: bool,
+}
+
+fn col(width: f32) -> Col {
+    Col {
+        width,
+        right: false,
+    }
+}
+
+fn rcol(width: f32) -> Col {
+    Col { width, right: true }
+}
+
+/// A table row.
+#[derive(Default)]
+struct Row {
+    cells: Vec<String>,
+    bold: bool,
+    shade: Option<Rgb>,
+    colors: Vec<Option<Rgb>>,
+}
+
+fn row<S: Into<String>>(cells: impl IntoIterator<Item = S>) -> Row {
+    Row {
+        cells: cells.into_iter().map(Into::into).collect(),
+        ..Row::default()
+    }
+}
+
+/// A table with wrapped cells and a bold header row; `header` may be empty.
+fn table(header: &[&str], cols: &[Col], rows: &[Row], size: f32) -> Block {
+    let mut b = Block::new();
+    let pad = 3.0;
+    let lead = LEAD * size;
+    let total: f32 = cols.iter().map(|c| c.width).sum();
+    let mut y = 0.0;
+    let draw_row = |b: &mut Block,
+                    cells: &[String],
+                    bold: bool,
+                    shade: Option<Rgb>,
+                    colors: &[Option<Rgb>],
+                    y: &mut f32| {
+        let weight = if bold { Weight::Bold } else { Weight::Regular };
+        let wrapped: Vec<Vec<String>> = cols
+            .iter()
+            .enumerate()
+            .map(|(i, c)| {
+                wrap(
+                    cells.get(i).map_or("", String::as_str),
+                    c.width - 2.0 * pad,
+                    size,
+                    weight,
+                )
+            })
+            .collect();
+        let lines = wrapped.iter().map(Vec::len).max().unwrap_or(1).max(1);
+        let h = lines as f32 * lead + 2.0 * pad - 1.0;
+        if let Some(s) = shade {
+            b.fill_rect(0.0, *y, total, h, s);
+        }
+        let mut x = 0.0;
+        for (i, (c, ls)) in cols.iter().zip(&wrapped).enumerate() {
+            let color = colors.get(i).copied().flatten().unwrap_or(INK);
+            for (j, l) in ls.iter().enumerate() {
+                let base = *y + pad + size * 0.9 + j as f32 * lead;
+                if c.right {
+                    let w = text_width(l, size, weight);
+                    b.text_in(x + c.width - pad - w, base, size, weight, color, l.clone());
+                } else {
+                    b.text_in(x + pad, base, size, weight, color, l.clone());
+                }
+            }
+            x += c.width;
+        }
+        *y += h;
+        b.line([0.0, *y], [total, *y], 0.3, LIGHT);
+    };
+    if !header.is_empty() {
+        let cells: Vec<String> = header.iter().map(|s| s.to_string()).collect();
+        draw_row(&mut b, &cells, true, None, &[], &mut y);
+        b.line([0.0, y], [total, y], 0.6, INK);
+    }
+    for r in rows {
+        draw_row(&mut b, &r.cells, r.bold, r.shade, &r.colors, &mut y);
+    }
+    b.height = y + 2.0;
+    b
+}
+
+/// A sub-heading inside a section.
+fn subhead(b: &mut Block, y: &mut f32, text: &str) {
+    *y += 4.0;
+    b.text(0.0, *y + 9.0, 9.0, Weight::Bold, text);
+    *y += 13.0;
+}
+
+fn title_block(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
+    let mut b = Block::new();
+    let d = &a.segment.design;
+    b.text_in(
+        6.0,
+        12.0,
+        8.0,
+        Weight::Bold,
+        GREY,
+        "SIZING CALCULATION  ·  BOWED-STRIP EXPANDING SEGMENT",
+    );
+    let title = if d.title.trim().is_empty() {
+        "(untitled design)".to_string()
+    } else {
+        d.title.trim().to_string()
+    };
+    let mut y = 28.0;
+    for line in wrap(&title, width - 12.0, 14.0, Weight::Bold)
+        .into_iter()
+        .take(3)
+    {
+        b.text(6.0, y, 14.0, Weight::Bold, line);
+        y += 17.0;
+    }
+    y -= 6.0;
+    b.line([0.0, y], [width, y], 0.6, INK);
+    let half = 0.5 * width;
+    let fields = [
+        (
+            "Design file",
+            meta.file_label.clone(),
+            "SHA-256 of the file (first 16 hex digits)",
+            meta.hash16.clone(),
+        ),
+        (
+            "Program",
+            format!("bowgrip {}", meta.version),
+            "Printed (UTC)",
+            meta.date.clone(),
+        ),
+        (
+            "Paper",
+            meta.paper.name().to_string(),
+            "Sheet",
+            format!("1 of {PAGE_COUNT_SLOT}"),
+        ),
+    ];
+    for (l1, v1, l2, v2) in fields {
+        b.text_in(6.0, y + 9.0, 6.5, Weight::Regular, GREY, l1);
+        b.text(
+            6.0,
+            y + 20.0,
+            9.0,
+            Weight::Bold,
+            fit(&v1, half - 12.0, 9.0, Weight::Bold),
+        );
+        b.text_in(half + 6.0, y + 9.0, 6.5, Weight::Regular, GREY, l2);
+        b.text(
+            half + 6.0,
+            y + 20.0,
+            9.0,
+            Weight::Bold,
+            fit(&v2, half - 12.0, 9.0, Weight::Bold),
+        );
+        b.line([half, y], [half, y + 25.0], 0.4, INK);
+        y += 25.0;
+        b.line([0.0, y], [width, y], 0.4, INK);
+    }
+    // Sign-off boxes.
+    let cols = [0.22, 0.30, 0.30, 0.18].map(|f| f * width);
+    let heads = ["", "Name", "Signature", "Date"];
+    let mut x = 0.0;
+    for (c, h) in cols.iter().zip(heads) {
+        b.text_in(x + 6.0, y + 9.0, 6.5, Weight::Regular, GREY, h);
+        x += c;
+    }
+    y += 12.0;
+    for role in ["Calculated by", "Checked by", "Approved by"] {
+        b.line([0.0, y], [width, y], 0.4, INK);
+        b.text(6.0, y + 15.0, 9.0, Weight::Bold, role);
+        y += 24.0;
+    }
+    let mut x = 0.0;
+    for c in &cols[..3] {
+        x += c;
+        b.line([x, y - 72.0 - 12.0], [x, y], 0.4, INK);
+    }
+    b.rect(0.0, 0.0, width, y, 1.0, INK);
+    b.height = y;
+    Section {
+        title: "Title block".to_string(),
+        blocks: vec![b],
+    }
+}
+
+fn state_of(r: &BoreResult) -> Option<&SegmentState> {
+    r.operating.as_ref().ok()
+}
+
+fn bore(a: &Analysis, case: BoreCase) -> Option<&BoreResult> {
+    a.bores.iter().find(|r| r.case == case)
+}
+
+fn summary(a: &Analysis, width: f32) -> Section {
+    let mut b = Block::new();
+    let failed = a.checks.iter().filter(|c| !c.pass).count();
+    let n = a.checks.len();
+    let (text, color) = if failed == 0 {
+        (format!("ALL {n} CHECKS PASS"), GREEN)
+    } else {
+        (
+            format!("{failed} OF {n} CHECKS FAIL: THE DESIGN IS NOT ACCEPTABLE AS ENTERED"),
+            RED,
+        )
+    };
+    b.fill_rect(
+        0.0,
+        0.0,
+        width,
+        20.0,
+        if failed == 0 { SHADE } else { WARN },
+    );
+    b.text_in(6.0, 14.0, 11.0, Weight::Bold, color, text);
+    let mut y = 32.0;
+    if let Some(i) = a.limiting
+        && let Some(c) = a.checks.get(i)
+    {
+        let m = margin_text(c.margin, c.unit);
+        y = b.paragraph(
+            0.0,
+            y,
+            width,
+            BODY,
+            Weight::Regular,
+            INK,
+            &format!(
+                "Limiting check: {} [{}], {}, margin {m}. Reason: {}.",
+                c.title,
+                c.id,
+                if c.pass { "passes" } else { "fails" },
+                c.reason
+            ),
+        );
+    }
+    for r in &a.bores {
+        if let Err(e) = &r.operating {
+            y = b.paragraph(
+                0.0,
+                y,
+                width,
+                BODY,
+                Weight::Bold,
+                RED,
+                &format!(
+                    "No model state at the {} bore ({}): {e}.",
+                    r.case.label(),
+                    f::mm(r.bore_mm)
+                ),
+            ) + 2.0;
+        } else if let Some(s) = state_of(r)
+            && s.phase == "beyond-limit"
+        {
+            let why = s.reason.clone().unwrap_or_default();
+            y = b.paragraph(
+                0.0,
+                y,
+                width,
+                BODY,
+                Weight::Bold,
+                RED,
+                &format!(
+                    "At the {} bore ({}) the operating stroke is {why}.",
+                    r.case.label(),
+                    f::mm(r.bore_mm)
+                ),
+            ) + 2.0;
+        }
+    }
+    let d = &a.segment.design;
+    if let Some(s) = bore(a, BoreCase::Nominal).and_then(state_of)
+        && let (Some(h), Some(p)) = (s.holding_force_n, s.actuator_force_n)
+    {
+        let req = d.duty.holding_force_n * d.duty.safety_factor;
+        let act = s.actuator.map_or(String::new(), |r| {
+            format!(", actuator effort {}", f::in_unit(r.effort, r.effort_unit))
+        });
+        y = b.paragraph(
+            0.0,
+            y,
+            width,
+            BODY,
+            Weight::Regular,
+            INK,
+            &format!(
+                "At the operating stroke {} in the nominal bore {}: {}, holding force {} against {} required ({} x safety factor {}), actuator pull {}{act}.",
+                f::mm(d.operating_stroke_mm),
+                f::mm(a.segment.bore_nominal_mm),
+                s.phase,
+                f::newton(h),
+                f::newton(req),
+                f::newton(d.duty.holding_force_n),
+                f::factor(d.duty.safety_factor),
+                f::newton(p)
+            ),
+        );
+    }
+    b.height = y - 4.0;
+    section("Result", width, vec![b])
+}
+
+fn margin_text(m: Option<f64>, unit: MarginUnit) -> String {
+    match (m, unit) {
+        (None, _) => NONE.to_string(),
+        (Some(v), MarginUnit::Mm) => f::mm(v),
+        (Some(v), MarginUnit::Ratio) => format!("{} ({}%)", f::factor(v), f::fixed(100.0 * v, 1)),
+    }
+}
+
+/// A two-column label/value list.
+fn kv(rows: &[(String, String)], width: f32) -> Block {
+    let lw = 0.5 * width;
+    let rows: Vec<Row> = rows
+        .iter()
+        .map(|(k, v)| row([k.clone(), v.clone()]))
+        .collect();
+    table(&[], &[col(lw), rcol(width - lw)], &rows, BODY)
+}
+
+fn pair(k: &str, v: String) -> (String, String) {
+    (k.to_string(), v)
+}
+
+fn inputs(a: &Analysis, width: f32) -> Section {
+    let seg = &a.segment;
+    let d = &seg.design;
+    let s = &d.strip;
+    let cw = 0.5 * width - 8.0;
+    let mut left = Block::new();
+    let mut y = 0.0;
+    let group = |b: &mut Block, y: &mut f32, title: &str, rows: Vec<(String, String)>| {
+        subhead(b, y, title);
+        let t = kv(&rows, cw);
+        b.append(&t, 0.0, *y);
+        *y += t.height;
+    };
+    let grade = match &s.material {
+        MaterialChoice::Grade(id) => format!("{id} (library)"),
+        MaterialChoice::Custom { name, .. } => format!("{name} (custom entry)"),
+    };
+    let stiffness = match s.stiffness {
+        Stiffness::Auto => "auto",
+        Stiffness::Beam => "beam",
+        Stiffness::Plate => "plate",
+    };
+    group(
+        &mut left,
+        &mut y,
+        "Strips",
+        vec![
+            pair("Strip count N", s.count.to_string()),
+            pair("Free length L", f::mm(s.free_length_mm)),
+            pair("Width b", f::mm(s.width_mm)),
+            pair("Thickness t", f::mm(s.thickness_mm)),
+            pair("Grade", grade),
+            pair("End fixity", s.ends.name().to_string()),
+            pair("Stiffness setting", stiffness.to_string()),
+        ],
+    );
+    group(
+        &mut left,
+        &mut y,
+        "Hub and end plates",
+        vec![
+            pair(
+                "Mount radius r_m (strip centreline)",
+                f::mm(d.mount_radius_mm),
+            ),
+            pair("End-plate diameter", f::mm(d.end_plate_diameter_mm)),
+        ],
+    );
+    let mut bore_rows = Vec::new();
+    if let Some(p) = &d.bore.pipe {
+        bore_rows.push(pair(
+            "Pipe (ASME B36.10M)",
+            format!("NPS {} schedule {}", p.nps, p.schedule),
+        ));
+        if let Some(size) = crate::pipe::find(&p.nps, &p.schedule) {
+            bore_rows.push(pair("Outside diameter", f::mm(size.outside_diameter_mm)));
+            bore_rows.push(pair("Nominal wall", f::mm(size.wall_mm)));
+        }
+        bore_rows.push(pair(
+            "Nominal bore (OD - 2 x wall)",
+            f::mm(seg.bore_nominal_mm),
+        ));
+    } else {
+        bore_rows.push(pair("Nominal bore D", f::mm(seg.bore_nominal_mm)));
+    }
+    bore_rows.push(pair(
+        "Tolerance minus / plus",
+        format!("{} / {}", f::mm(d.bore.minus_mm), f::mm(d.bore.plus_mm)),
+    ));
+    bore_rows.push(pair(
+        "Smallest / largest bore",
+        format!(
+            "{} / {}",
+            f::mm(seg.bore_smallest_mm),
+            f::mm(seg.bore_largest_mm)
+        ),
+    ));
+    group(&mut left, &mut y, "Bore", bore_rows);
+    left.height = y;
+
+    let mut right = Block::new();
+    let mut y = 0.0;
+    group(
+        &mut right,
+        &mut y,
+        "Friction",
+        vec![pair(
+            "Static friction coefficient μ (strip on wall)",
+            f::factor(d.friction),
+        )],
+    );
+    let act = match &d.actuator {
+        Actuator::Direct {
+            max_force_n,
+            max_stroke_mm,
+        } => vec![
+            pair("Kind", "direct pull on the plates".to_string()),
+            pair("Maximum force", f::newton(*max_force_n)),
+            pair("Maximum stroke", f::mm(*max_stroke_mm)),
+        ],
+        Actuator::Spool {
+            radius_mm,
+            max_torque_nm,
+            max_angle_deg,
+        } => vec![
+            pair("Kind", "cord on a spool".to_string()),
+            pair("Spool radius r_s", f::mm(*radius_mm)),
+            pair("Maximum torque", f::in_unit(*max_torque_nm, "N m")),
+            pair("Maximum angle", f::in_unit(*max_angle_deg, "deg")),
+            pair("Maximum stroke (r_s x angle)", f::mm(seg.max_stroke_mm())),
+            pair("Maximum pull (torque / r_s)", f::newton(seg.max_pull_n())),
+        ],
+        Actuator::LeadScrew {
+            lead_mm,
+            efficiency,
+            max_torque_nm,
+            max_turns,
+        } => vec![
+            pair("Kind", "lead screw and nut".to_string()),
+            pair("Lead", f::mm(*lead_mm)),
+            pair("Screw efficiency", f::factor(*efficiency)),
+            pair("Maximum torque", f::in_unit(*max_torque_nm, "N m")),
+            pair("Maximum turns", f::in_unit(*max_turns, "turns")),
+            pair("Maximum stroke (lead x turns)", f::mm(seg.max_stroke_mm())),
+            pair(
+                "Maximum pull (2π eff torque / lead)",
+                f::newton(seg.max_pull_n()),
+            ),
+        ],
+    };
+    group(&mut right, &mut y, "Actuator", act);
+    let op = d.operating_stroke_mm;
+    let mut duty = vec![pair("Operating stroke δ", f::mm(op))];
+    let reading = seg.actuator_reading(op, 0.0);
+    if reading.position_unit != "mm" {
+        duty.push(pair(
+            "Operating stroke at the actuator",
+            f::in_unit(reading.position, reading.position_unit),
+        ));
+    }
+    duty.extend([
+        pair("Holding force to resist", f::newton(d.duty.holding_force_n)),
+        pair("Safety factor on holding", f::factor(d.duty.safety_factor)),
+        pair(
+            "Required holding force",
+            f::newton(d.duty.holding_force_n * d.duty.safety_factor),
+        ),
+        pair("Grip-release cycles", f::count(d.duty.cycles)),
+    ]);
+    group(&mut right, &mut y, "Operating stroke and duty", duty);
+    right.height = y;
+
+    let mut b = Block::new();
+    b.append(&left, 0.0, 0.0);
+    b.append(&right, width - cw, 0.0);
+    b.height = left.height.max(right.height);
+    section("Inputs", width, vec![b])
+}
+
+fn material(a: &Analysis, width: f32) -> Section {
+    let seg = &a.segment;
+    let m = &seg.material;
+    let src = &m.sources;
+    let gpa = |v: f64| format!("{} GPa", f::sig(v, 4));
+    let rows = vec![
+        row([
+            "Young's modulus E".to_string(),
+            gpa(m.youngs_modulus_gpa),
+            src.modulus.clone(),
+        ]),
+        row([
+            "Poisson's ratio ν".to_string(),
+            f::factor(m.poisson_ratio),
+            src.poisson.clone(),
+        ]),
+        row([
+            "Tensile strength Su".to_string(),
+            f::mpa(m.tensile_strength_mpa),
+            src.tensile.clone(),
+        ]),
+        row([
+            "Yield strength Sy".to_string(),
+            f::mpa(m.yield_strength_mpa),
+            src.yield_strength.clone(),
+        ]),
+        row([
+            "Endurance strength Se (10^6 cycles)".to_string(),
+            f::mpa(m.endurance_limit_mpa),
+            src.endurance.clone(),
+        ]),
+    ];
+    let mut b = Block::new();
+    let mut y = 0.0;
+    y = b.paragraph(
+        0.0,
+        y + 9.0,
+        width,
+        BODY,
+        Weight::Bold,
+        INK,
+        &format!("{} ({})", m.name, m.id),
+    ) - 6.0;
+    let t = table(
+        &["Property", "Value", "Source"],
+        &[col(0.27 * width), rcol(0.13 * width), col(0.60 * width)],
+        &rows,
+        SMALL,
+    );
+    b.append(&t, 0.0, y + 2.0);
+    y += t.height + 4.0;
+    if !m.note.trim().is_empty() {
+        y = b.paragraph(
+            0.0,
+            y + 8.0,
+            width,
+            SMALL,
+            Weight::Regular,
+            GREY,
+            &format!("Note: {}", m.note),
+        ) - 4.0;
+    }
+    let b_nmm2 = seg.bending_stiffness_nm2 * 1e6;
+    let cycles = f::count(seg.design.duty.cycles);
+    let model = vec![
+        pair(
+            "Stiffness model used",
+            seg.stiffness_used.name().to_string(),
+        ),
+        pair("Why", seg.stiffness_reason.clone()),
+        pair("Bending modulus E'", gpa(seg.modulus_pa * 1e-9)),
+        pair(
+            "Bending stiffness B = E' b t³/12",
+            format!("{} N mm²", f::sig(b_nmm2, 4)),
+        ),
+        pair(
+            "Static allowable 0.75 Su (common practice)",
+            f::mpa(seg.static_allowable_mpa),
+        ),
+        pair(
+            &format!("Fatigue strength at {cycles} cycles (Shigley S-N)"),
+            f::mpa(seg.fatigue_strength_mpa),
+        ),
+        pair(
+            "Peak stress at Goodman factor 1, zero-to-peak",
+            f::mpa(seg.fatigue_allowable_mpa),
+        ),
+    ];
+    let t = kv(&model, width);
+    subhead(&mut b, &mut y, "Stiffness model and allowables");
+    b.append(&t, 0.0, y);
+    b.height = y + t.height;
+    section("Material and stiffness model", width, vec![b])
+}
+
+fn bore_results(a: &Analysis, width: f32) -> Section {
+    let seg = &a.segment;
+    let op = seg.design.operating_stroke_mm;
+    let cases: Vec<&BoreResult> = BoreCase::ALL.iter().filter_map(|c| bore(a, *c)).collect();
+    let mut rows = Vec::new();
+    let per = |name: &str, get: &dyn Fn(&BoreResult) -> String| {
+        let mut cells = vec![name.to_string()];
+        cells.extend(cases.iter().map(|r| get(r)));
+        row(cells)
+    };
+    let st = |get: fn(&SegmentState) -> String| {
+        move |r: &BoreResult| match &r.operating {
+            Ok(s) if s.phase != "beyond-limit" => get(s),
+            Ok(_) => "beyond limit".to_string(),
+            Err(_) => "no state".to_string(),
+        }
+    };
+    let gap = |r: &BoreResult| f::mm(seg.gap_mm(r.bore_mm));
+    rows.push(per("Bore diameter", &|r| f::mm(r.bore_mm)));
+    rows.push(per("Gap to the wall g (relaxed, edge contact)", &gap));
+    rows.push(per("First-contact stroke", &|r| {
+        f::mm_opt(r.row.first_contact_stroke_mm)
+    }));
+    rows.push(per("Stroke to reach the required holding force", &|r| {
+        f::mm_opt(r.row.holding_stroke_mm)
+    }));
+    rows.push(per("Stroke where a stress factor falls to 1", &|r| {
+        f::mm_opt(r.row.stress_limit_stroke_mm)
+    }));
+    rows.push(per("Line-contact onset stroke", &|r| {
+        f::mm_opt(r.row.line_contact_stroke_mm)
+    }));
+    rows.push(per("Model limit stroke", &|r| {
+        f::mm_opt(r.row.limit_stroke_mm)
+    }));
+    rows.push(per("Limit reason", &|r| match &r.operating {
+        Ok(s) => s.limit_reason.to_string(),
+        Err(_) => NONE.to_string(),
+    }));
+    let mut band = row([format!("At the operating stroke {}", f::mm(op))]);
+    band.bold = true;
+    band.shade = Some(SHADE);
+    rows.push(band);
+    rows.push(per("Phase", &|r| match &r.operating {
+        Ok(s) => s.phase.to_string(),
+        Err(_) => "no state".to_string(),
+    }));
+    rows.push(per(
+        "Contact force per strip F",
+        &st(|s| f::newton_opt(s.contact_force_per_strip_n)),
+    ));
+    rows.push(per(
+        "Radial force on the wall N F",
+        &st(|s| f::newton_opt(s.radial_force_n)),
+    ));
+    rows.push(per(
+        "Holding force μ N F",
+        &st(|s| f::newton_opt(s.holding_force_n)),
+    ));
+    rows.push(per(
+        "Axial force per strip P",
+        &st(|s| f::newton_opt(s.axial_force_per_strip_n)),
+    ));
+    rows.push(per(
+        "Actuator pull N P",
+        &st(|s| f::newton_opt(s.actuator_force_n)),
+    ));
+    if !matches!(seg.design.actuator, Actuator::Direct { .. }) {
+        rows.push(per(
+            "Actuator position",
+            &st(|s| {
+                s.actuator.map_or(NONE.to_string(), |r| {
+                    f::in_unit(r.position, r.position_unit)
+                })
+            }),
+        ));
+        rows.push(per(
+            "Actuator torque",
+            &st(|s| {
+                s.actuator
+                    .map_or(NONE.to_string(), |r| f::in_unit(r.effort, r.effort_unit))
+            }),
+        ));
+    }
+    rows.push(per(
+        "Diameter over the strips",
+        &st(|s| f::mm_opt(s.outer_diameter_mm)),
+    ));
+    rows.push(per(
+        "Flat run on the wall",
+        &st(|s| f::mm_opt(s.flat_length_mm)),
+    ));
+    rows.push(per(
+        "Peak stress σ",
+        &st(|s| s.max_stress_mpa.map_or(NONE.to_string(), f::mpa)),
+    ));
+    rows.push(per(
+        "Static factor of safety",
+        &st(|s| s.static_safety_factor.map_or(NONE.to_string(), f::factor)),
+    ));
+    rows.push(per(
+        "Fatigue factor of safety (Goodman)",
+        &st(|s| s.fatigue_safety_factor.map_or(NONE.to_string(), f::factor)),
+    ));
+    rows.push(per(
+        "Stored strain energy, all strips",
+        &st(|s| {
+            s.strain_energy_j
+                .map_or(NONE.to_string(), |e| format!("{} J", f::sig(e, 3)))
+        }),
+    ));
+    for r in &mut rows {
+        r.colors = r
+            .cells
+            .iter()
+            .map(|c| (c == "no state" || c == "beyond limit").then_some(RED))
+            .collect();
+    }
+    let lw = 0.37 * width;
+    let vw = (width - lw) / 3.0;
+    let heads: Vec<String> = std::iter::once("Quantity".to_string())
+        .chain(cases.iter().map(|r| format!("{} bore", r.case.label())))
+        .collect();
+    let head_refs: Vec<&str> = heads.iter().map(String::as_str).collect();
+    let t = table(
+        &head_refs,
+        &[col(lw), rcol(vw), rcol(vw), rcol(vw)],
+        &rows,
+        BODY,
+    );
+    let mut b = Block::new();
+    b.append(&t, 0.0, 0.0);
+    let mut y = t.height + 10.0;
+    let mut notes: Vec<String> = Vec::new();
+    for r in &cases {
+        match &r.operating {
+            Ok(s) => {
+                let why = match seg.at_bore(r.bore_mm) {
+                    Ok(p) => p.limit_reason().describe().to_string(),
+                    Err(_) => s.limit_reason.to_string(),
+                };
+                notes.push(format!(
+                    "{} bore: the model stops at {} because the {why}.",
+                    cap(r.case.label()),
+                    f::mm(s.limit_stroke_mm)
+                ));
+            }
+            Err(e) => notes.push(format!("{} bore: no state. {e}.", cap(r.case.label()))),
+        }
+    }
+    for n in notes {
+        y = b.paragraph(0.0, y, width, SMALL, Weight::Regular, INK, &n);
+    }
+    y = b.paragraph(
+        0.0,
+        y + 2.0,
+        width,
+        SMALL,
+        Weight::Regular,
+        GREY,
+        "Forces are totals for the segment unless marked per strip. A dash: the quantity does not exist (bore out of reach, no line contact on the path, or no state).",
+    );
+    b.height = y - 6.0;
+    section(
+        "Results at the smallest, nominal and largest bore",
+        width,
+        vec![b],
+    )
+}
+
+fn cap(s: &str) -> String {
+    let mut c = s.chars();
+    c.next().map_or_else(String::new, |first| {
+        first.to_uppercase().collect::<String>() + c.as_str()
+    })
+}
+
+fn check_table(a: &Analysis, width: f32) -> Section {
+    let cols = [
+        col(0.035 * width),
+        col(0.2 * width),
+        col(0.15 * width),
+        rcol(0.13 * width),
+        col(0.1 * width),
+        col(0.385 * width),
+    ];
+    let mut rows = Vec::new();
+    for (i, c) in a.checks.iter().enumerate() {
+        let at = match (c.bore_mm, c.stroke_mm) {
+            (Some(b), Some(s)) => format!("bore {} stroke {}", f::mm(b), f::mm(s)),
+            (Some(b), None) => format!("bore {}", f::mm(b)),
+            (None, Some(s)) => format!("stroke {}", f::mm(s)),
+            (None, None) => NONE.to_string(),
+        };
+        let limiting = a.limiting == Some(i);
+        let verdict = match (c.pass, limiting) {
+            (true, false) => "PASS".to_string(),
+            (false, false) => "FAIL".to_string(),
+            (true, true) => "PASS (limiting)".to_string(),
+            (false, true) => "FAIL (limiting)".to_string(),
+        };
+        let unit = match c.unit {
+            MarginUnit::Mm => "mm",
+            MarginUnit::Ratio => "ratio",
+        };
+        let margin = match (c.margin, c.unit) {
+            (None, _) => NONE.to_string(),
+            (Some(v), MarginUnit::Mm) => f::mm(v),
+            (Some(v), MarginUnit::Ratio) => {
+                format!("{} ({}%)", f::factor(v), f::fixed(100.0 * v, 1))
+            }
+        };
+        let mut r = row([
+            (i + 1).to_string(),
+            format!("{} [{}]", c.title, c.id),
+            at,
+            margin,
+            verdict,
+            c.reason.clone(),
+        ]);
+        r.colors = vec![
+            None,
+            None,
+            None,
+            None,
+            Some(if c.pass { GREEN } else { RED }),
+            None,
+        ];
+        if limiting {
+            r.shade = Some(SHADE);
+            r.bold = true;
+        }
+        let _ = unit;
+        rows.push(r);
+    }
+    let t = table(
+        &["#", "Check", "Judged at", "Margin", "Verdict", "Reason"],
+        &cols,
+        &rows,
+        SMALL,
+    );
+    let mut b = Block::new();
+    b.append(&t, 0.0, 0.0);
+    let all = checks::all_pass(&a.checks);
+    let y = b.paragraph(
+        0.0,
+        t.height + 8.0,
+        width,
+        SMALL,
+        Weight::Regular,
+        GREY,
+        &format!(
+            "Margins are in the check's own unit: mm for geometry, otherwise capacity over demand minus one (ratio, and in per cent). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
+            if all { "every check passes" } else { "at least one check fails" }
+        ),
+    );
+    b.height = y - 6.0;
+    section("Checks", width, vec![b])
+}
+
+fn finite_max(vals: impl IntoIterator<Item = f64>) -> f64 {
+    vals.into_iter()
+        .filter(|v| v.is_finite())
+        .fold(f64::NEG_INFINITY, f64::max)
+}
+
+fn window_plot(a: &Analysis, width: f32) -> Section {
+    let seg = &a.segment;
+    let op = seg.design.operating_stroke_mm;
+    let max_stroke = seg.max_stroke_mm();
+    let w = &a.window;
+    let series = |get: fn(&crate::segment::BoreRow) -> Option<f64>| {
+        w.iter().map(|r| (r.bore_mm, get(r))).collect::<Vec<_>>()
+    };
+    // The frame shows the curves and the operating stroke; a far-away actuator maximum or
+    // model limit is named in the legend instead of squeezing the curves flat.
+    let shown = finite_max(
+        w.iter()
+            .flat_map(|r| {
+                [
+                    r.first_contact_stroke_mm,
+                    r.holding_stroke_mm,
+                    r.stress_limit_stroke_mm,
+                    r.line_contact_stroke_mm,
+                ]
+            })
+            .flatten()
+            .chain([op]),
+    );
+    let limit_top = finite_max(w.iter().filter_map(|r| r.limit_stroke_mm));
+    let shown = if limit_top <= 1.5 * shown {
+        shown.max(limit_top)
+    } else {
+        shown
+    };
+    let shown = if max_stroke <= 1.5 * shown {
+        shown.max(max_stroke)
+    } else {
+        shown
+    };
+    let ymax = if shown.is_finite() && shown > 0.0 {
+        1.15 * shown
+    } else {
+        1.0
+    };
+    let above = |v: f64| if v > ymax { " (above the frame)" } else { "" };
+    let plot = Plot {
+        title: "Stroke against bore diameter".to_string(),
+        x_label: "bore diameter (mm)".to_string(),
+        y_label: "stroke (mm)".to_string(),
+        x_range: a.window_mm,
+        y_range: (0.0, ymax),
+        items: vec![
+            Item::Band {
+                label: format!(
+                    "bore tolerance {} to {}",
+                    f::mm(seg.bore_smallest_mm),
+                    f::mm(seg.bore_largest_mm)
+                ),
+                color: BAND,
+                x0: seg.bore_smallest_mm,
+                x1: seg.bore_largest_mm,
+            },
+            Item::VLine {
+                label: String::new(),
+                pen: Pen::dashed(GREY, 0.5, &[1.0, 2.0]),
+                x: seg.bore_nominal_mm,
+            },
+            Item::HLine {
+                label: format!(
+                    "actuator maximum {}{}",
+                    f::mm(max_stroke),
+                    above(max_stroke)
+                ),
+                pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
+                y: max_stroke,
+            },
+            Item::HLine {
+                label: format!("operating stroke {}", f::mm(op)),
+                pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                y: op,
+            },
+            Item::Series {
+                label: "first contact".to_string(),
+                pen: Pen::solid(INK, 1.2),
+                points: series(|r| r.first_contact_stroke_mm),
+            },
+            Item::Series {
+                label: "holding (required x SF)".to_string(),
+                pen: Pen::solid(GREEN, 1.2),
+                points: series(|r| r.holding_stroke_mm),
+            },
+            Item::Series {
+                label: "stress limit (factor 1)".to_string(),
+                pen: Pen::solid(RED, 1.2),
+                points: series(|r| r.stress_limit_stroke_mm),
+            },
+            Item::Series {
+                label: "line-contact onset".to_string(),
+                pen: Pen::dashed(BLUE, 1.1, &[4.0, 1.5]),
+                points: series(|r| r.line_contact_stroke_mm),
+            },
+            Item::Series {
+                label: format!("model limit{}", above(limit_top)),
+                pen: Pen::dashed(PURPLE, 1.1, &[6.0, 1.5, 1.5, 1.5]),
+                points: series(|r| r.limit_stroke_mm),
+            },
+        ],
+    };
+    let mut b = plot.layout(width, 190.0);
+    let y = b.paragraph(
+        0.0,
+        b.height + 6.0,
+        width,
+        SMALL,
+        Weight::Regular,
+        GREY,
+        "A workable stroke lies above the holding curve and below the stress limit, the model limit and the actuator maximum, across the whole shaded tolerance band. Curves end where the quantity does not exist (bore out of reach or relaxed strips do not fit). Lines above the frame are clipped.",
+    );
+    b.height = y - 6.0;
+    section("Stroke against bore", width, vec![b])
+}
+
+fn curve_plots(a: &Analysis, width: f32) -> Section {
+    let seg = &a.segment;
+    let d = &seg.design;
+    let op = d.operating_stroke_mm;
+    let c = &a.curve;
+    if c.is_empty() {
+        let mut b = Block::new();
+        let y = b.paragraph(
+            0.0,
+            9.0,
+            width,
+            BODY,
+            Weight::Bold,
+            RED,
+            &format!(
+                "No force-stroke curve: the relaxed segment does not fit the nominal bore {} (the model has no state there).",
+                f::mm(seg.bore_nominal_mm)
+            ),
+        );
+        b.height = y;
+        return section(
+            "Force and stress against stroke at the nominal bore",
+            width,
+            vec![b],
+        );
+    }
+    let pts = |get: fn(&SegmentState) -> Option<f64>| {
+        c.iter().map(|s| (s.stroke_mm, get(s))).collect::<Vec<_>>()
+    };
+    let x_end = c.last().map_or(1.0, |s| s.stroke_mm).max(op * 1.05);
+    let required = d.duty.holding_force_n * d.duty.safety_factor;
+    let fmax = finite_max(
+        c.iter()
+            .flat_map(|s| [s.radial_force_n, s.actuator_force_n, s.holding_force_n])
+            .flatten()
+            .chain([required]),
+    );
+    let fmax = if fmax.is_finite() && fmax > 0.0 {
+        1.1 * fmax
+    } else {
+        1.0
+    };
+    let pull = seg.max_pull_n();
+    let pull_label = if pull <= fmax {
+        format!("actuator maximum pull {}", f::newton(pull))
+    } else {
+        format!(
+            "actuator maximum pull {} (above the frame)",
+            f::newton(pull)
+        )
+    };
+    let first = a.curve.first().and_then(|s| s.first_contact_stroke_mm);
+    let mut items = vec![
+        Item::VLine {
+            label: format!("operating stroke {}", f::mm(op)),
+            pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+            x: op,
+        },
+        Item::HLine {
+            label: format!("required holding {}", f::newton(required)),
+            pen: Pen::dashed(GREEN, 1.0, &[5.0, 2.5]),
+            y: required,
+        },
+        Item::HLine {
+            label: pull_label,
+            pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
+            y: pull,
+        },
+        Item::Series {
+            label: "actuator pull N P".to_string(),
+            pen: Pen::solid(ORANGE, 1.2),
+            points: pts(|s| s.actuator_force_n),
+        },
+        Item::Series {
+            label: "radial force N F".to_string(),
+            pen: Pen::solid(BLUE, 1.2),
+            points: pts(|s| s.radial_force_n),
+        },
+        Item::Series {
+            label: "holding force μ N F".to_string(),
+            pen: Pen::solid(GREEN, 1.2),
+            points: pts(|s| s.holding_force_n),
+        },
+        Item::Series {
+            label: "contact force per strip F".to_string(),
+            pen: Pen::dashed(BLUE, 0.9, &[3.0, 1.5]),
+            points: pts(|s| s.contact_force_per_strip_n),
+        },
+    ];
+    if let Some(fc) = first {
+        items.insert(
+            1,
+            Item::VLine {
+                label: format!("first contact {}", f::mm(fc)),
+                pen: Pen::dashed(GREY, 0.7, &[1.0, 1.5]),
+                x: fc,
+            },
+        );
+    }
+    let forces = Plot {
+        title: format!(
+            "Forces against stroke, nominal bore {}",
+            f::mm(seg.bore_nominal_mm)
+        ),
+        x_label: "stroke (mm)".to_string(),
+        y_label: "force (N)".to_string(),
+        x_range: (0.0, x_end),
+        y_range: (0.0, fmax),
+        items,
+    };
+    let smax = finite_max(
+        c.iter()
+            .filter_map(|s| s.max_stress_mpa)
+            .chain([seg.static_allowable_mpa, seg.fatigue_allowable_mpa]),
+    );
+    let stress = Plot {
+        title: format!(
+            "Peak stress against stroke, nominal bore {}",
+            f::mm(seg.bore_nominal_mm)
+        ),
+        x_label: "stroke (mm)".to_string(),
+        y_label: "stress (MPa)".to_string(),
+        x_range: (0.0, x_end),
+        y_range: (0.0, if smax.is_finite() { 1.1 * smax } else { 1.0 }),
+        items: vec![
+            Item::VLine {
+                label: format!("operating stroke {}", f::mm(op)),
+                pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                x: op,
+            },
+            Item::HLine {
+                label: format!(
+                    "static allowable 0.75 Su {}",
+                    f::mpa(seg.static_allowable_mpa)
+                ),
+                pen: Pen::dashed(RED, 1.0, &[5.0, 2.5]),
+                y: seg.static_allowable_mpa,
+            },
+            Item::HLine {
+                label: format!(
+                    "fatigue allowable (Goodman) {}",
+                    f::mpa(seg.fatigue_allowable_mpa)
+                ),
+                pen: Pen::dashed(PURPLE, 1.0, &[2.0, 1.5]),
+                y: seg.fatigue_allowable_mpa,
+            },
+            Item::Series {
+                label: "peak stress σ".to_string(),
+                pen: Pen::solid(INK, 1.2),
+                points: pts(|s| s.max_stress_mpa),
+            },
+        ],
+    };
+    let mut b1 = forces.layout(width, 170.0);
+    b1.height += 8.0;
+    let mut b2 = stress.layout(width, 120.0);
+    let end = c.last().map_or(0.0, |s| s.stroke_mm);
+    let y = b2.paragraph(
+        0.0,
+        b2.height + 6.0,
+        width,
+        SMALL,
+        Weight::Regular,
+        GREY,
+        &format!(
+            "Curves run from 0 to {} (the smaller of the model limit and the actuator maximum stroke). Holding force is static friction times the radial force; it enters no shape calculation.",
+            f::mm(end)
+        ),
+    );
+    b2.height = y - 6.0;
+    section(
+        "Force and stress against stroke at the nominal bore",
+        width,
+        vec![b1, b2],
+    )
+}
+
+/// Drawing scales offered, as (paper mm per model mm, label).
+const SCALES: [(f32, &str); 12] = [
+    (5.0, "5:1"),
+    (2.0, "2:1"),
+    (1.0, "1:1"),
+    (0.5, "1:2"),
+    (0.4, "1:2.5"),
+    (0.2, "1:5"),
+    (0.1, "1:10"),
+    (0.05, "1:20"),
+    (0.02, "1:50"),
+    (0.01, "1:100"),
+    (0.005, "1:200"),
+    (0.002, "1:500"),
+];
+const PT_PER_MM: f32 = 72.0 / 25.4;
+
+fn circle(cx: f32, cy: f32, r: f32) -> Vec<[f32; 2]> {
+    (0..=96)
+        .map(|i| {
+            let t = 2.0 * std::f32::consts::PI * i as f32 / 96.0;
+            [cx + r * t.cos(), cy + r * t.sin()]
+        })
+        .collect()
+}
+
+fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
+    let seg = &a.segment;
+    let d = &seg.design;
+    let s = &d.strip;
+    let op = d.operating_stroke_mm;
+    let bore_d = seg.bore_nominal_mm as f32;
+    let big_r = 0.5 * bore_d;
+    let l = s.free_length_mm as f32;
+    let plate_t = (0.04 * l).max(1.0);
+    let side_w_mm = l + 2.0 * plate_t + 0.25 * l;
+    let view_max_pt: f32 = 230.0;
+    let side_box = 0.6 * width;
+    let end_box = width - side_box - 12.0;
+    let need = |scale_pt: f32| {
+        side_w_mm * scale_pt <= side_box && 1.15 * bore_d * scale_pt <= view_max_pt.min(end_box)
+    };
+    let (scale_pt, scale_label) = SCALES
+        .iter()
+        .map(|(r, lab)| (r * PT_PER_MM, *lab))
+        .find(|(sp, _)| need(*sp))
+        .unwrap_or((0.002 * PT_PER_MM, "1:500"));
+    let view_h_pt = 1.15 * bore_d * scale_pt + 10.0;
+    let mut b = Block::new();
+    let top = 14.0;
+    let cy = top + 0.5 * view_h_pt;
+    b.text(
+        0.0,
+        9.0,
+        9.0,
+        Weight::Bold,
+        format!(
+            "Side view, section through two strips, at the operating stroke {}",
+            f::mm(op)
+        ),
+    );
+    // Side view: x along the axis from the first end plate.
+    let x0 = 0.5 * (side_box - side_w_mm * scale_pt) + plate_t * scale_pt;
+    let px = |x: f32| x0 + x * scale_pt;
+    let py = |r: f32| cy - r * scale_pt;
+    let chord = (l - op as f32).max(0.0);
+    let ext = (0.12 * l, chord + 0.12 * l);
+    // Axis (dash-dot), bore walls with hatching on the wall side.
+    b.polyline(
+        vec![[px(-ext.0 - plate_t), cy], [px(ext.1 + plate_t), cy]],
+        0.5,
+        GREY,
+        Some(vec![8.0, 2.0, 1.5, 2.0]),
+    );
+    for sign in [1.0f32, -1.0] {
+        let yw = py(sign * big_r);
+        b.line(
+            [px(-ext.0 - plate_t), yw],
+            [px(ext.1 + plate_t), yw],
+            1.0,
+            INK,
+        );
+        let mut x = px(-ext.0 - plate_t) + 3.0;
+        while x < px(ext.1 + plate_t) - 3.0 {
+            b.line([x, yw - sign * 0.0], [x + 3.0, yw - sign * 4.0], 0.4, GREY);
+            x += 6.0;
+        }
+    }
+    let shape = &a.shape_mm;
+    let plate_r = 0.5 * d.end_plate_diameter_mm as f32;
+    if shape.is_empty() {
+        b.paragraph(
+            4.0,
+            cy - 20.0,
+            side_box - 8.0,
+            BODY,
+            Weight::Bold,
+            RED,
+            "No strip shape: the nominal bore has no model state at the operating stroke (see Results).",
+        );
+    } else {
+        let chord = shape.last().map_or(chord, |p| p[0] as f32);
+        for xp in [-plate_t, chord] {
+            let pts = vec![
+                [px(xp), py(plate_r)],
+                [px(xp + plate_t), py(plate_r)],
+                [px(xp + plate_t), py(-plate_r)],
+                [px(xp), py(-plate_r)],
+            ];
+            b.marks.push(super::draw::Mark::Area {
+                points: pts.clone(),
+                color: SHADE,
+            });
+            b.marks.push(super::draw::Mark::Line {
+                points: pts,
+                width: 0.6,
+                color: INK,
+                dash: None,
+                closed: true,
+            });
+        }
+        let rmax = shape.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max);
+        let tw = (s.thickness_mm as f32 * scale_pt).max(0.9);
+        for sign in [1.0f32, -1.0] {
+            let pts: Vec<[f32; 2]> = shape
+                .iter()
+                .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
+                .collect();
+            b.polyline(pts, tw, BLUE, None);
+            // The flat run, where the strip lies on the wall.
+            let flat: Vec<[f32; 2]> = shape
+                .iter()
+                .filter(|p| p[1] >= rmax - 1e-6 * s.free_length_mm)
+                .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
+                .collect();
+            if flat.len() >= 2 {
+                b.polyline(flat, tw + 1.6, RED, None);
+            }
+        }
+        // Relaxed strip, for comparison.
+        let rm = d.mount_radius_mm as f32;
+        b.polyline(
+            vec![[px(0.0), py(rm)], [px(l), py(rm)]],
+            0.5,
+            GREY,
+            Some(vec![2.0, 2.0]),
+        );
+    }
+    let st = bore(a, BoreCase::Nominal).and_then(state_of);
+    let mut ny = top + view_h_pt + 12.0;
+    let mut note = |b: &mut Block, t: String| {
+        ny = b.paragraph(0.0, ny, side_box, SMALL, Weight::Regular, INK, &t);
+    };
+    note(
+        &mut b,
+        format!(
+            "Bore {} (walls hatched), chord between plates L − δ = {}, free length L = {}.",
+            f::mm(bore_d as f64),
+            f::mm(l as f64 - op),
+            f::mm(l as f64)
+        ),
+    );
+    if let Some(s) = st {
+        note(
+            &mut b,
+            format!(
+                "Blue: strip centreline ({}); red: flat run on the wall {}; grey dashed: relaxed strip. End-plate thickness drawn schematically.",
+                s.phase,
+                f::mm_opt(s.flat_length_mm)
+            ),
+        );
+    }
+    // End view.
+    let ex = side_box + 12.0 + 0.5 * end_box;
+    b.text(side_box + 12.0, 9.0, 9.0, Weight::Bold, "End view");
+    b.polyline(circle(ex, cy, big_r * scale_pt), 1.0, INK, None);
+    if plate_r > 0.0 {
+        b.polyline(
+            circle(ex, cy, plate_r * scale_pt),
+            0.5,
+            GREY,
+            Some(vec![3.0, 2.0]),
+        );
+    }
+    b.line(
+        [ex - (big_r + 3.0) * scale_pt, cy],
+        [ex + (big_r + 3.0) * scale_pt, cy],
+        0.4,
+        GREY,
+    );
+    b.line(
+        [ex, cy - (big_r + 3.0) * scale_pt],
+        [ex, cy + (big_r + 3.0) * scale_pt],
+        0.4,
+        GREY,
+    );
+    let n = s.count as usize;
+    let half_b = 0.5 * s.width_mm as f32;
+    let t = s.thickness_mm as f32;
+    let crest = st.and_then(|s| s.crest_height_mm).unwrap_or(0.0) as f32;
+    for i in 0..n {
+        let th = 2.0 * PI as f32 * i as f32 / n as f32 - 0.5 * PI as f32;
+        let (sn, cs) = th.sin_cos();
+        for (rc, color, w) in [
+            (d.mount_radius_mm as f32, GREY, 0.5f32),
+            (d.mount_radius_mm as f32 + crest, BLUE, 0.8),
+        ] {
+            let corner = |u: f32, v: f32| {
+                [
+                    ex + (rc + v) * scale_pt * cs - u * scale_pt * sn,
+                    cy + (rc + v) * scale_pt * sn + u * scale_pt * cs,
+                ]
+            };
+            let pts = vec![
+                corner(-half_b, -0.5 * t),
+                corner(half_b, -0.5 * t),
+                corner(half_b, 0.5 * t),
+                corner(-half_b, 0.5 * t),
+            ];
+            b.marks.push(super::draw::Mark::Line {
+                points: pts,
+                width: w.max(t * scale_pt),
+                color,
+                dash: None,
+                closed: true,
+            });
+        }
+    }
+    let mut ey = top + view_h_pt + 12.0;
+    for line in [
+        format!(
+            "{n} strips, {} x {}, at r_m = {}.",
+            f::mm(s.width_mm),
+            f::mm(s.thickness_mm),
+            f::mm(d.mount_radius_mm)
+        ),
+        format!(
+            "Grey: at the plates; blue: at the crest (+{}).",
+            f::mm(crest as f64)
+        ),
+        format!(
+            "Dashed circle: end plate {}.",
+            f::mm(d.end_plate_diameter_mm)
+        ),
+    ] {
+        ey = b.paragraph(
+            side_box + 12.0,
+            ey,
+            end_box,
+            SMALL,
+            Weight::Regular,
+            INK,
+            &line,
+        );
+    }
+    let y = ny.max(ey);
+    let y = b.paragraph(
+        0.0,
+        y + 2.0,
+        width,
+        SMALL,
+        Weight::Bold,
+        INK,
+        &format!("Both views to scale {scale_label} when printed at 100 % on {} paper (do not scale from a resized print).", meta.paper.name()),
+    );
+    b.height = y - 6.0;
+    section("Side view and end view", width, vec![b])
+}
+
+const ASSUMPTIONS: [&str; 10] = [
+    "Each strip is an inextensible Euler elastica in its own meridional plane: large rotations, small strains. Strips are straight at rest, identical, parallel to the axis at the plates, and share the load equally.",
+    "Bending stiffness B = E' b t³/12 with E' = E for a narrow strip (beam) or E' = E/(1 − ν²) for a wide one (plate in cylindrical bending); automatic choice at b ≥ 10 t (common practice). The model used is stated in the material section.",
+    "A strip flat across its width touches a round bore first with its two edges: the centreline gap is g = √(R² − b²/4) − t/2 − r_m, and the diameter over the strip corners at crest height h is 2 √((r_m + h + t/2)² + b²/4).",
+    "Contact is frictionless as far as the shape goes; wall friction only sets the holding force μ N F (static coefficient times the total radial force). End fixity is clamped or hinged as entered.",
+    "Phases along the stroke: free bowing, point contact at the crest, then line contact with a flat run on the wall. The closed-form elastica (incomplete elliptic integrals) is solved along the branch that is continuous from first contact.",
+    "The model stops, and reports no state, at the first of: flat-run buckling (the flat run as a column under P, 4π²B/(L − 2l)² clamped, π²B/(L − 2l)² hinged), the flat run closing past the fold, the plates meeting, the axial force vanishing, the contact force peaking before line contact, or loss of the branch. Beyond it the strips may snap to another shape.",
+    "Stress convention: σ = E' t κ_max/2 + P/(b t), the compression face at the point of peak curvature. Contact stresses, edge effects, residual stresses from forming and stress concentration at the clamps are not included.",
+    "Static check: factor of safety 0.75 Su/σ (common practice for statically loaded flat springs).",
+    "Fatigue check: zero-to-peak cycles on a Goodman line, n_f = 1/(σa/Sf + σm/Su) with σa = σm = σ/2; Sf is the endurance strength Se at 10^6 cycles and beyond, and below 10^6 a log-log line from 0.9 Su at 10^3 cycles (Shigley S-N approximation).",
+    "Not modelled: wall deflection, bore ovality and roughness, temperature, corrosion, wear, dynamic loads, and anything outside the plausible ranges of the design file. Pipe bores use the nominal wall of ASME B36.10M; mill tolerances on wall thickness are not included and must be added to the bore tolerance by the designer.",
+];
+
+const REFERENCES: [&str; 7] = [
+    "S. P. Timoshenko and J. M. Gere, Theory of Elastic Stability, 2nd ed., McGraw-Hill, 1961: the elastica (ch. 2), Euler loads, and beam-column theory (ch. 1).",
+    "NIST Digital Library of Mathematical Functions, chapter 19: elliptic integrals (definitions and identities).",
+    "B. C. Carlson, Numerical computation of real or complex elliptic integrals, Numerical Algorithms 10 (1995) 13-26: the symmetric integrals R_F and R_D used here.",
+    "R. G. Budynas and J. K. Nisbett, Shigley's Mechanical Engineering Design: fatigue (S-N approximation, endurance estimate, Goodman line).",
+    "ASME B36.10M, Welded and Seamless Wrought Steel Pipe: outside diameters and nominal walls by NPS and schedule.",
+    "ASTM A666 (austenitic stainless strip, e.g. AISI 301 tempers) and ASTM A693 (precipitation-hardening stainless strip), as applicable to the grade entered.",
+    "Material values and their sources are listed in the material section; values marked 'from memory' or 'estimate' must be confirmed against the supplier's certificate.",
+];
+
+const SAFETY: [&str; 6] = [
+    "Stored spring energy: bowed strips store elastic energy (see the results table). A strip that breaks, slips out of its clamp or snaps past the model's limit can release it suddenly. Wear eye protection; keep hands and faces out of line with the strips during assembly and tests.",
+    "Snapping strips: do not operate beyond the model limit stroke; a strip past flat-run buckling can jump to a two-lobe shape and lose its grip at once.",
+    "Pinch points: the end plates close by the stroke and the strips sweep outward; keep fingers clear of the plates and of the gap between strip and wall.",
+    "In pipes and ducts: entry into or work on pipes brings confined-space and pressure hazards (stored pressure, flow, toxic or oxygen-poor atmosphere). Isolate, depressurise, vent and test before work, and follow the site's permit procedures.",
+    "A holding device that slips can let equipment run away down a slope or a vertical pipe: provide an independent restraint where that matters.",
+    "This sheet is a model calculation, not an approval. Confirm the design by test, and follow local codes, standards and licensed engineering practice; they take precedence over anything on this sheet.",
+];
+
+fn list_blocks(items: &[&str], width: f32, numbered: bool) -> Vec<Block> {
+    items
+        .iter()
+        .enumerate()
+        .map(|(i, t)| {
+            let mut b = Block::new();
+            let tag = if numbered {
+                format!("{}.", i + 1)
+            } else {
+                "•".to_string()
+            };
+            b.text(0.0, BODY, BODY, Weight::Regular, tag);
+            let y = b.paragraph(16.0, BODY, width - 16.0, BODY, Weight::Regular, INK, t);
+            b.height = y - BODY * LEAD + 6.0;
+            b
+        })
+        .collect()
+}
+
+fn text_sections(width: f32) -> Vec<Section> {
+    vec![
+        section(
+            "Model, assumptions and limits",
+            width,
+            list_blocks(&ASSUMPTIONS, width, true),
+        ),
+        section("References", width, list_blocks(&REFERENCES, width, true)),
+        section("Safety cautions", width, list_blocks(&SAFETY, width, false)),
+    ]
+}
