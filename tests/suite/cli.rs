@@ -533,6 +533,34 @@ fn the_sheet_never_overwrites_the_design_file() {
 }
 
 #[test]
+fn the_sheet_is_written_whole_and_its_place_reported() {
+    // Issue: the PDF bytes are written atomically (temporary file and rename) and stderr
+    // says where they went. A PDF file begins with "%PDF-" (ISO 32000-1, 7.5.2).
+    let tmp = Scratch::new();
+    let file = tmp.design("d.ron", &Design::default());
+    let pdf = tmp.dir.path().join("sheet.pdf");
+    let r = run(&["sheet", s(&file), "-o", s(&pdf), "--paper", "letter"]);
+    assert_eq!(r.code, Some(0), "{}", r.stderr);
+    assert!(r.stdout.is_empty());
+    assert!(r.stderr.contains("sheet.pdf"), "{}", r.stderr);
+    let bytes = std::fs::read(&pdf).expect("sheet written");
+    assert!(bytes.starts_with(b"%PDF-"));
+    let mut names: Vec<String> = std::fs::read_dir(tmp.dir.path())
+        .expect("list scratch dir")
+        .filter_map(Result::ok)
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    assert_eq!(
+        names,
+        ["d.ron", "sheet.pdf"],
+        "no temporary file left behind"
+    );
+    let missing_dir = tmp.dir.path().join("no-such-dir").join("x.pdf");
+    assert_refused(&["sheet", s(&file), "-o", s(&missing_dir)], &["x.pdf"]);
+}
+
+#[test]
 fn a_closed_pipe_ends_the_run_quietly() {
     // Issue: `bowgrip bores ... | head -1` must not panic. A million bores also shows
     // that --points 1000000 is accepted.
