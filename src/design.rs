@@ -173,23 +173,24 @@ pub struct Duty {
 }
 
 impl Default for Design {
-    /// An invented demo to start from: eight stainless strips anchoring in a 70 mm bore,
-    /// pulled by a small lead screw.
+    /// An invented demo to start from: ten stainless strips anchoring in a 70 mm bore,
+    /// drawn together by a small lead screw. By a small-gap estimate it passes every
+    /// check with some 40 % to spare; the solver and checks have the last word.
     fn default() -> Self {
         Design {
             format: FORMAT_VERSION,
-            title: "Demo: eight-strip anchor for a 70 mm bore".to_string(),
+            title: "Demo: ten-strip anchor for a 70 mm bore".to_string(),
             strip: Strip {
-                count: 8,
+                count: 10,
                 free_length_mm: 90.0,
                 width_mm: 12.0,
-                thickness_mm: 0.2,
+                thickness_mm: 0.25,
                 material: MaterialChoice::Grade("ss301-full-hard".to_string()),
                 ends: Ends::Clamped,
                 stiffness: Stiffness::Auto,
             },
-            mount_radius_mm: 28.0,
-            end_plate_diameter_mm: 60.0,
+            mount_radius_mm: 27.0,
+            end_plate_diameter_mm: 56.0,
             bore: Bore {
                 diameter_mm: 70.0,
                 minus_mm: 0.3,
@@ -200,10 +201,10 @@ impl Default for Design {
             actuator: Actuator::LeadScrew {
                 lead_mm: 1.0,
                 efficiency: 0.3,
-                max_torque_nm: 0.5,
-                max_turns: 10.0,
+                max_torque_nm: 0.8,
+                max_turns: 8.0,
             },
-            operating_stroke_mm: 1.85,
+            operating_stroke_mm: 1.8,
             duty: Duty {
                 holding_force_n: 20.0,
                 safety_factor: 2.0,

@@ -3,3 +3,4 @@ mod cli;
 mod data_tables;
 mod elliptic_reference;
 mod small_gap;
+mod design_file;
