@@ -58,9 +58,6 @@ pub enum LimitReason {
     ChordClosed,
     /// The axial force falls to zero: the plates no longer need pulling.
     AxialForceVanishes,
-    /// The contact force peaks on a point-contact branch that never reaches line contact;
-    /// further stroke would loosen the grip.
-    ContactForcePeaks,
     /// The solver could not follow the branch further (no continuous solution found).
     BranchLost,
 }
@@ -75,9 +72,6 @@ impl LimitReason {
             LimitReason::FlatRunCloses => "flat run shrinks back to zero past the fold of line contact",
             LimitReason::ChordClosed => "end plates would meet (strip chord reaches zero)",
             LimitReason::AxialForceVanishes => "axial force per strip falls to zero",
-            LimitReason::ContactForcePeaks => {
-                "contact force peaks before line contact; more stroke would loosen the grip"
-            }
             LimitReason::BranchLost => "solver lost the continuous solution branch",
         }
     }
@@ -89,7 +83,6 @@ impl LimitReason {
             LimitReason::FlatRunCloses => "flat-run-closes",
             LimitReason::ChordClosed => "chord-closed",
             LimitReason::AxialForceVanishes => "axial-force-vanishes",
-            LimitReason::ContactForcePeaks => "contact-force-peaks",
             LimitReason::BranchLost => "branch-lost",
         }
     }
@@ -214,6 +207,20 @@ impl std::ops::Sub<D> for f64 {
     fn sub(self, o: D) -> D {
         D { v: self - o.v, d: [-o.d[0], -o.d[1]] }
     }
+}
+
+/// Complete integrals `(K, E)` of a dual modulus (AGM only; cheaper than `complete_d`).
+fn complete_ke_d(k: D) -> (D, D) {
+    let ke = elliptic::complete(k.v);
+    let (dk, de) = elliptic::complete_dk(k.v, ke);
+    (k.chain(ke.0, dk), k.chain(ke.1, de))
+}
+
+/// `c sin(alpha) / l` from `(K, E)` alone, for the onset and closing searches.
+fn reach_d(k: D) -> D {
+    let (kk, ee) = complete_ke_d(k);
+    let kp = (1.0 - k.sq()).sqrt();
+    (2.0 * (ee / kk) - D::c(1.0)) * (2.0 * (k * kp))
 }
 
 /// Complete integrals `(K, E, D)` of a dual modulus, `D = (K - E) / k^2`.
@@ -410,6 +417,12 @@ fn newton_bracketed(
     Some(x)
 }
 
+/// Brent's method (the `roots` crate) for an inverse query on `[lo, hi]`, iteration-bounded.
+fn brent(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> Option<f64> {
+    let mut conv = roots::SimpleConvergency { eps: 1e-15, max_iter: MAX_NEWTON };
+    roots::find_root_brent(lo, hi, &f, &mut conv).ok().filter(|x| x.is_finite())
+}
+
 /// Modulus at which `E/K = 1/2`: the free strip's chord closes (`X = 0`).
 fn k_chord_closed() -> f64 {
     use std::sync::OnceLock;
@@ -485,10 +498,13 @@ pub struct Path {
     first_contact: Option<(f64, f64)>,
     /// Line-contact onset modulus and stroke (`None`: line contact never begins).
     line_onset: Option<(f64, f64)>,
-    /// Where the model stops.
-    limit: Limit,
-    /// Line-contact modulus at the limit, when the limit lies in line contact.
-    limit_k: Option<f64>,
+    /// The solver failed to find first contact although the gap is within reach.
+    branch_lost: bool,
+    /// Where the model stops, with the line-contact modulus there (when the limit lies in
+    /// line contact); found on first use, since states before line contact do not need it.
+    limit_cache: std::cell::OnceCell<(Limit, Option<f64>)>,
+    /// Where the forces peak, found on first use.
+    peaks_cache: std::cell::OnceCell<Peaks>,
 }
 
 /// The end of the model along a path.
@@ -500,6 +516,42 @@ pub struct Limit {
     pub reason: LimitReason,
     /// Phase just before the limit.
     pub phase: Phase,
+}
+
+/// Strokes where the forces peak along a path (nondimensional), if they do before the limit.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Peaks {
+    /// Stroke of the largest axial force.
+    pub axial: Option<f64>,
+    /// Stroke of the largest contact force.
+    pub contact: Option<f64>,
+}
+
+/// Golden-section search for the maximum of a unimodal `f` on `[lo, hi]`.
+fn golden_max(mut lo: f64, mut hi: f64, f: impl Fn(f64) -> f64) -> f64 {
+    let ratio = 0.5 * (5.0_f64.sqrt() - 1.0);
+    let mut x1 = hi - ratio * (hi - lo);
+    let mut x2 = lo + ratio * (hi - lo);
+    let (mut f1, mut f2) = (f(x1), f(x2));
+    for _ in 0..100 {
+        if hi - lo <= 1e-12 * (1.0 + hi.abs()) {
+            break;
+        }
+        if f1 < f2 {
+            lo = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = lo + ratio * (hi - lo);
+            f2 = f(x2);
+        } else {
+            hi = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = hi - ratio * (hi - lo);
+            f1 = f(x1);
+        }
+    }
+    0.5 * (lo + hi)
 }
 
 /// What a point-contact Newton solve pins besides the gap.
@@ -527,42 +579,56 @@ impl Path {
             gap,
             first_contact: None,
             line_onset: None,
-            limit: Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::Free },
-            limit_k: None,
+            branch_lost: false,
+            limit_cache: std::cell::OnceCell::new(),
+            peaks_cache: std::cell::OnceCell::new(),
         };
         let k_top = k_highest_crest();
         if gap >= max_reachable_gap() {
             return Ok(path);
         }
         // First contact: crest height k/K rises with k up to k_top.
-        let k1 = newton_bracketed(0.0, k_top, gap * FRAC_PI_2, 1e-15, |k| {
-            let [_, _, crest, ..] = free_d(D::var(k, 0));
+        // Seed from K = pi/2 (1 + k^2/4): k = (pi g / 2) (1 + (pi g/2)^2 / 4).
+        let seed = FRAC_PI_2 * gap * (1.0 + 0.25 * (FRAC_PI_2 * gap).powi(2));
+        let k1 = newton_bracketed(0.0, k_top, seed, 1e-15, |k| {
+            let kk = D::var(k, 0);
+            let crest = kk / complete_ke_d(kk).0;
             (crest.v - gap, crest.d[0])
         });
         let Some(k1) = k1 else {
-            path.limit.reason = LimitReason::BranchLost;
+            path.branch_lost = true;
             return Ok(path);
         };
         let d1 = free_d(D::c(k1))[0].v;
         path.first_contact = Some((k1, d1));
         // Line-contact onset: c sin(alpha)/l = 2 g on the rising side of the fold.
         let k_fold = k_line_fold();
-        if 2.0 * gap < line_reach_d(D::c(k_fold)).0.v {
+        if 2.0 * gap < reach_d(D::c(k_fold)).v {
             let ks = newton_bracketed(0.0, k_fold, gap, 1e-15, |k| {
-                let r = line_reach_d(D::var(k, 0)).0;
+                let r = reach_d(D::var(k, 0));
                 (r.v - 2.0 * gap, r.d[0])
             });
             if let Some(ks) = ks {
                 let ds = line_d(D::c(ks), gap).stroke.v;
                 path.line_onset = Some((ks, ds));
-                let (limit, k_limit) = path.line_limit(ks);
-                path.limit = limit;
-                path.limit_k = Some(k_limit);
-                return Ok(path);
             }
         }
-        path.limit = path.point_limit_without_line();
         Ok(path)
+    }
+
+    /// The limit with its line-contact modulus, computed once.
+    fn limit_data(&self) -> (Limit, Option<f64>) {
+        *self.limit_cache.get_or_init(|| match (self.first_contact, self.line_onset) {
+            (None, _) => {
+                let reason = if self.branch_lost { LimitReason::BranchLost } else { LimitReason::ChordClosed };
+                (Limit { stroke: 1.0, reason, phase: Phase::Free }, None)
+            }
+            (Some(_), Some((ks, _))) => {
+                let (limit, k) = self.line_limit(ks);
+                (limit, Some(k))
+            }
+            (Some(_), None) => (self.point_limit_without_line(), None),
+        })
     }
 
     /// Nondimensional gap `g / L`.
@@ -587,7 +653,7 @@ impl Path {
 
     /// Where the model stops.
     pub fn limit(&self) -> Limit {
-        self.limit
+        self.limit_data().0
     }
 
     /// The limit in line contact, scanning `k` upward from the onset `ks`.
@@ -596,7 +662,7 @@ impl Path {
         let k_fold = k_line_fold();
         // The flat run closes again where the reach falls back to 2 g beyond the fold.
         let k_close = newton_bracketed(k_fold, 0.999_999, 0.5 * (k_fold + 1.0), 1e-15, |k| {
-            let r = line_reach_d(D::var(k, 0)).0;
+            let r = reach_d(D::var(k, 0));
             (r.v - 2.0 * gap, r.d[0])
         })
         .unwrap_or(0.999_999);
@@ -614,35 +680,27 @@ impl Path {
             let q = line_d(D::var(k, 0), gap);
             (q.stroke.v - 1.0, q.stroke.d[0])
         };
-        const SAMPLES: usize = 24;
+        // The stroke rises with k, so the chord can only close at the end of the range.
+        let chord_closes = chord(k_end).0 >= 0.0;
+        let k_chord = if chord_closes { newton_bracketed(ks, k_end, k_end, 1e-15, chord) } else { None };
+        let stop = k_chord.unwrap_or(k_end);
+        // The buckling margin need not be monotonic past the fold: sample, then refine.
+        const SAMPLES: usize = 12;
         let mut prev = ks;
         for i in 1..=SAMPLES {
             // Denser sampling near the onset, where the flat run grows fastest.
             let t = i as f64 / SAMPLES as f64;
-            let k = ks + (k_end - ks) * t * t;
-            let hit_buckling = buckling(k).0 >= 0.0;
-            let hit_chord = chord(k).0 >= 0.0;
-            if hit_buckling || hit_chord {
-                let kb = if hit_buckling {
-                    newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, buckling)
-                } else {
-                    None
-                };
-                let kc = if hit_chord {
-                    newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, chord)
-                } else {
-                    None
-                };
-                let (kl, reason) = match (kb, kc) {
-                    (Some(a), Some(b)) if b < a => (b, LimitReason::ChordClosed),
-                    (Some(a), _) => (a, LimitReason::FlatRunBuckling),
-                    (None, Some(b)) => (b, LimitReason::ChordClosed),
-                    (None, None) => (k, LimitReason::BranchLost),
-                };
-                let stroke = line_d(D::c(kl), gap).stroke.v;
-                return (Limit { stroke, reason, phase: Phase::LineContact }, kl);
+            let k = ks + (stop - ks) * t * t;
+            if buckling(k).0 >= 0.0 {
+                let kb = newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, buckling).unwrap_or(k);
+                let stroke = line_d(D::c(kb), gap).stroke.v;
+                return (Limit { stroke, reason: LimitReason::FlatRunBuckling, phase: Phase::LineContact }, kb);
             }
             prev = k;
+        }
+        if let Some(kc) = k_chord {
+            let stroke = line_d(D::c(kc), gap).stroke.v;
+            return (Limit { stroke, reason: LimitReason::ChordClosed, phase: Phase::LineContact }, kc);
         }
         let reason = if k_close < k_axial {
             LimitReason::FlatRunCloses
@@ -654,101 +712,127 @@ impl Path {
     }
 
     /// The limit on a point-contact branch that never reaches line contact: march in
-    /// stroke until the contact force peaks, the axial force vanishes or the chord closes.
+    /// stroke until the axial force vanishes or the chord closes (mechanics note, section 4).
     fn point_limit_without_line(&self) -> Limit {
+        self.march_without_line().0
+    }
+
+    /// Marches a point branch without line contact from first contact to its limit,
+    /// recording where the axial and the contact force peak on the way.
+    fn march_without_line(&self) -> (Limit, Peaks) {
+        let mut peaks = Peaks { axial: None, contact: None };
         let Some((k1, d1)) = self.first_contact else {
-            return self.limit;
+            return (Limit { stroke: 1.0, reason: LimitReason::BranchLost, phase: Phase::Free }, peaks);
         };
         let lost = |stroke| Limit { stroke, reason: LimitReason::BranchLost, phase: Phase::PointContact };
         let mut node = PointNode { k: k1, phi0: 0.0, stroke: d1 };
         let mut prev: Option<PointNode> = None;
-        let mut prev_contact = 0.0;
+        let first = point_d(D::c(k1), D::c(0.0));
+        let (mut last_axial, mut last_contact) = (first.axial.v, 0.0);
         let mut step = 0.01 * (1.0 - d1).max(0.05);
-        for _ in 0..2_000 {
-            let target = node.stroke + step;
+        for _ in 0..4_000 {
+            let target = (node.stroke + step).min(1.0);
+            let h = target - node.stroke;
             let guess = match prev {
                 Some(p) => {
-                    let r = step / (node.stroke - p.stroke);
+                    let r = h / (node.stroke - p.stroke);
                     (node.k + r * (node.k - p.k), node.phi0 + r * (node.phi0 - p.phi0))
                 }
-                None => (node.k * 0.98, -0.2 * step.sqrt().min(0.3)),
+                None => (node.k * 0.98, -0.2 * h.sqrt().min(0.3)),
             };
             let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(target), guess) else {
                 if step < 1e-9 {
-                    return lost(node.stroke);
+                    return (lost(node.stroke), peaks);
                 }
                 step *= 0.5;
                 continue;
             };
             let q = point_d(D::c(k), D::c(phi0));
             let next = PointNode { k, phi0, stroke: target };
-            if q.axial.v <= 0.0 || q.stroke.v >= 1.0 || q.contact.v < prev_contact {
-                // Refine the stop between node and next.
-                return self.refine_point_limit(node, next, prev_contact);
+            if q.axial.v <= 0.0 {
+                let stroke = self.bisect_point(node, next, |q| q.axial.v > 0.0);
+                return (Limit { stroke, reason: LimitReason::AxialForceVanishes, phase: Phase::PointContact }, peaks);
             }
-            prev_contact = q.contact.v;
+            if peaks.axial.is_none() && q.axial.v < last_axial {
+                peaks.axial = Some(self.point_peak(prev.unwrap_or(node), next, |q| q.axial.v));
+            }
+            if peaks.contact.is_none() && q.contact.v < last_contact {
+                peaks.contact = Some(self.point_peak(prev.unwrap_or(node), next, |q| q.contact.v));
+            }
+            if target >= 1.0 {
+                return (Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::PointContact }, peaks);
+            }
+            last_axial = q.axial.v;
+            last_contact = q.contact.v;
             prev = Some(node);
             node = next;
             step = (step * 1.5).min(0.02);
         }
-        lost(node.stroke)
+        (lost(node.stroke), peaks)
     }
 
-    /// Refines where a point branch stops, between two solved nodes.
-    fn refine_point_limit(&self, a: PointNode, b: PointNode, contact_a: f64) -> Limit {
-        let qb = point_d(D::c(b.k), D::c(b.phi0));
-        if qb.stroke.v >= 1.0 {
-            return Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::PointContact };
-        }
-        if qb.axial.v <= 0.0 {
-            // Bisect on the axial force along the stroke.
-            let (mut lo, mut hi) = (a, b);
-            for _ in 0..60 {
-                let mid = 0.5 * (lo.stroke + hi.stroke);
-                let guess = (0.5 * (lo.k + hi.k), 0.5 * (lo.phi0 + hi.phi0));
-                let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(mid), guess) else { break };
-                let node = PointNode { k, phi0, stroke: mid };
-                if point_d(D::c(k), D::c(phi0)).axial.v > 0.0 { lo = node } else { hi = node }
-                if hi.stroke - lo.stroke < 1e-13 {
-                    break;
-                }
+    /// Bisects the stroke between two point nodes for the last stroke where `keep` holds.
+    fn bisect_point(&self, mut lo: PointNode, mut hi: PointNode, keep: impl Fn(&PointQ) -> bool) -> f64 {
+        for _ in 0..60 {
+            if hi.stroke - lo.stroke < 1e-13 {
+                break;
             }
-            return Limit { stroke: lo.stroke, reason: LimitReason::AxialForceVanishes, phase: Phase::PointContact };
+            let mid = 0.5 * (lo.stroke + hi.stroke);
+            let guess = (0.5 * (lo.k + hi.k), 0.5 * (lo.phi0 + hi.phi0));
+            let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(mid), guess) else { break };
+            let node = PointNode { k, phi0, stroke: mid };
+            if keep(&point_d(D::c(k), D::c(phi0))) {
+                lo = node;
+            } else {
+                hi = node;
+            }
         }
-        // Contact force peak: golden-section search on F over [a - step, b].
-        let _ = contact_a;
+        lo.stroke
+    }
+
+    /// Golden-section search for the stroke of the largest `measure` between two nodes.
+    fn point_peak(&self, a: PointNode, b: PointNode, measure: impl Fn(&PointQ) -> f64) -> f64 {
         let span = b.stroke - a.stroke;
-        let (mut lo, mut hi) = (a.stroke - span, b.stroke);
-        let contact_at = |s: f64| {
+        let at = |s: f64| {
             let t = (s - a.stroke) / span;
             let guess = (a.k + t * (b.k - a.k), a.phi0 + t * (b.phi0 - a.phi0));
             self.solve_point(PointGoal::Stroke(s), guess)
-                .map(|(k, p)| point_d(D::c(k), D::c(p)).contact.v)
+                .map(|(k, p)| measure(&point_d(D::c(k), D::c(p))))
                 .unwrap_or(f64::NEG_INFINITY)
         };
-        let ratio = 0.5 * (5.0_f64.sqrt() - 1.0);
-        let mut x1 = hi - ratio * (hi - lo);
-        let mut x2 = lo + ratio * (hi - lo);
-        let (mut f1, mut f2) = (contact_at(x1), contact_at(x2));
-        for _ in 0..80 {
-            if hi - lo < 1e-10 {
-                break;
-            }
-            if f1 < f2 {
-                lo = x1;
-                x1 = x2;
-                f1 = f2;
-                x2 = lo + ratio * (hi - lo);
-                f2 = contact_at(x2);
-            } else {
-                hi = x2;
-                x2 = x1;
-                f2 = f1;
-                x1 = hi - ratio * (hi - lo);
-                f1 = contact_at(x1);
-            }
-        }
-        Limit { stroke: 0.5 * (lo + hi), reason: LimitReason::ContactForcePeaks, phase: Phase::PointContact }
+        golden_max(a.stroke, b.stroke, at)
+    }
+
+    /// Strokes where the axial force and the contact force peak along the path before the
+    /// limit (`None`: each rises all the way). A falling axial force means negative actuator
+    /// stiffness; a falling contact force means more stroke loosens the grip.
+    pub fn peaks(&self) -> Peaks {
+        *self.peaks_cache.get_or_init(|| {
+            let Some(_) = self.first_contact else {
+                return Peaks { axial: None, contact: None };
+            };
+            let Some((ks, ds)) = self.line_onset else {
+                return self.march_without_line().1;
+            };
+            let kl = self.limit_data().1.unwrap_or(ks);
+            let gap = self.gap;
+            // In the point phase both forces rise to the onset (checked by the tests); scan
+            // line contact in k, where everything is explicit.
+            let peak_of = |pick: fn(&LineQ) -> f64| {
+                const N: usize = 24;
+                let ks_list: Vec<f64> = (0..=N).map(|i| ks + (kl - ks) * i as f64 / N as f64).collect();
+                let vals: Vec<f64> = ks_list.iter().map(|&k| pick(&line_d(D::c(k), gap))).collect();
+                let (imax, _) = vals.iter().enumerate().fold((0, f64::NEG_INFINITY), |acc, (i, &v)| if v > acc.1 { (i, v) } else { acc });
+                if imax == N {
+                    return None;
+                }
+                let lo = ks_list[imax.saturating_sub(1)];
+                let hi = ks_list[(imax + 1).min(N)];
+                let k = golden_max(lo, hi, |k| pick(&line_d(D::c(k), gap)));
+                Some(line_d(D::c(k), gap).stroke.v.max(ds))
+            };
+            Peaks { axial: peak_of(|q| q.axial.v), contact: peak_of(|q| q.contact.v) }
+        })
     }
 
     /// Two-equation Newton on `(k, phi0)`: crest on the wall plus `goal`, with a
@@ -902,7 +986,7 @@ impl Path {
     /// Solves line contact at `stroke` for `k`.
     fn line_k(&self, stroke: f64) -> Option<f64> {
         let (ks, _) = self.line_onset?;
-        let hi = self.limit_k?;
+        let hi = self.limit_data().1?;
         let gap = self.gap;
         newton_bracketed(ks, hi, ks + 0.3 * (hi - ks), 1e-15, |k| {
             let s = line_d(D::var(k, 0), gap).stroke;
@@ -912,7 +996,7 @@ impl Path {
 
     /// The phase the path is in at `stroke`.
     pub fn phase_at(&self, stroke: f64) -> Phase {
-        if !(stroke >= 0.0) || stroke > self.limit.stroke {
+        if !(stroke >= 0.0) || stroke > self.limit().stroke {
             return Phase::BeyondLimit;
         }
         match (self.first_contact, self.line_onset) {
@@ -1002,15 +1086,14 @@ impl Path {
         // Free phase first: the combination rises with k from zero.
         let (wk_c, wp_c) = (wk * self.scale_curvature, wp * self.scale_force);
         let eval_free = |k: f64| {
-            let [_, axial, _, kappa, _] = free_d(D::var(k, 0));
-            let v = wk_c * kappa + wp_c * axial - D::c(value);
-            (v.v, v.d[0])
+            let [_, axial, _, kappa, _] = free_d(D::c(k));
+            wk_c * kappa.v + wp_c * axial.v - value
         };
         let k_end = self.first_contact.map(|(k, _)| k).unwrap_or(k_chord_closed());
-        if eval_free(k_end).0 >= 0.0 {
-            let k = newton_bracketed(0.0, k_end, 0.5 * k_end, 1e-15, eval_free)?;
+        if eval_free(k_end) >= 0.0 {
+            let k = brent(0.0, k_end, eval_free)?;
             let stroke = free_d(D::c(k))[0].v;
-            return (stroke <= self.limit.stroke).then_some(stroke);
+            return (stroke <= self.limit().stroke).then_some(stroke);
         }
         if self.first_contact.is_none() {
             return None;
@@ -1029,7 +1112,7 @@ impl Path {
         }
         // Clamped-form weights for the phase equations.
         let (sk, sp, sf) = (wk * self.scale_curvature, wp * self.scale_force, wf * self.scale_force);
-        let point_end = self.line_onset.map(|(_, d)| d).unwrap_or(self.limit.stroke);
+        let point_end = self.line_onset.map(|(_, d)| d).unwrap_or(self.limit().stroke);
         let m_end = measure(&self.state(point_end));
         if m_end >= value {
             let goal = PointGoal::Linear { wk: sk, wp: sp, wf: sf, value };
@@ -1040,21 +1123,20 @@ impl Path {
                 .and_then(|guess| self.solve_point(goal, guess))
                 .or_else(|| self.march_point(goal, guess_stroke))?;
             let stroke = point_d(D::c(solved.0), D::c(solved.1)).stroke.v;
-            return (stroke <= self.limit.stroke).then_some(stroke);
+            return (stroke <= self.limit().stroke).then_some(stroke);
         }
         let (ks, _) = self.line_onset?;
-        let kl = self.limit_k?;
+        let kl = self.limit_data().1?;
         let gap = self.gap;
         let eval_line = |k: f64| {
-            let q = line_d(D::var(k, 0), gap);
-            let v = sk * q.kappa + sp * q.axial + sf * q.contact - D::c(value);
-            (v.v, v.d[0])
+            let q = line_d(D::c(k), gap);
+            (sk * q.kappa + sp * q.axial + sf * q.contact).v - value
         };
-        if eval_line(kl).0 < 0.0 {
+        if eval_line(kl) < 0.0 {
             return None;
         }
-        let k = newton_bracketed(ks, kl, 0.5 * (ks + kl), 1e-15, eval_line)?;
-        Some(line_d(D::c(k), gap).stroke.v.min(self.limit.stroke))
+        let k = brent(ks, kl, eval_line)?;
+        Some(line_d(D::c(k), gap).stroke.v.min(self.limit().stroke))
     }
 
     /// Points `(x, y)` along the whole strip (nondimensional; `x` from the first plate,

@@ -4,3 +4,6 @@ mod data_tables;
 mod elliptic_reference;
 mod small_gap;
 mod design_file;
+mod segment_model;
+mod elastica_reference;
+mod hostile;
