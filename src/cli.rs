@@ -25,6 +25,10 @@ use crate::sheet::{self, Paper};
 /// Default number of strokes on a `sweep`.
 pub const SWEEP_POINTS: usize = 200;
 
+/// Largest bore diameter the command line takes, mm (a kilometre: far past any design,
+/// well short of overflowing the geometry).
+pub const MAX_BORE_MM: f64 = 1e6;
+
 /// Most points `sweep` and `bores` accept.
 pub const MAX_POINTS: usize = 100_000_000;
 
@@ -202,11 +206,11 @@ fn stroke_mm(text: &str) -> Result<f64, String> {
 
 fn bore_mm(text: &str) -> Result<f64, String> {
     let v = number(text)?;
-    if v.is_finite() && v > 0.0 {
+    if v > 0.0 && v <= MAX_BORE_MM {
         Ok(v)
     } else {
         Err(format!(
-            "{v} is outside the allowed range: a finite bore diameter > 0 mm"
+            "{v} is outside the allowed range: a bore diameter > 0 and <= {MAX_BORE_MM} mm"
         ))
     }
 }
@@ -779,7 +783,9 @@ mod tests {
         assert!(stroke_mm("NaN").is_err_and(|e| e.contains(">= 0 mm")));
         assert!(stroke_mm("-1").is_err());
         assert_eq!(stroke_mm("2.5"), Ok(2.5));
-        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 mm")));
+        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 and <= 1000000 mm")));
+        assert!(bore_mm("1e300").is_err());
+        assert!(bore_mm("NaN").is_err());
         assert!(points("1").is_err_and(|e| e.contains("from 2 to")));
         assert_eq!(points("1000000"), Ok(1_000_000));
         assert!(points("abc").is_err());

@@ -277,7 +277,7 @@ fn bad_numbers_on_the_command_line_exit_2() {
             "--points",
             "5",
         ],
-        &["--from-mm", "finite"],
+        &["--from-mm", "NaN", "> 0"],
     );
     assert_refused(&["sheet", f, "-o", "x.pdf", "--paper", "a3"], &["--paper"]);
 }
