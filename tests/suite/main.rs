@@ -7,3 +7,4 @@ mod design_file;
 mod segment_model;
 mod elastica_reference;
 mod hostile;
+mod app;

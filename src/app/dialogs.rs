@@ -1,0 +1,569 @@
+//! The menu bar, the status line and the app's small windows: open and save-as with a
+//! typed path (and the desktop's file dialog when one answers), the unsaved-changes
+//! prompt, the recovery offer, the fitting helper, exports, the sizing sheet and the
+//! safety cautions.
+
+use std::path::{Path, PathBuf};
+
+use egui::{Context, RichText, Ui};
+
+use super::fit::{self, FitOutcome, FitVar};
+use super::inputs::{error_color, fmt_value};
+use super::state::{PaperChoice, ThemeChoice};
+use super::{Command, Gesture, GripApp, Pending, export, outputs};
+use crate::design;
+use crate::sheet::{self, Paper};
+
+/// The safety cautions, shown in their own window and in short in the verdict panel.
+pub const CAUTIONS: [&str; 6] = [
+    "Bowed strips store spring energy. A strip that breaks, slips out of its clamp or is released suddenly can snap outward or fly: wear eye protection, keep hands clear, and release the actuator slowly.",
+    "The end plates close on each other as the segment grips: they pinch fingers and cables. Never hold the segment by its strips or plates while it is being actuated.",
+    "Work in pipes, ducts and vessels can be confined-space entry: follow your site's permit, gas testing, ventilation and rescue rules.",
+    "A pipe may hold pressure, residues or flow. Isolate, vent and drain it before inserting or retrieving anything, and never rely on the segment to hold against pressure.",
+    "Friction values and material data are typical figures, not guarantees: test the real strip in the real bore before relying on the grip.",
+    "These results are a design aid only. Defer to local codes, standards and the judgement of a licensed professional engineer for anything that can hurt people or property.",
+];
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum FileMode {
+    Open,
+    SaveAs,
+}
+
+struct FileBox {
+    mode: FileMode,
+    path: String,
+    note: Option<String>,
+}
+
+/// State of the small windows.
+#[derive(Default)]
+pub struct Dialogs {
+    file_box: Option<FileBox>,
+    pub show_cautions: bool,
+    show_fit: bool,
+    fit_var: Option<FitVar>,
+    fit_result: Option<FitOutcome>,
+    show_export: bool,
+    export_base: String,
+    show_print: bool,
+    print_path: String,
+    /// The window should close now (the quit was confirmed).
+    pub quit_requested: bool,
+}
+
+impl Dialogs {
+    /// Opens the "open a design" window.
+    pub fn open_open(&mut self, current: Option<&Path>) {
+        let dir = current
+            .and_then(Path::parent)
+            .map(|p| p.display().to_string())
+            .unwrap_or_default();
+        let path = if dir.is_empty() {
+            String::new()
+        } else {
+            format!("{dir}/")
+        };
+        self.file_box = Some(FileBox {
+            mode: FileMode::Open,
+            path,
+            note: None,
+        });
+    }
+
+    /// Opens the "save as" window, prefilled with the current file.
+    pub fn open_save_as(&mut self, current: Option<&Path>) {
+        let path = current.map_or_else(|| "untitled.ron".to_string(), |p| p.display().to_string());
+        self.file_box = Some(FileBox {
+            mode: FileMode::SaveAs,
+            path,
+            note: None,
+        });
+    }
+}
+
+/// The menu bar.
+pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
+    egui::Panel::top("menu").show(ui, |ui| {
+        egui::MenuBar::new().ui(ui, |ui| {
+            ui.menu_button("File", |ui| {
+                if ui.button("New design            Ctrl+N").clicked() {
+                    app.push(Command::New);
+                }
+                if ui.button("Open…                 Ctrl+O").clicked() {
+                    app.dialogs.open_open(app.doc.path.as_deref());
+                }
+                if ui.button("Save                  Ctrl+S").clicked() {
+                    app.push(Command::Save);
+                }
+                if ui.button("Save as…        Ctrl+Shift+S").clicked() {
+                    app.dialogs.open_save_as(app.doc.path.as_deref());
+                }
+                ui.menu_button("Recent files", |ui| {
+                    if app.session.recent.is_empty() {
+                        ui.label("none yet");
+                    }
+                    for p in app.session.recent.clone() {
+                        if ui.button(p.display().to_string()).clicked() {
+                            app.push(Command::Open(p));
+                        }
+                    }
+                });
+                ui.separator();
+                if ui.button("Quit").clicked() {
+                    app.push(Command::Quit);
+                }
+            });
+            ui.menu_button("Edit", |ui| {
+                if ui
+                    .add_enabled(
+                        !app.doc.undo.is_empty() || app.doc.gesture_start.is_some(),
+                        egui::Button::new("Undo   Ctrl+Z"),
+                    )
+                    .clicked()
+                {
+                    app.push(Command::Undo);
+                }
+                if ui
+                    .add_enabled(!app.doc.redo.is_empty(), egui::Button::new("Redo   Ctrl+Y"))
+                    .clicked()
+                {
+                    app.push(Command::Redo);
+                }
+            });
+            ui.menu_button("Tools", |ui| {
+                if ui.button("Fit one value…").clicked() {
+                    app.dialogs.show_fit = true;
+                }
+                if ui.button("Print sizing sheet…").clicked() {
+                    app.dialogs.show_print = true;
+                    app.dialogs.print_path = default_beside(app.doc.path.as_deref(), "pdf");
+                }
+                if ui.button("Export plots and tables…").clicked() {
+                    app.dialogs.show_export = true;
+                    let base = default_beside(app.doc.path.as_deref(), "ron");
+                    app.dialogs.export_base = base.trim_end_matches(".ron").to_string();
+                }
+            });
+            ui.menu_button("View", |ui| {
+                for t in ThemeChoice::ALL {
+                    if ui.radio(app.session.theme == t, t.label()).clicked() {
+                        app.session.theme = t;
+                        app.store_session();
+                    }
+                }
+                ui.separator();
+                if ui.button("Safety cautions").clicked() {
+                    app.dialogs.show_cautions = true;
+                }
+            });
+        });
+    });
+}
+
+/// `<design file>.<ext>` next to the design, or `untitled.<ext>` in the working directory.
+fn default_beside(path: Option<&Path>, ext: &str) -> String {
+    match path {
+        Some(p) => p.with_extension(ext).display().to_string(),
+        None => std::env::current_dir()
+            .map(|d| d.join(format!("untitled.{ext}")).display().to_string())
+            .unwrap_or_else(|_| format!("untitled.{ext}")),
+    }
+}
+
+/// The status line.
+pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
+    egui::Panel::bottom("status").show(ui, |ui| {
+        ui.horizontal(|ui| {
+            if app.doc.dirty {
+                ui.label(RichText::new("* unsaved").strong()).on_hover_text(
+                    "There are changes not yet saved; a recovery copy is kept every few seconds.",
+                );
+            }
+            if let Some(s) = &app.status {
+                let text = RichText::new(&s.text);
+                ui.label(if s.is_error {
+                    text.color(error_color(ui))
+                } else {
+                    text
+                });
+            }
+            ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+                if ui
+                    .small_button("Safety cautions")
+                    .on_hover_text("Hazards of building and using these segments")
+                    .clicked()
+                {
+                    app.dialogs.show_cautions = true;
+                }
+                ui.label(
+                    RichText::new("A design aid only: defer to local codes and licensed practice.")
+                        .small(),
+                );
+            });
+        });
+    });
+}
+
+/// All windows, drawn over the panels.
+pub fn windows(app: &mut GripApp, ctx: &Context) {
+    file_window(app, ctx);
+    guard_window(app, ctx);
+    recovery_window(app, ctx);
+    fit_window(app, ctx);
+    export_window(app, ctx);
+    print_window(app, ctx);
+    let mut open = app.dialogs.show_cautions;
+    egui::Window::new("Safety cautions")
+        .open(&mut open)
+        .default_width(460.0)
+        .show(ctx, |ui| {
+            for c in CAUTIONS {
+                ui.label(format!("• {c}"));
+                ui.add_space(4.0);
+            }
+        });
+    app.dialogs.show_cautions = open;
+}
+
+fn file_window(app: &mut GripApp, ctx: &Context) {
+    let Some(mut fb) = app.dialogs.file_box.take() else {
+        return;
+    };
+    let title = if fb.mode == FileMode::Open {
+        "Open a design"
+    } else {
+        "Save the design as"
+    };
+    let mut keep = true;
+    egui::Window::new(title).collapsible(false).show(ctx, |ui| {
+        ui.horizontal(|ui| {
+            let label = ui.label("Path");
+            let resp = ui.add(egui::TextEdit::singleline(&mut fb.path).desired_width(380.0)).labelled_by(label.id).on_hover_text("Type the design file's path (.ron).");
+            let enter = resp.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
+            if enter {
+                keep = !finish_file(app, &fb);
+            }
+        });
+        if let Some(n) = &fb.note {
+            ui.label(RichText::new(n).small());
+        }
+        ui.horizontal(|ui| {
+            let go = if fb.mode == FileMode::Open { "Open" } else { "Save" };
+            if ui.button(go).clicked() {
+                keep = !finish_file(app, &fb);
+            }
+            if ui.button("Browse…").on_hover_text("Use the desktop's file dialog, if one is available.").clicked() {
+                let picked = if app.system_dialogs {
+                    let dialog = rfd::FileDialog::new().add_filter("bowgrip design", &["ron"]);
+                    if fb.mode == FileMode::Open { dialog.pick_file() } else { dialog.save_file() }
+                } else {
+                    None
+                };
+                match picked {
+                    Some(p) => {
+                        fb.path = p.display().to_string();
+                        keep = !finish_file(app, &fb);
+                    }
+                    None => fb.note = Some("No file dialog answered (none is available here, or it was closed): type the path above.".to_string()),
+                }
+            }
+            if ui.button("Cancel").clicked() {
+                keep = false;
+            }
+        });
+    });
+    if keep {
+        app.dialogs.file_box = Some(fb);
+    }
+}
+
+/// Records the open or save for the typed path; true when the window can close.
+fn finish_file(app: &mut GripApp, fb: &FileBox) -> bool {
+    let path = PathBuf::from(fb.path.trim());
+    if fb.path.trim().is_empty() {
+        return false;
+    }
+    match fb.mode {
+        FileMode::Open => app.push(Command::Open(path)),
+        FileMode::SaveAs => app.push(Command::SaveAs(path)),
+    }
+    true
+}
+
+fn guard_window(app: &mut GripApp, ctx: &Context) {
+    let Some(pending) = app.guard.clone() else {
+        return;
+    };
+    let what = match &pending {
+        Pending::New => "starting a new design".to_string(),
+        Pending::Open(p) => format!("opening {}", p.display()),
+        Pending::Quit => "quitting".to_string(),
+    };
+    egui::Modal::new(egui::Id::unique("unsaved-changes")).show(ctx, |ui| {
+        ui.heading("Unsaved changes");
+        ui.label(format!(
+            "{} has changes that are not saved. Discard them before {what}?",
+            app.doc.file_label()
+        ));
+        ui.horizontal(|ui| {
+            if let Some(path) = app.doc.path.clone() {
+                if ui.button("Save, then continue").clicked() {
+                    app.guard = None;
+                    app.push(Command::SaveAs(path));
+                    app.push(Command::Discard(pending.clone()));
+                }
+            } else if ui.button("Save as…").clicked() {
+                app.guard = None;
+                app.dialogs.open_save_as(None);
+            }
+            if ui.button("Discard changes").clicked() {
+                app.push(Command::Discard(pending.clone()));
+            }
+            if ui.button("Cancel").clicked() {
+                app.guard = None;
+            }
+        });
+    });
+}
+
+fn recovery_window(app: &mut GripApp, ctx: &Context) {
+    let Some((rec, design)) = &app.recovery_offer else {
+        return;
+    };
+    let from = rec.source.as_ref().map_or_else(
+        || "an untitled design".to_string(),
+        |p| p.display().to_string(),
+    );
+    let title = design.title.clone();
+    let mut later = false;
+    egui::Modal::new(egui::Id::unique("recovery")).show(ctx, |ui| {
+        ui.heading("Recover unsaved work?");
+        ui.label(format!(
+            "The last session ended with unsaved changes to {from} (\"{title}\"). A copy was kept."
+        ));
+        ui.horizontal(|ui| {
+            if ui.button("Restore it").clicked() {
+                app.push(Command::Restore);
+            }
+            if ui.button("Discard the copy").clicked() {
+                app.push(Command::DropRecovery);
+            }
+            if ui
+                .button("Decide later")
+                .on_hover_text("Keep the copy on disk and carry on.")
+                .clicked()
+            {
+                later = true;
+            }
+        });
+    });
+    if later {
+        app.recovery_offer = None;
+    }
+}
+
+fn fit_window(app: &mut GripApp, ctx: &Context) {
+    let mut open = app.dialogs.show_fit;
+    egui::Window::new("Fit one value").open(&mut open).default_width(420.0).show(ctx, |ui| {
+        ui.label("Find the value at which the segment just holds the load x safety factor at the largest bore, with every other check passing.");
+        let var = app.dialogs.fit_var.unwrap_or(FitVar::Thickness);
+        ui.horizontal(|ui| {
+            let label = ui.label("Vary");
+            egui::ComboBox::from_id_salt("fit-var").selected_text(var.label()).show_ui(ui, |ui| {
+                for v in FitVar::ALL {
+                    if ui.selectable_label(v == var, v.label()).clicked() {
+                        app.dialogs.fit_var = Some(v);
+                        app.dialogs.fit_result = None;
+                    }
+                }
+            }).response.labelled_by(label.id);
+            ui.label(format!("now {} {}", fmt_value(var.get(&app.doc.design)), var.unit()));
+        });
+        if ui.button("Solve").clicked() {
+            app.dialogs.fit_result = Some(fit::fit(&app.doc.design, var));
+        }
+        match app.dialogs.fit_result.clone() {
+            Some(FitOutcome::Found { value, design, hold_margin }) => {
+                ui.label(format!("{} = {} {}: every check passes; holding margin {}.", var.label(), fmt_value(value), var.unit(), hold_margin.map_or("n/a".to_string(), |m| format!("{:+.1} %", 100.0 * m))));
+                if ui.button("Apply").clicked() {
+                    app.push(Command::Edit(Box::new(design), Gesture::Done));
+                    app.dialogs.fit_result = None;
+                }
+            }
+            Some(FitOutcome::Blocked(why)) => {
+                ui.label(RichText::new(why).color(error_color(ui)));
+            }
+            None => {}
+        }
+    });
+    app.dialogs.show_fit = open;
+}
+
+fn export_window(app: &mut GripApp, ctx: &Context) {
+    let mut open = app.dialogs.show_export;
+    egui::Window::new("Export plots and tables")
+        .open(&mut open)
+        .default_width(460.0)
+        .show(ctx, |ui| {
+            ui.horizontal(|ui| {
+                let label = ui.label("Files start with");
+                ui.add(
+                    egui::TextEdit::singleline(&mut app.dialogs.export_base).desired_width(320.0),
+                )
+                .labelled_by(label.id)
+                .on_hover_text("Path prefix; each export adds its own ending.");
+            });
+            let Some(a) = app.analysis.as_ref() else {
+                return;
+            };
+            let base = app.dialogs.export_base.trim().to_string();
+            let jobs: [(&str, &str, Box<dyn Fn() -> String + '_>); 5] = [
+                (
+                    "Stroke-bore plot (SVG)",
+                    "-window.svg",
+                    Box::new(|| {
+                        export::svg_chart(
+                            "Stroke against bore",
+                            "bore diameter, mm",
+                            "stroke, mm",
+                            &outputs::window_curves(a)
+                                .iter()
+                                .map(outputs::Curve::to_svg)
+                                .collect::<Vec<_>>(),
+                        )
+                    }),
+                ),
+                (
+                    "Force plot (SVG)",
+                    "-forces.svg",
+                    Box::new(|| {
+                        export::svg_chart(
+                            "Forces against stroke, nominal bore",
+                            "stroke, mm",
+                            "force, N",
+                            &outputs::force_curves(a)
+                                .iter()
+                                .map(outputs::Curve::to_svg)
+                                .collect::<Vec<_>>(),
+                        )
+                    }),
+                ),
+                (
+                    "Stress plot (SVG)",
+                    "-stress.svg",
+                    Box::new(|| {
+                        export::svg_chart(
+                            "Peak stress against stroke, nominal bore",
+                            "stroke, mm",
+                            "stress, MPa",
+                            &outputs::stress_curves(a)
+                                .iter()
+                                .map(outputs::Curve::to_svg)
+                                .collect::<Vec<_>>(),
+                        )
+                    }),
+                ),
+                (
+                    "Force-stroke curve (CSV)",
+                    "-curve.csv",
+                    Box::new(|| export::curve_csv(&a.curve)),
+                ),
+                (
+                    "Stroke-bore window (CSV)",
+                    "-window.csv",
+                    Box::new(|| export::window_csv(&a.window)),
+                ),
+            ];
+            let mut report = Vec::new();
+            let all = ui.button("Export all").clicked();
+            for (label, ending, make) in &jobs {
+                if ui.button(*label).clicked() || all {
+                    let path = format!("{base}{ending}");
+                    report.push(match std::fs::write(&path, make()) {
+                        Ok(()) => (format!("Wrote {path}."), false),
+                        Err(e) => (format!("Could not write {path}: {e}"), true),
+                    });
+                }
+            }
+            if !report.is_empty() {
+                let failed = report.iter().any(|r| r.1);
+                let text = report
+                    .into_iter()
+                    .map(|r| r.0)
+                    .collect::<Vec<_>>()
+                    .join(" ");
+                app.status = Some(super::Status {
+                    text,
+                    is_error: failed,
+                });
+            }
+            ui.label(
+                RichText::new(
+                    "PNG images: use your desktop's screenshot tool; the SVGs scale without loss.",
+                )
+                .small(),
+            );
+        });
+    app.dialogs.show_export = open;
+}
+
+fn print_window(app: &mut GripApp, ctx: &Context) {
+    let mut open = app.dialogs.show_print;
+    egui::Window::new("Print sizing sheet").open(&mut open).default_width(460.0).show(ctx, |ui| {
+        ui.horizontal(|ui| {
+            ui.label("Paper");
+            for (p, name) in [(PaperChoice::A4, "A4"), (PaperChoice::Letter, "Letter")] {
+                if ui.radio(app.session.paper == p, name).clicked() {
+                    app.session.paper = p;
+                }
+            }
+        });
+        ui.horizontal(|ui| {
+            let label = ui.label("PDF path");
+            ui.add(egui::TextEdit::singleline(&mut app.dialogs.print_path).desired_width(340.0)).labelled_by(label.id).on_hover_text("Where the sheet is written; by default next to the design file.");
+        });
+        if ui.button("Write the sheet").clicked() {
+            print_sheet(app);
+        }
+        ui.label(RichText::new("The sheet carries the same safety cautions; it is a design aid, not an approval.").small());
+    });
+    app.dialogs.show_print = open;
+}
+
+fn print_sheet(app: &mut GripApp) {
+    let path = PathBuf::from(app.dialogs.print_path.trim());
+    let label = app.doc.file_label();
+    // The bytes the sheet hashes: the saved file when it is up to date, else the design as it would be saved.
+    let bytes = match (&app.doc.path, app.doc.dirty) {
+        (Some(p), false) => {
+            std::fs::read(p).unwrap_or_else(|_| design::to_ron(&app.doc.design).into_bytes())
+        }
+        _ => design::to_ron(&app.doc.design).into_bytes(),
+    };
+    let paper = match app.session.paper {
+        PaperChoice::A4 => Paper::A4,
+        PaperChoice::Letter => Paper::Letter,
+    };
+    match sheet::render(&app.doc.design, &label, &bytes, paper) {
+        Err(e) => app.fail(format!("The sizing sheet could not be made: {e}")),
+        Ok(pdf) => match std::fs::write(&path, pdf) {
+            Err(e) => app.fail(format!(
+                "Could not write the sheet to {}: {e}",
+                path.display()
+            )),
+            Ok(()) => {
+                let opened = app.system_dialogs
+                    && std::process::Command::new("xdg-open")
+                        .arg(&path)
+                        .spawn()
+                        .is_ok();
+                app.say(format!(
+                    "Sizing sheet written to {}{}.",
+                    path.display(),
+                    if opened { " and opened" } else { "" }
+                ));
+            }
+        },
+    }
+}

@@ -1,0 +1,1212 @@
+//! The input panel: every number of the design as a slider and a typed field with its
+//! unit, the choices (grade, ends, stiffness, bore form, actuator kind, friction pair) as
+//! radio buttons and lists. It edits a copy of the design and returns commands; a value
+//! that does not validate is not applied, and the field says why (the plausible-range
+//! message of [`crate::design::limits`]) while the last valid design stays analysed.
+
+use std::collections::HashMap;
+
+use egui::{Color32, RichText, Ui};
+
+use super::{Command, Gesture};
+use crate::analysis::Analysis;
+use crate::design::{self, Actuator, Design, Ends, MaterialChoice, PipeRef, Stiffness};
+use crate::{friction, material, pipe};
+
+/// One numeric row: what it edits and how its slider behaves.
+struct Row<'a> {
+    /// Field path in the design file (for the limit table) or a key of the app's own.
+    key: &'static str,
+    label: &'a str,
+    tip: &'a str,
+    unit: &'a str,
+    lo: f64,
+    hi: f64,
+    log: bool,
+    integer: bool,
+}
+
+impl<'a> Row<'a> {
+    fn new(
+        key: &'static str,
+        label: &'a str,
+        unit: &'a str,
+        lo: f64,
+        hi: f64,
+        tip: &'a str,
+    ) -> Row<'a> {
+        Row {
+            key,
+            label,
+            tip,
+            unit,
+            lo,
+            hi,
+            log: false,
+            integer: false,
+        }
+    }
+    fn log(mut self) -> Self {
+        self.log = true;
+        self
+    }
+    fn integer(mut self) -> Self {
+        self.integer = true;
+        self
+    }
+}
+
+/// Typed text in a field, kept while it differs from the design (being typed, or refused).
+#[derive(Clone, Debug)]
+struct Typed {
+    text: String,
+    /// The design value the text was typed over.
+    over: f64,
+}
+
+/// The input panel's own state (not persisted).
+#[derive(Default)]
+pub struct InputsPanel {
+    typed: HashMap<&'static str, Typed>,
+    errors: HashMap<&'static str, String>,
+    /// Field of the gesture in progress.
+    active: Option<&'static str>,
+    /// Friction pair picked from the table, by id.
+    friction_pair: Option<String>,
+}
+
+/// Formats a value for a typed field: whole numbers plainly, others to about five
+/// significant digits.
+pub fn fmt_value(v: f64) -> String {
+    if !v.is_finite() {
+        return v.to_string();
+    }
+    if v.fract() == 0.0 && v.abs() < 1e15 {
+        return format!("{}", v as i64);
+    }
+    let digits = (4 - v.abs().log10().floor() as i32).clamp(0, 8) as usize;
+    let s = format!("{v:.digits$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+impl InputsPanel {
+    /// Draws the panel and returns the commands it recorded.
+    pub fn ui(&mut self, ui: &mut Ui, d: &Design, analysis: Option<&Analysis>) -> Vec<Command> {
+        let mut out = Vec::new();
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                ui.heading("Design");
+                self.title_ui(ui, d, &mut out);
+                section(ui, "Strips", |ui| self.strip_ui(ui, d, analysis, &mut out));
+                section(ui, "Hub and bore", |ui| self.bore_ui(ui, d, &mut out));
+                section(ui, "Actuator", |ui| {
+                    self.actuator_ui(ui, d, analysis, &mut out)
+                });
+                section(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
+                section(ui, "Operating point", |ui| self.stroke_ui(ui, d, &mut out));
+            });
+        out
+    }
+
+    fn title_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+        ui.horizontal(|ui| {
+            let label = ui.label("Title");
+            let mut title = d.title.clone();
+            let resp = ui
+                .add(egui::TextEdit::singleline(&mut title).desired_width(f32::INFINITY))
+                .labelled_by(label.id)
+                .on_hover_text("Free text naming the design; printed on the sizing sheet.");
+            if resp.changed() {
+                let mut next = d.clone();
+                next.title = title;
+                out.push(Command::Edit(Box::new(next), Gesture::Ongoing));
+            }
+            if resp.lost_focus() {
+                out.push(Command::EndGesture);
+            }
+        });
+    }
+
+    /// One numeric row in a 4-column grid: label, slider, typed field, unit; an error
+    /// line under it when the last entry was refused.
+    fn row(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        row: Row<'_>,
+        value: f64,
+        out: &mut Vec<Command>,
+        set: impl Fn(&mut Design, f64),
+    ) {
+        let limit = design::limit(row.key);
+        let tip = match limit {
+            Some(l) => format!(
+                "{}\nAllowed: {} to {} {}",
+                row.tip,
+                fmt_value(l.min),
+                fmt_value(l.max_for(d)),
+                l.unit
+            ),
+            None => row.tip.to_string(),
+        };
+        let label = ui.label(row.label).on_hover_text(&tip);
+        // Slider.
+        let mut v = value;
+        let mut slider = egui::Slider::new(&mut v, row.lo..=row.hi)
+            .show_value(false)
+            .clamping(egui::SliderClamping::Never)
+            .logarithmic(row.log);
+        if row.log && row.lo <= 0.0 {
+            slider = slider.smallest_positive(row.hi * 1e-4);
+        }
+        if row.integer {
+            slider = slider.integer();
+        }
+        let resp = ui.add(slider).labelled_by(label.id).on_hover_text(&tip);
+        if resp.changed() {
+            let gesture = if resp.dragged() {
+                Gesture::Ongoing
+            } else {
+                Gesture::Done
+            };
+            self.take_gesture(row.key, out);
+            self.propose(d, row.key, v, row.integer, gesture, out, &set);
+            self.typed.remove(row.key);
+        }
+        if resp.drag_stopped() {
+            out.push(Command::EndGesture);
+            self.active = None;
+        }
+        // Typed field.
+        let shown = match self.typed.get(row.key) {
+            Some(t) if t.over == value => t.text.clone(),
+            _ => fmt_value(value),
+        };
+        let mut text = shown;
+        let resp = ui
+            .add(egui::TextEdit::singleline(&mut text).desired_width(88.0))
+            .labelled_by(label.id)
+            .on_hover_text(&tip);
+        if resp.changed() {
+            self.typed.insert(
+                row.key,
+                Typed {
+                    text: text.clone(),
+                    over: value,
+                },
+            );
+            self.take_gesture(row.key, out);
+            match text.trim().parse::<f64>() {
+                Ok(x) => self.propose(d, row.key, x, row.integer, Gesture::Ongoing, out, &set),
+                Err(_) => {
+                    let allowed = limit
+                        .map(|l| {
+                            format!(
+                                "; allowed {} to {} {}",
+                                fmt_value(l.min),
+                                fmt_value(l.max_for(d)),
+                                l.unit
+                            )
+                        })
+                        .unwrap_or_default();
+                    self.errors.insert(
+                        row.key,
+                        format!("{}: {:?} is not a number{allowed}", row.key, text.trim()),
+                    );
+                }
+            }
+        }
+        if resp.lost_focus() {
+            self.typed.remove(row.key);
+            out.push(Command::EndGesture);
+            self.active = None;
+        }
+        ui.label(row.unit);
+        ui.end_row();
+        if let Some(err) = self.errors.get(row.key) {
+            ui.label("");
+            ui.label(
+                RichText::new(format!("{err}; kept {} {}", fmt_value(value), row.unit))
+                    .color(error_color(ui))
+                    .small(),
+            );
+            ui.end_row();
+        }
+    }
+
+    /// Ends the previous field's gesture when another field starts one.
+    fn take_gesture(&mut self, key: &'static str, out: &mut Vec<Command>) {
+        if self.active.is_some_and(|k| k != key) {
+            out.push(Command::EndGesture);
+        }
+        self.active = Some(key);
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn propose(
+        &mut self,
+        d: &Design,
+        key: &'static str,
+        v: f64,
+        integer: bool,
+        gesture: Gesture,
+        out: &mut Vec<Command>,
+        set: &impl Fn(&mut Design, f64),
+    ) {
+        if integer && v.fract() != 0.0 {
+            self.errors
+                .insert(key, format!("{key}: {v} is not a whole number"));
+            return;
+        }
+        let mut next = d.clone();
+        set(&mut next, v);
+        match next.validate() {
+            Ok(()) => {
+                self.errors.remove(key);
+                out.push(Command::Edit(Box::new(next), gesture));
+            }
+            Err(e) => {
+                self.errors.insert(key, e.to_string());
+            }
+        }
+    }
+
+    fn choice(out: &mut Vec<Command>, d: &Design, change: impl FnOnce(&mut Design)) {
+        let mut next = d.clone();
+        change(&mut next);
+        if next != *d {
+            out.push(Command::Edit(Box::new(next), Gesture::Done));
+        }
+    }
+
+    fn strip_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        analysis: Option<&Analysis>,
+        out: &mut Vec<Command>,
+    ) {
+        let s = &d.strip;
+        grid(ui, "strip", |ui| {
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "strip.count",
+                    "Strips",
+                    "",
+                    2.0,
+                    64.0,
+                    "Number of identical strips around the hub; they share the load equally.",
+                )
+                .integer(),
+                f64::from(s.count),
+                out,
+                |d, v| d.strip.count = v.clamp(0.0, f64::from(u32::MAX)) as u32,
+            );
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "strip.free_length_mm",
+                    "Free length",
+                    "mm",
+                    5.0,
+                    1000.0,
+                    "Strip length between the end-plate clamps or hinges.",
+                )
+                .log(),
+                s.free_length_mm,
+                out,
+                |d, v| d.strip.free_length_mm = v,
+            );
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "strip.width_mm",
+                    "Width",
+                    "mm",
+                    0.2,
+                    100.0,
+                    "Strip width, tangential to the hub.",
+                )
+                .log(),
+                s.width_mm,
+                out,
+                |d, v| d.strip.width_mm = v,
+            );
+            self.row(ui, d, Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 3.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), s.thickness_mm, out, |d, v| d.strip.thickness_mm = v);
+        });
+        // Material.
+        ui.horizontal(|ui| {
+            let label = ui.label("Material");
+            let current = match &s.material {
+                MaterialChoice::Grade(id) => {
+                    material::find(id).map_or(id.clone(), |m| m.name.clone())
+                }
+                MaterialChoice::Custom { name, .. } => format!("custom: {name}"),
+            };
+            let resp = egui::ComboBox::from_id_salt("grade")
+                .selected_text(current)
+                .width(260.0)
+                .show_ui(ui, |ui| {
+                    for m in material::library() {
+                        let on = matches!(&s.material, MaterialChoice::Grade(id) if *id == m.id);
+                        if ui
+                            .selectable_label(on, &m.name)
+                            .on_hover_text(&m.note)
+                            .clicked()
+                            && !on
+                        {
+                            Self::choice(out, d, |n| {
+                                n.strip.material = MaterialChoice::Grade(m.id.clone())
+                            });
+                        }
+                    }
+                    let custom = matches!(s.material, MaterialChoice::Custom { .. });
+                    if ui.selectable_label(custom, "Custom values…").clicked() && !custom {
+                        let base =
+                            analysis
+                                .map(|a| a.segment.material.clone())
+                                .unwrap_or_else(|| {
+                                    material::custom(
+                                        "custom strip",
+                                        193.0,
+                                        0.3,
+                                        1300.0,
+                                        1000.0,
+                                        400.0,
+                                    )
+                                });
+                        Self::choice(out, d, |n| {
+                            n.strip.material = MaterialChoice::Custom {
+                                name: format!("custom ({})", base.name),
+                                youngs_modulus_gpa: base.youngs_modulus_gpa,
+                                poisson_ratio: base.poisson_ratio,
+                                tensile_strength_mpa: base.tensile_strength_mpa,
+                                yield_strength_mpa: base.yield_strength_mpa,
+                                endurance_limit_mpa: base.endurance_limit_mpa,
+                            }
+                        });
+                    }
+                });
+            resp.response.labelled_by(label.id).on_hover_text(
+                "Strip grade from the built-in table (values with sources), or values you enter.",
+            );
+        });
+        match &s.material {
+            MaterialChoice::Grade(id) => {
+                if let Some(m) = material::find(id) {
+                    ui.label(
+                        RichText::new(format!(
+                            "E {} GPa, nu {}, tensile {} MPa, yield {} MPa, endurance {} MPa",
+                            m.youngs_modulus_gpa,
+                            m.poisson_ratio,
+                            m.tensile_strength_mpa,
+                            m.yield_strength_mpa,
+                            m.endurance_limit_mpa
+                        ))
+                        .small(),
+                    )
+                    .on_hover_text(format!(
+                        "Sources:\nmodulus: {}\nPoisson: {}\ntensile: {}\nyield: {}\nendurance: {}",
+                        m.sources.modulus,
+                        m.sources.poisson,
+                        m.sources.tensile,
+                        m.sources.yield_strength,
+                        m.sources.endurance
+                    ));
+                }
+            }
+            MaterialChoice::Custom {
+                name,
+                youngs_modulus_gpa,
+                poisson_ratio,
+                tensile_strength_mpa,
+                yield_strength_mpa,
+                endurance_limit_mpa,
+            } => {
+                ui.horizontal(|ui| {
+                    let label = ui.label("Name");
+                    let mut n = name.clone();
+                    if ui
+                        .text_edit_singleline(&mut n)
+                        .labelled_by(label.id)
+                        .on_hover_text("Name printed on the sizing sheet; must not be empty.")
+                        .changed()
+                    {
+                        let mut next = d.clone();
+                        if let MaterialChoice::Custom { name, .. } = &mut next.strip.material {
+                            *name = n;
+                        }
+                        if let Err(e) = next.validate() {
+                            self.errors.insert("strip.material.name", e.to_string());
+                        } else {
+                            self.errors.remove("strip.material.name");
+                            out.push(Command::Edit(Box::new(next), Gesture::Ongoing));
+                        }
+                    }
+                });
+                if let Some(e) = self.errors.get("strip.material.name") {
+                    ui.label(RichText::new(e).color(error_color(ui)).small());
+                }
+                fn custom(
+                    d: &mut Design,
+                    f: impl FnOnce(&mut f64, &mut f64, &mut f64, &mut f64, &mut f64),
+                ) {
+                    if let MaterialChoice::Custom {
+                        youngs_modulus_gpa,
+                        poisson_ratio,
+                        tensile_strength_mpa,
+                        yield_strength_mpa,
+                        endurance_limit_mpa,
+                        ..
+                    } = &mut d.strip.material
+                    {
+                        f(
+                            youngs_modulus_gpa,
+                            poisson_ratio,
+                            tensile_strength_mpa,
+                            yield_strength_mpa,
+                            endurance_limit_mpa,
+                        );
+                    }
+                }
+                grid(ui, "custom-material", |ui| {
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "strip.material.youngs_modulus_gpa",
+                            "Young's modulus",
+                            "GPa",
+                            10.0,
+                            500.0,
+                            "Elastic modulus of the strip material.",
+                        ),
+                        *youngs_modulus_gpa,
+                        out,
+                        |d, v| custom(d, |e, _, _, _, _| *e = v),
+                    );
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "strip.material.poisson_ratio",
+                            "Poisson's ratio",
+                            "",
+                            0.0,
+                            0.5,
+                            "Used by the plate stiffness E/(1-nu^2).",
+                        ),
+                        *poisson_ratio,
+                        out,
+                        |d, v| custom(d, |_, n, _, _, _| *n = v),
+                    );
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "strip.material.tensile_strength_mpa",
+                            "Tensile strength",
+                            "MPa",
+                            1.0,
+                            5000.0,
+                            "Ultimate tensile strength; 0.75 of it is the static allowable.",
+                        )
+                        .log(),
+                        *tensile_strength_mpa,
+                        out,
+                        |d, v| custom(d, |_, _, t, _, _| *t = v),
+                    );
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "strip.material.yield_strength_mpa",
+                            "Yield strength",
+                            "MPa",
+                            1.0,
+                            5000.0,
+                            "Yield strength; must not exceed the tensile strength.",
+                        )
+                        .log(),
+                        *yield_strength_mpa,
+                        out,
+                        |d, v| custom(d, |_, _, _, y, _| *y = v),
+                    );
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "strip.material.endurance_limit_mpa",
+                            "Endurance strength",
+                            "MPa",
+                            1.0,
+                            5000.0,
+                            "Fully reversed endurance strength at 10^6 cycles and beyond.",
+                        )
+                        .log(),
+                        *endurance_limit_mpa,
+                        out,
+                        |d, v| custom(d, |_, _, _, _, e| *e = v),
+                    );
+                });
+            }
+        }
+        ui.horizontal(|ui| {
+            ui.label("Ends")
+                .on_hover_text("How the strips are held at the end plates.");
+            for (ends, name, tip) in [
+                (
+                    Ends::Clamped,
+                    "Clamped",
+                    "Slope zero at both plates (bolted or welded strip).",
+                ),
+                (
+                    Ends::Hinged,
+                    "Hinged",
+                    "Moment-free ends (pins or thin flexures).",
+                ),
+            ] {
+                if ui.radio(s.ends == ends, name).on_hover_text(tip).clicked() {
+                    Self::choice(out, d, |n| n.strip.ends = ends);
+                }
+            }
+        });
+        ui.horizontal(|ui| {
+            ui.label("Stiffness")
+                .on_hover_text("Bending modulus: beam uses E, plate uses E/(1-nu^2).");
+            for (st, name, tip) in [
+                (
+                    Stiffness::Auto,
+                    "Auto",
+                    "Plate when width >= 10 x thickness, else beam (common practice).",
+                ),
+                (Stiffness::Beam, "Beam", "Narrow strip: E' = E."),
+                (
+                    Stiffness::Plate,
+                    "Plate",
+                    "Wide strip in cylindrical bending: E' = E/(1-nu^2).",
+                ),
+            ] {
+                if ui
+                    .radio(s.stiffness == st, name)
+                    .on_hover_text(tip)
+                    .clicked()
+                {
+                    Self::choice(out, d, |n| n.strip.stiffness = st);
+                }
+            }
+        });
+        if let Some(a) = analysis {
+            ui.label(
+                RichText::new(format!(
+                    "Using {}: {}",
+                    a.segment.stiffness_used.name(),
+                    a.segment.stiffness_reason
+                ))
+                .small(),
+            );
+        }
+    }
+
+    fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+        grid(ui, "hub", |ui| {
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "mount_radius_mm",
+                    "Mount radius",
+                    "mm",
+                    0.5,
+                    1000.0,
+                    "Radius of the strip centreline at the end plates.",
+                )
+                .log(),
+                d.mount_radius_mm,
+                out,
+                |d, v| d.mount_radius_mm = v,
+            );
+            self.row(ui, d, Row::new("end_plate_diameter_mm", "End-plate diameter", "mm", 0.0, 2000.0, "Outside diameter of the end plates; 0 when they are smaller than the strip ring.").log(), d.end_plate_diameter_mm, out, |d, v| d.end_plate_diameter_mm = v);
+        });
+        let as_pipe = d.bore.pipe.is_some();
+        ui.horizontal(|ui| {
+            ui.label("Bore given as").on_hover_text("A diameter you type, or a pipe's inside diameter (OD - 2 x nominal wall, ASME B36.10M).");
+            if ui.radio(!as_pipe, "Diameter").clicked() && as_pipe {
+                let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
+                Self::choice(out, d, |n| {
+                    n.bore.pipe = None;
+                    n.bore.diameter_mm = nominal;
+                });
+            }
+            if ui.radio(as_pipe, "Pipe size").clicked() && !as_pipe {
+                // Nearest pipe by inside diameter.
+                let want = d.bore.diameter_mm;
+                let nearest = pipe::table().iter().min_by(|a, b| (a.inside_diameter_mm() - want).abs().total_cmp(&(b.inside_diameter_mm() - want).abs()));
+                if let Some(p) = nearest {
+                    let pick = PipeRef { nps: p.nps.clone(), schedule: p.schedule.clone() };
+                    let mut next = d.clone();
+                    next.bore.pipe = Some(pick);
+                    self.propose_whole(next, "bore.pipe", out);
+                }
+            }
+        });
+        if let Some(p) = &d.bore.pipe {
+            ui.horizontal(|ui| {
+                let label = ui.label("NPS");
+                egui::ComboBox::from_id_salt("nps")
+                    .selected_text(&p.nps)
+                    .show_ui(ui, |ui| {
+                        for nps in pipe::nps_list() {
+                            if ui.selectable_label(p.nps == nps, nps).clicked() && p.nps != nps {
+                                let schedules = pipe::schedules_for(nps);
+                                let schedule = if schedules.contains(&p.schedule.as_str()) {
+                                    p.schedule.clone()
+                                } else {
+                                    schedules
+                                        .first()
+                                        .map_or_else(String::new, |s| s.to_string())
+                                };
+                                let mut next = d.clone();
+                                next.bore.pipe = Some(PipeRef {
+                                    nps: nps.to_string(),
+                                    schedule,
+                                });
+                                self.propose_whole(next, "bore.pipe", out);
+                            }
+                        }
+                    })
+                    .response
+                    .labelled_by(label.id)
+                    .on_hover_text("Nominal pipe size.");
+                let label = ui.label("Schedule");
+                egui::ComboBox::from_id_salt("schedule")
+                    .selected_text(&p.schedule)
+                    .show_ui(ui, |ui| {
+                        for sch in pipe::schedules_for(&p.nps) {
+                            if ui.selectable_label(p.schedule == sch, sch).clicked()
+                                && p.schedule != sch
+                            {
+                                let mut next = d.clone();
+                                next.bore.pipe = Some(PipeRef {
+                                    nps: p.nps.clone(),
+                                    schedule: sch.to_string(),
+                                });
+                                self.propose_whole(next, "bore.pipe", out);
+                            }
+                        }
+                    })
+                    .response
+                    .labelled_by(label.id)
+                    .on_hover_text("Pipe schedule (wall thickness class).");
+            });
+            if let Some(row) = pipe::find(&p.nps, &p.schedule) {
+                ui.label(
+                    RichText::new(format!(
+                        "OD {} mm, wall {} mm: bore {:.2} mm",
+                        row.outside_diameter_mm,
+                        row.wall_mm,
+                        row.inside_diameter_mm()
+                    ))
+                    .small(),
+                )
+                .on_hover_text(&row.source);
+            }
+            if let Some(e) = self.errors.get("bore.pipe") {
+                ui.label(RichText::new(e).color(error_color(ui)).small());
+            }
+        }
+        let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
+        grid(ui, "bore", |ui| {
+            if !as_pipe {
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "bore.diameter_mm",
+                        "Bore diameter",
+                        "mm",
+                        2.0,
+                        2000.0,
+                        "Nominal inside diameter the segment grips.",
+                    )
+                    .log(),
+                    d.bore.diameter_mm,
+                    out,
+                    |d, v| d.bore.diameter_mm = v,
+                );
+            }
+            let tol_hi = (0.25 * nominal).min(10.0);
+            self.row(ui, d, Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore."), d.bore.minus_mm, out, |d, v| d.bore.minus_mm = v);
+            self.row(ui, d, Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore."), d.bore.plus_mm, out, |d, v| d.bore.plus_mm = v);
+        });
+    }
+
+    fn propose_whole(&mut self, next: Design, key: &'static str, out: &mut Vec<Command>) {
+        match next.validate() {
+            Ok(()) => {
+                self.errors.remove(key);
+                out.push(Command::Edit(Box::new(next), Gesture::Done));
+            }
+            Err(e) => {
+                self.errors.insert(key, e.to_string());
+            }
+        }
+    }
+
+    fn actuator_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        analysis: Option<&Analysis>,
+        out: &mut Vec<Command>,
+    ) {
+        let (pull_n, stroke_mm) = analysis.map_or((100.0, 10.0), |a| {
+            (a.segment.max_pull_n(), a.segment.max_stroke_mm())
+        });
+        ui.horizontal(|ui| {
+            ui.label("Kind").on_hover_text(
+                "What draws the end plates together. Switching keeps the same pull and travel.",
+            );
+            let kinds: [(&str, &str, Actuator); 3] = [
+                (
+                    "Direct pull",
+                    "A straight pull on the plates (cylinder, solenoid, cable).",
+                    Actuator::Direct {
+                        max_force_n: pull_n,
+                        max_stroke_mm: stroke_mm,
+                    },
+                ),
+                (
+                    "Spool",
+                    "A cord wound on a spool turned by a motor.",
+                    Actuator::Spool {
+                        radius_mm: 5.0,
+                        max_torque_nm: pull_n * 5e-3,
+                        max_angle_deg: (stroke_mm / 5.0).to_degrees(),
+                    },
+                ),
+                (
+                    "Lead screw",
+                    "A screw turning in a nut.",
+                    Actuator::LeadScrew {
+                        lead_mm: 1.0,
+                        efficiency: 0.3,
+                        max_torque_nm: pull_n * 1e-3 / (2.0 * std::f64::consts::PI * 0.3),
+                        max_turns: stroke_mm,
+                    },
+                ),
+            ];
+            for (name, tip, proto) in kinds {
+                let on = std::mem::discriminant(&d.actuator) == std::mem::discriminant(&proto);
+                if ui.radio(on, name).on_hover_text(tip).clicked() && !on {
+                    let mut next = d.clone();
+                    next.actuator = proto;
+                    self.propose_whole(next, "actuator", out);
+                }
+            }
+        });
+        grid(ui, "actuator", |ui| match &d.actuator {
+            Actuator::Direct {
+                max_force_n,
+                max_stroke_mm,
+            } => {
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_force_n",
+                        "Max pull",
+                        "N",
+                        1.0,
+                        1e5,
+                        "Largest pull the actuator delivers on the plates.",
+                    )
+                    .log(),
+                    *max_force_n,
+                    out,
+                    |d, v| {
+                        if let Actuator::Direct { max_force_n, .. } = &mut d.actuator {
+                            *max_force_n = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_stroke_mm",
+                        "Max travel",
+                        "mm",
+                        0.1,
+                        500.0,
+                        "Longest travel the actuator delivers.",
+                    )
+                    .log(),
+                    *max_stroke_mm,
+                    out,
+                    |d, v| {
+                        if let Actuator::Direct { max_stroke_mm, .. } = &mut d.actuator {
+                            *max_stroke_mm = v
+                        }
+                    },
+                );
+            }
+            Actuator::Spool {
+                radius_mm,
+                max_torque_nm,
+                max_angle_deg,
+            } => {
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.radius_mm",
+                        "Spool radius",
+                        "mm",
+                        0.5,
+                        100.0,
+                        "Radius at the cord.",
+                    )
+                    .log(),
+                    *radius_mm,
+                    out,
+                    |d, v| {
+                        if let Actuator::Spool { radius_mm, .. } = &mut d.actuator {
+                            *radius_mm = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_torque_nm",
+                        "Max torque",
+                        "N m",
+                        1e-3,
+                        100.0,
+                        "Largest torque at the spool.",
+                    )
+                    .log(),
+                    *max_torque_nm,
+                    out,
+                    |d, v| {
+                        if let Actuator::Spool { max_torque_nm, .. } = &mut d.actuator {
+                            *max_torque_nm = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_angle_deg",
+                        "Max rotation",
+                        "deg",
+                        1.0,
+                        7200.0,
+                        "Largest spool rotation.",
+                    )
+                    .log(),
+                    *max_angle_deg,
+                    out,
+                    |d, v| {
+                        if let Actuator::Spool { max_angle_deg, .. } = &mut d.actuator {
+                            *max_angle_deg = v
+                        }
+                    },
+                );
+            }
+            Actuator::LeadScrew {
+                lead_mm,
+                efficiency,
+                max_torque_nm,
+                max_turns,
+            } => {
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.lead_mm",
+                        "Lead",
+                        "mm",
+                        0.1,
+                        20.0,
+                        "Advance per screw turn.",
+                    )
+                    .log(),
+                    *lead_mm,
+                    out,
+                    |d, v| {
+                        if let Actuator::LeadScrew { lead_mm, .. } = &mut d.actuator {
+                            *lead_mm = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.efficiency",
+                        "Efficiency",
+                        "",
+                        0.05,
+                        1.0,
+                        "Screw efficiency: torque = pull x lead / (2 pi x efficiency).",
+                    ),
+                    *efficiency,
+                    out,
+                    |d, v| {
+                        if let Actuator::LeadScrew { efficiency, .. } = &mut d.actuator {
+                            *efficiency = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_torque_nm",
+                        "Max torque",
+                        "N m",
+                        1e-3,
+                        100.0,
+                        "Largest torque at the screw.",
+                    )
+                    .log(),
+                    *max_torque_nm,
+                    out,
+                    |d, v| {
+                        if let Actuator::LeadScrew { max_torque_nm, .. } = &mut d.actuator {
+                            *max_torque_nm = v
+                        }
+                    },
+                );
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "actuator.max_turns",
+                        "Max turns",
+                        "turns",
+                        0.1,
+                        200.0,
+                        "Largest number of screw turns.",
+                    )
+                    .log(),
+                    *max_turns,
+                    out,
+                    |d, v| {
+                        if let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator {
+                            *max_turns = v
+                        }
+                    },
+                );
+            }
+        });
+        if let Some(e) = self.errors.get("actuator") {
+            ui.label(RichText::new(e).color(error_color(ui)).small());
+        }
+        ui.label(
+            RichText::new(format!(
+                "Delivers at most {pull_n:.1} N of pull over {stroke_mm:.2} mm of plate travel."
+            ))
+            .small(),
+        );
+    }
+
+    fn duty_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+        grid(ui, "duty", |ui| {
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "duty.holding_force_n",
+                    "Load to hold",
+                    "N",
+                    0.0,
+                    1e5,
+                    "Axial force the segment must hold in the bore.",
+                )
+                .log(),
+                d.duty.holding_force_n,
+                out,
+                |d, v| d.duty.holding_force_n = v,
+            );
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "duty.safety_factor",
+                    "Safety factor",
+                    "",
+                    1.0,
+                    10.0,
+                    "Factor on the load to hold; the holding check asks for load x factor.",
+                ),
+                d.duty.safety_factor,
+                out,
+                |d, v| d.duty.safety_factor = v,
+            );
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "friction",
+                    "Wall friction",
+                    "",
+                    0.01,
+                    1.5,
+                    "Static friction coefficient, strip on wall. Measure it when you can.",
+                ),
+                d.friction,
+                out,
+                |d, v| d.friction = v,
+            );
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "duty.cycles",
+                    "Cycles",
+                    "",
+                    1.0,
+                    1e9,
+                    "Grip-release cycles over the life; sets the fatigue strength.",
+                )
+                .log()
+                .integer(),
+                d.duty.cycles as f64,
+                out,
+                |d, v| d.duty.cycles = v.max(0.0) as u64,
+            );
+        });
+        ui.horizontal(|ui| {
+            let label = ui.label("Typical pair");
+            let picked = self.friction_pair.as_deref().and_then(friction::find);
+            let text = picked.map_or("pick to fill in friction…".to_string(), |p| {
+                p.name.clone()
+            });
+            egui::ComboBox::from_id_salt("friction-pair")
+                .selected_text(text)
+                .width(220.0)
+                .show_ui(ui, |ui| {
+                    for p in friction::table() {
+                        if ui
+                            .selectable_label(
+                                false,
+                                format!("{} ({})", p.name, p.static_coefficient),
+                            )
+                            .on_hover_text(&p.note)
+                            .clicked()
+                        {
+                            self.friction_pair = Some(p.id.clone());
+                            Self::choice(out, d, |n| n.friction = p.static_coefficient);
+                        }
+                    }
+                })
+                .response
+                .labelled_by(label.id)
+                .on_hover_text(
+                    "Typical static friction for common strip/bore pairs: rough guides only.",
+                );
+        });
+        if let Some(p) = self.friction_pair.as_deref().and_then(friction::find) {
+            let note = if p.static_coefficient == d.friction {
+                format!("Source: {}", p.source)
+            } else {
+                format!("(edited since picking {}: {})", p.name, p.source)
+            };
+            ui.label(RichText::new(note).small());
+        }
+    }
+
+    fn stroke_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+        let l = d.strip.free_length_mm;
+        grid(ui, "stroke", |ui| {
+            self.row(
+                ui,
+                d,
+                Row::new(
+                    "operating_stroke_mm",
+                    "Operating stroke",
+                    "mm",
+                    0.0,
+                    l,
+                    "End-plate travel at which the segment is meant to hold.",
+                ),
+                d.operating_stroke_mm,
+                out,
+                |d, v| d.operating_stroke_mm = v,
+            );
+            match d.actuator {
+                Actuator::Spool { radius_mm, .. } => {
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "operating.spool_angle_deg",
+                            "As spool angle",
+                            "deg",
+                            0.0,
+                            (l / radius_mm).to_degrees(),
+                            "The operating stroke as spool rotation: stroke / radius.",
+                        ),
+                        (d.operating_stroke_mm / radius_mm).to_degrees(),
+                        out,
+                        move |d, v| d.operating_stroke_mm = v.to_radians() * radius_mm,
+                    );
+                }
+                Actuator::LeadScrew { lead_mm, .. } => {
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            "operating.screw_turns",
+                            "As screw turns",
+                            "turns",
+                            0.0,
+                            l / lead_mm,
+                            "The operating stroke as screw turns: stroke / lead.",
+                        ),
+                        d.operating_stroke_mm / lead_mm,
+                        out,
+                        move |d, v| d.operating_stroke_mm = v * lead_mm,
+                    );
+                }
+                Actuator::Direct { .. } => {}
+            }
+        });
+    }
+}
+
+fn section(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
+    egui::CollapsingHeader::new(RichText::new(title).strong())
+        .default_open(true)
+        .show(ui, body);
+}
+
+fn grid(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
+    egui::Grid::new(id)
+        .num_columns(4)
+        .spacing([6.0, 4.0])
+        .show(ui, body);
+}
+
+/// Red that reads on both themes.
+pub fn error_color(ui: &Ui) -> Color32 {
+    if ui.visuals().dark_mode {
+        Color32::from_rgb(255, 120, 110)
+    } else {
+        Color32::from_rgb(180, 20, 20)
+    }
+}

@@ -1,0 +1,252 @@
+//! The desktop app driven through its accessibility tree (egui_kittest, no GPU): inputs
+//! change the design and the checks, files open and save through the typed path, the
+//! unsaved-changes prompt and the recovery copy appear when they should.
+
+use std::f64::consts::PI;
+use std::path::Path;
+
+use bowgrip::analysis;
+use bowgrip::app::{GripApp, Recovery};
+use bowgrip::design::{self, Design};
+use egui::accesskit::Role;
+use egui::{Key, Modifiers};
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+
+fn harness(app: GripApp) -> Harness<'static, GripApp> {
+    Harness::builder()
+        .with_size([1500.0, 940.0])
+        .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app)
+}
+
+fn check_pass(app: &GripApp, id: &str) -> bool {
+    let a = app.analysis().unwrap_or_else(|| panic!("no analysis"));
+    a.checks
+        .iter()
+        .find(|c| c.id == id)
+        .unwrap_or_else(|| panic!("no {id} check"))
+        .pass
+}
+
+/// The app's cached results are those of `analysis::analyse` on the same design.
+fn assert_matches_fresh_analysis(app: &GripApp) {
+    let shown = app.analysis().unwrap_or_else(|| panic!("no analysis"));
+    let fresh = analysis::analyse(app.design()).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(shown.segment.design, *app.design(), "analysis is stale");
+    assert_eq!(shown.checks, fresh.checks);
+    assert_eq!(shown.limiting, fresh.limiting);
+}
+
+#[test]
+fn inputs_drive_the_checks() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    let d0 = h.state().design().clone();
+    assert!(
+        check_pass(h.state(), "hold"),
+        "the demo design holds its load"
+    );
+
+    // A thinner strip: bending stiffness goes with t^3, so the contact force and the
+    // holding force fall steeply and the holding check flips.
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.15");
+    h.run();
+    assert_eq!(h.state().design().strip.thickness_mm, 0.15);
+    assert_matches_fresh_analysis(h.state());
+    assert!(!check_pass(h.state(), "hold"));
+    assert!(
+        h.query_by_label_contains("[FAIL] holds the required load")
+            .is_some(),
+        "the list shows the failure"
+    );
+
+    // A value outside the plausible range is refused with the range, and the design stays.
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("9");
+    h.run();
+    assert_eq!(h.state().design().strip.thickness_mm, 0.15);
+    assert!(
+        h.query_by_label_contains("outside the allowed range")
+            .is_some()
+    );
+
+    // More strips through the slider. The hub check is plane geometry: adjacent strips
+    // of width b on a circle of radius r clear each other when b <= 2 r tan(pi/N)
+    // (the chord between neighbours; the project's contract states the same test).
+    h.get_by_role_and_label(Role::Slider, "Strips")
+        .set_value_accesskit(16.0);
+    h.run();
+    let d = h.state().design().clone();
+    assert_eq!(d.strip.count, 16);
+    assert_matches_fresh_analysis(h.state());
+    let room = 2.0 * d.mount_radius_mm * (PI / 16.0).tan();
+    assert_eq!(check_pass(h.state(), "hub"), d.strip.width_mm <= room);
+
+    // A larger bore, typed: the relaxed-fit margin is bore - relaxed diameter - 1 mm,
+    // with the strip corners at 2 sqrt((r_m + t/2)^2 + b^2/4) (the mechanics note's
+    // outer diameter at zero crest height, plain geometry).
+    h.get_by_role_and_label(Role::TextInput, "Bore diameter")
+        .set_text_value_accesskit("74");
+    h.run();
+    let d = h.state().design().clone();
+    assert_eq!(d.bore.diameter_mm, 74.0);
+    assert_matches_fresh_analysis(h.state());
+    let corners = 2.0
+        * ((d.mount_radius_mm + 0.5 * d.strip.thickness_mm).powi(2)
+            + 0.25 * d.strip.width_mm.powi(2))
+        .sqrt();
+    let relaxed = corners.max(d.end_plate_diameter_mm);
+    let a = h
+        .state()
+        .analysis()
+        .unwrap_or_else(|| panic!("no analysis"));
+    let fit = a
+        .checks
+        .iter()
+        .find(|c| c.id == "fit")
+        .and_then(|c| c.margin)
+        .unwrap_or(f64::NAN);
+    assert!(
+        (fit - (74.0 - d.bore.minus_mm - relaxed - 1.0)).abs() < 1e-9,
+        "fit margin {fit}"
+    );
+
+    // Undo walks back one edit at a time, to the start.
+    for _ in 0..3 {
+        h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+        h.run();
+    }
+    assert_eq!(*h.state().design(), d0);
+    assert_matches_fresh_analysis(h.state());
+}
+
+fn open_through_the_window(h: &mut Harness<'static, GripApp>, path: &Path) {
+    h.key_press_modifiers(Modifiers::COMMAND, Key::O);
+    h.run();
+    h.get_by_role_and_label(Role::TextInput, "Path")
+        .set_text_value_accesskit(&path.display().to_string());
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Open").click();
+    h.run();
+}
+
+#[test]
+fn files_open_save_and_guard_unsaved_work() {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let state = dir.path().join("state");
+    let good = dir.path().join("six.ron");
+    let mut six = Design::default();
+    six.strip.count = 6;
+    design::save_atomic(&good, &six).unwrap_or_else(|e| panic!("{e}"));
+    // Out of the plausible range: thickness 9 mm (allowed 0.02 to 5 mm).
+    let bad = dir.path().join("bad.ron");
+    let mut text = design::to_ron(&Design::default());
+    text = text.replace("thickness_mm: 0.25", "thickness_mm: 9.0");
+    assert!(
+        text.contains("thickness_mm: 9.0"),
+        "sample text changed: {text}"
+    );
+    std::fs::write(&bad, text).unwrap_or_else(|e| panic!("{e}"));
+
+    let mut h = harness(GripApp::new(state.clone(), None));
+    h.run();
+    open_through_the_window(&mut h, &good);
+    assert_eq!(*h.state().design(), six);
+    assert_eq!(h.state().path(), Some(good.as_path()));
+
+    // A file that does not load leaves the open design as it was, and says why.
+    open_through_the_window(&mut h, &bad);
+    assert_eq!(*h.state().design(), six);
+    let status = h
+        .state()
+        .status()
+        .map(|s| s.text.clone())
+        .unwrap_or_default();
+    assert!(
+        status.contains("strip.thickness_mm") && status.contains("unchanged"),
+        "{status}"
+    );
+
+    // Edit and save with Ctrl+S: the file holds what is on screen.
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.3");
+    h.run();
+    assert!(h.state().is_dirty());
+    h.key_press_modifiers(Modifiers::COMMAND, Key::S);
+    h.run();
+    assert!(!h.state().is_dirty());
+    assert_eq!(
+        design::load(&good).unwrap_or_else(|e| panic!("{e}")),
+        *h.state().design()
+    );
+
+    // Unsaved changes: New asks first; Cancel keeps the work.
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.35");
+    h.run();
+    h.key_press_modifiers(Modifiers::COMMAND, Key::N);
+    h.run();
+    assert!(h.state().is_asking_to_discard());
+    h.get_by_role_and_label(Role::Button, "Cancel").click();
+    h.run();
+    assert!(!h.state().is_asking_to_discard());
+    assert_eq!(h.state().design().strip.thickness_mm, 0.35);
+
+    // Saving where it cannot be written keeps the design open and unsaved.
+    let nowhere = dir.path().join("gone").join("x.ron");
+    h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::S);
+    h.run();
+    h.get_by_role_and_label(Role::TextInput, "Path")
+        .set_text_value_accesskit(&nowhere.display().to_string());
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Save").click();
+    h.run();
+    assert!(h.state().is_dirty());
+    assert_eq!(h.state().path(), Some(good.as_path()));
+    assert!(
+        h.state()
+            .status()
+            .is_some_and(|s| s.is_error && s.text.contains("Not saved"))
+    );
+
+    // The recent list remembers the file for the next session.
+    assert_eq!(h.state().session().recent.first(), Some(&good));
+}
+
+#[test]
+fn recovery_copy_is_offered_after_a_crash() {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let state = dir.path().to_path_buf();
+    let edited = {
+        let mut h = harness(GripApp::new(state.clone(), None));
+        h.run();
+        h.get_by_role_and_label(Role::TextInput, "Free length")
+            .set_text_value_accesskit("80");
+        h.run();
+        assert!(h.state().is_dirty());
+        h.state().design().clone()
+        // Dropped without a clean close: as after a crash.
+    };
+    assert!(
+        Recovery::path(&state).is_file(),
+        "the unsaved work was copied"
+    );
+    let mut h = harness(GripApp::new(state.clone(), None));
+    h.run();
+    assert!(h.state().is_offering_recovery());
+    assert_eq!(
+        *h.state().design(),
+        Design::default(),
+        "nothing is applied before asking"
+    );
+    h.get_by_role_and_label(Role::Button, "Restore it").click();
+    h.run();
+    assert_eq!(*h.state().design(), edited);
+    assert!(h.state().is_dirty(), "restored work still needs saving");
+    assert_eq!(
+        h.state().analysis().map(|a| &a.segment.design),
+        Some(&edited)
+    );
+}
