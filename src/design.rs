@@ -737,13 +737,13 @@ impl Design {
             ));
         }
         // Check the bore first: the tolerance limits depend on it.
-        if let Some(pipe) = &self.bore.pipe {
-            if pipe_inside_diameter_mm(&pipe.nps, &pipe.schedule).is_none() {
-                return Err(DesignError::UnknownPipe {
-                    nps: pipe.nps.clone(),
-                    schedule: pipe.schedule.clone(),
-                });
-            }
+        if let Some(pipe) = &self.bore.pipe
+            && pipe_inside_diameter_mm(&pipe.nps, &pipe.schedule).is_none()
+        {
+            return Err(DesignError::UnknownPipe {
+                nps: pipe.nps.clone(),
+                schedule: pipe.schedule.clone(),
+            });
         }
         for (field, value) in self.numeric_fields() {
             let Some(row) = limit(field) else { continue };
@@ -812,9 +812,16 @@ fn ron_options() -> ron::Options {
 /// Parses and validates a design text. Range errors carry the line and column of the
 /// offending value.
 pub fn parse(text: &str) -> Result<Design, DesignError> {
+    // A file of another format may have fields this version does not know: say so
+    // before ron complains about them.
+    if let Some(found) = declared_format(text)
+        && found != FORMAT_VERSION
+    {
+        return Err(DesignError::UnknownFormat { found });
+    }
     let design: Design = ron_options().from_str(text).map_err(|e| {
-        // ron reports the end of the unexpected token; a missing field at the closing
-        // parenthesis. Both are where an editor should put the cursor.
+        // ron's span starts at the offending token (for a missing field: at the closing
+        // parenthesis), which is where an editor should put the cursor.
         DesignError::Syntax {
             line: e.span.start.line,
             column: e.span.start.col,
@@ -917,10 +924,10 @@ fn write_then_rename(temp: &Path, target: &Path, text: &str) -> io::Result<()> {
         .create_new(true)
         .open(temp)?;
     // Keep the permissions of the file being replaced.
-    if let Ok(meta) = fs::metadata(target) {
-        if meta.is_file() {
-            file.set_permissions(meta.permissions())?;
-        }
+    if let Ok(meta) = fs::metadata(target)
+        && meta.is_file()
+    {
+        file.set_permissions(meta.permissions())?;
     }
     file.write_all(text.as_bytes())?;
     file.sync_all()?;
@@ -1110,6 +1117,20 @@ fn raw_string_len(chars: &[char]) -> Option<usize> {
     None
 }
 
+/// The top-level `format` number as written, when it is a plain unsigned integer.
+fn declared_format(text: &str) -> Option<u32> {
+    let (line, column) = locate(text, "format")?;
+    let digits: String = text
+        .lines()
+        .nth(line - 1)?
+        .chars()
+        .skip(column - 1)
+        .take_while(|c| c.is_ascii_digit() || *c == '_')
+        .filter(|c| *c != '_')
+        .collect();
+    digits.parse().ok()
+}
+
 /// Every `name: value` pair in the text, as (dotted path, position of the value). A
 /// bracket opened right after `name:` (possibly after a variant name such as `Custom` or
 /// `Some`) nests the path under `name`.
@@ -1180,6 +1201,14 @@ mod tests {
         let text = "Design( // friction: 9\n /* nested /* friction: 8 */ */ title: \"friction: 7\",\n friction: 0.3)";
         assert_eq!(locate(text, "friction"), Some((3, 12)));
         assert_eq!(locate(text, "title"), Some((2, 40)));
+    }
+
+    #[test]
+    fn declared_format_is_read_before_parsing() {
+        assert_eq!(declared_format("Design(\n  format: 12,\n)"), Some(12));
+        assert_eq!(declared_format("(format:1_0)"), Some(10));
+        assert_eq!(declared_format("(strip: (format: 3))"), None);
+        assert_eq!(declared_format("(format: \"1\")"), None);
     }
 
     #[test]

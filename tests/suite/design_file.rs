@@ -154,8 +154,10 @@ fn arbitrary_design() -> impl Strategy<Value = Design> {
     )
         .prop_map(
             |((count, l, b, t, hinged), (rm, dp, d, mu, pipe), (a, s, h, kind, cycles), title)| {
-                let mut design = Design::default();
-                design.title = title;
+                let mut design = Design {
+                    title,
+                    ..Design::default()
+                };
                 design.strip.count = count;
                 design.strip.free_length_mm = l;
                 design.strip.width_mm = b;
@@ -442,6 +444,13 @@ fn missing_field_is_named() {
 
 #[test]
 fn unknown_format_names_the_supported_one() {
+    // A later format with fields this version does not know: the format is named, not
+    // the fields.
+    let future = literal_with("format: 1,", "format: 2,\n    coating: \"zinc\",");
+    assert!(
+        matches!(parse_err(&future), DesignError::UnknownFormat { found: 2 }),
+        "{future}"
+    );
     let e = parse_err(&literal_with("format: 1,", "format: 2,"));
     assert!(
         matches!(e, DesignError::UnknownFormat { found: 2 }),
