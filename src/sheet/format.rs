@@ -94,7 +94,7 @@ pub fn count(n: u64) -> String {
     let digits = n.to_string();
     let mut out = String::new();
     for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (digits.len() - i) % 3 == 0 {
+        if i > 0 && (digits.len() - i).is_multiple_of(3) {
             out.push(' ');
         }
         out.push(c);
@@ -146,9 +146,9 @@ mod tests {
     fn significant_figures_and_fixed_places() {
         assert_eq!(sig(1234.5678, 4), "1235");
         assert_eq!(sig(12.345678, 4), "12.35");
-        assert_eq!(sig(0.0012345, 4), "0.001235");
+        assert_eq!(sig(0.00123456, 4), "0.001235");
         assert_eq!(sig(9.99996, 4), "10.00");
-        assert_eq!(sig(-3.14159, 3), "−3.14");
+        assert_eq!(sig(-1.23456, 3), "−1.23");
         assert_eq!(fixed(-0.0001, 3), "0.000");
         assert_eq!(mm(2.5), "2.500 mm");
         assert_eq!(count(1_000_000), "1 000 000");

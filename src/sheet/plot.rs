@@ -84,13 +84,15 @@ pub fn ticks(lo: f64, hi: f64, target: usize) -> (Vec<f64>, usize) {
     if !(span.is_finite() && span > 0.0) {
         return (vec![lo], 3);
     }
-    let raw = span / target.max(2) as f64;
-    let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+    // The largest step of 1, 2 or 5 times a power of ten that still gives at least
+    // `target - 1` intervals.
+    let want = (target.max(2) - 1) as f64;
+    let mag = 10f64.powf((span / want).log10().floor());
+    let step = [5.0, 2.0, 1.0]
         .iter()
         .map(|f| f * mag)
-        .find(|s| *s >= raw)
-        .unwrap_or(10.0 * mag);
+        .find(|s| span / s >= want)
+        .unwrap_or(mag);
     let first = (lo / step).ceil() * step;
     let mut out = Vec::new();
     let mut i = 0.0;

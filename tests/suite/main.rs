@@ -8,3 +8,4 @@ mod segment_model;
 mod elastica_reference;
 mod hostile;
 mod app;
+mod sheet;

@@ -1,0 +1,350 @@
+//! The sizing sheet: the PDF parses (lopdf), its text is real and carries the solver's
+//! numbers as printed, the page count and page size match the paper, and every section and
+//! every line of text lies inside the printable area, for passing, failing and no-state
+//! designs on A4 and Letter.
+
+use bowgrip::analysis::{BoreCase, analyse};
+use bowgrip::design::{self, Actuator, Design, PipeRef};
+use bowgrip::sheet::{self, Paper, SheetLayout};
+use sha2::{Digest, Sha256};
+
+/// Paper sizes in PDF points (1/72 in): ISO 216 A4 is 210 x 297 mm, ANSI/ASME Y14.1
+/// Letter 8.5 x 11 in.
+const A4_PT: (f32, f32) = (210.0 / 25.4 * 72.0, 297.0 / 25.4 * 72.0);
+const LETTER_PT: (f32, f32) = (612.0, 792.0);
+
+fn sample(name: &str) -> (Design, String) {
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join(name);
+    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+    (
+        design::parse(&text).unwrap_or_else(|e| panic!("{name}: {e}")),
+        text,
+    )
+}
+
+/// Designs that exercise every branch of the sheet: passing, failing checks, a bore with no
+/// state, a pipe bore with a spool, a direct pull.
+fn designs() -> Vec<(String, Design)> {
+    let with = |change: &dyn Fn(&mut Design)| {
+        let mut d = Design::default();
+        change(&mut d);
+        d
+    };
+    let mut out = vec![("default".to_string(), Design::default())];
+    out.push((
+        "failing".to_string(),
+        with(&|d| {
+            d.title = "Too small a bore: several checks fail".to_string();
+            d.bore.diameter_mm = 60.5;
+        }),
+    ));
+    out.push((
+        "no-state".to_string(),
+        with(&|d| {
+            d.title = "Relaxed strips do not fit the bore".to_string();
+            d.bore.diameter_mm = 57.0;
+        }),
+    ));
+    out.push((
+        "pipe-spool".to_string(),
+        with(&|d| {
+            d.title = "A very long design title that has to wrap over more than one line in the title block of the \
+                       sheet, and then some more words to be sure it is cut cleanly rather than running off the page"
+                .to_string();
+            d.bore.pipe = Some(PipeRef {
+                nps: "2-1/2".to_string(),
+                schedule: "40".to_string(),
+            });
+            d.actuator = Actuator::Spool {
+                radius_mm: 6.0,
+                max_torque_nm: 1.5,
+                max_angle_deg: 90.0,
+            };
+        }),
+    ));
+    out.push((
+        "direct".to_string(),
+        with(&|d| {
+            d.actuator = Actuator::Direct {
+                max_force_n: 300.0,
+                max_stroke_mm: 4.0,
+            };
+        }),
+    ));
+    for name in [
+        "drain-crawler-anchor-100mm.ron",
+        "duct-anchor-150mm-stainless.ron",
+        "riser-climber-2in-sch40.ron",
+    ] {
+        if std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("sample-designs")
+            .join(name)
+            .exists()
+        {
+            out.push((name.to_string(), sample(name).0));
+        }
+    }
+    out
+}
+
+/// All text of a PDF by lopdf (no external tools), whitespace collapsed to single spaces.
+fn pdf_text(pdf: &[u8]) -> (usize, String) {
+    let doc = lopdf::Document::load_mem(pdf).expect("the sheet parses as PDF");
+    let pages: Vec<u32> = doc.get_pages().keys().copied().collect();
+    let text = doc.extract_text(&pages).expect("text extracts");
+    (
+        pages.len(),
+        text.split_whitespace().collect::<Vec<_>>().join(" "),
+    )
+}
+
+fn media_box(pdf: &[u8]) -> Vec<(f32, f32)> {
+    let doc = lopdf::Document::load_mem(pdf).expect("parses");
+    doc.get_pages()
+        .values()
+        .map(|id| {
+            let page = doc.get_dictionary(*id).expect("page dictionary");
+            let mb = page
+                .get(b"MediaBox")
+                .and_then(|o| o.as_array())
+                .expect("MediaBox on each page");
+            let n: Vec<f32> = mb
+                .iter()
+                .map(|o| {
+                    o.as_float()
+                        .or_else(|_| o.as_i64().map(|v| v as f32))
+                        .expect("number")
+                })
+                .collect();
+            (n[2] - n[0], n[3] - n[1])
+        })
+        .collect()
+}
+
+#[test]
+fn content_hash_is_sha256_and_dates_are_civil() {
+    // FIPS 180-2, appendix B.1: SHA-256("abc") = ba7816bf 8f01cfea 414140de 5dae2223 ...
+    assert_eq!(sheet::content_hash16(b"abc"), "ba7816bf8f01cfea");
+    // 2000-03-01 follows 2000-02-29 (Gregorian leap rule); 11 017 days after 1970-01-01.
+    assert_eq!(sheet::civil_from_days(11_017), (2000, 3, 1));
+    // 1 000 000 000 s after the epoch: 2001-09-09 01:46:40 UTC (widely quoted).
+    assert_eq!(sheet::utc_stamp(1_000_000_000), "2001-09-09 01:46 UTC");
+}
+
+#[test]
+fn pdf_parses_with_the_paper_size_and_the_laid_out_page_count() {
+    let d = Design::default();
+    let bytes = design::to_ron(&d);
+    for (paper, size) in [(Paper::A4, A4_PT), (Paper::Letter, LETTER_PT)] {
+        let laid = sheet::layout(&d, "demo.ron", bytes.as_bytes(), paper).expect("lays out");
+        let pdf = sheet::render(&d, "demo.ron", bytes.as_bytes(), paper).expect("renders");
+        assert!(pdf.starts_with(b"%PDF-"));
+        let (pages, text) = pdf_text(&pdf);
+        assert_eq!(pages, laid.pages, "{paper:?}");
+        // The default design fits in six sheets on either paper (regression check of the
+        // layout: one page for title, result and inputs, then checks and material, results,
+        // the stroke window with the views, the force curves, the text sections).
+        assert!((5..=8).contains(&pages), "{paper:?}: {pages} pages");
+        assert!(
+            text.contains(&format!("1 of {pages}")),
+            "{paper:?}: page x of y"
+        );
+        for (w, h) in media_box(&pdf) {
+            assert!(
+                (w - size.0).abs() < 0.5 && (h - size.1).abs() < 0.5,
+                "{paper:?}: {w} x {h}"
+            );
+        }
+        // Subset fonts keep the file small (two faces of ~400 kB each before subsetting).
+        assert!(pdf.len() < 300_000, "{paper:?}: {} bytes", pdf.len());
+    }
+}
+
+#[test]
+fn extracted_text_carries_the_solver_values_as_printed() {
+    let d = Design::default();
+    let bytes = design::to_ron(&d);
+    let pdf = sheet::render(&d, "demo.ron", bytes.as_bytes(), Paper::A4).expect("renders");
+    let (_, text) = pdf_text(&pdf);
+    let a = analyse(&d).expect("analyses");
+    let nominal = a
+        .bores
+        .iter()
+        .find(|b| b.case == BoreCase::Nominal)
+        .expect("nominal bore");
+    let state = nominal
+        .operating
+        .as_ref()
+        .expect("a state at the nominal bore");
+    // The solver's numbers, formatted as the sheet prints them (mm to 3 decimals, factors
+    // to 3 decimals, stresses to 1 decimal).
+    let mut expect = vec![
+        format!(
+            "{:.3} mm",
+            nominal.row.first_contact_stroke_mm.expect("first contact")
+        ),
+        format!("{:.3} mm", nominal.row.limit_stroke_mm.expect("limit")),
+        format!("{:.3}", state.static_safety_factor.expect("static factor")),
+        format!(
+            "{:.3}",
+            state.fatigue_safety_factor.expect("fatigue factor")
+        ),
+        format!("{:.1} MPa", state.max_stress_mpa.expect("stress")),
+        format!("{:.1} MPa", a.segment.static_allowable_mpa),
+        format!("{:.3} mm", a.segment.bore_smallest_mm),
+        format!("{:.3} mm", a.segment.bore_largest_mm),
+    ];
+    // The file's content hash, computed here with sha2 directly.
+    let digest = Sha256::digest(bytes.as_bytes());
+    expect.push(digest.iter().take(8).map(|b| format!("{b:02x}")).collect());
+    expect.push(format!("bowgrip {}", env!("CARGO_PKG_VERSION")));
+    expect.push(d.title.clone());
+    for label in [
+        "Calculated by",
+        "Checked by",
+        "Approved by",
+        "Signature",
+        "Date",
+    ] {
+        expect.push(label.to_string());
+    }
+    for c in &a.checks {
+        expect.push(format!("[{}]", c.id));
+    }
+    expect.push(a.segment.stiffness_used.name().to_string());
+    expect.push(a.segment.material.name.clone());
+    for phrase in [
+        "Stored spring energy",
+        "Pinch points",
+        "confined-space",
+        "local codes",
+        "Timoshenko",
+        "Carlson",
+        "Goodman",
+        "ASME B36.10M",
+    ] {
+        expect.push(phrase.to_string());
+    }
+    for e in &expect {
+        assert!(text.contains(e.as_str()), "sheet text lacks {e:?}");
+    }
+    // A value that is not on the sheet is not found (the search can fail).
+    assert!(!text.contains("123456.789 mm"));
+}
+
+fn assert_inside(name: &str, laid: &SheetLayout) {
+    let [left, top, right, bottom] = laid.printable_pt;
+    let tol = 0.5;
+    assert!(!laid.sections.is_empty(), "{name}: no sections");
+    for s in &laid.sections {
+        assert!(s.page >= 1 && s.page <= laid.pages, "{name}: {s:?}");
+        assert!(
+            s.top_pt >= top - tol && s.bottom_pt <= bottom + tol && s.bottom_pt >= s.top_pt,
+            "{name}: section off the page: {s:?}"
+        );
+    }
+    for t in &laid.texts {
+        assert!(
+            t.left_pt >= left - tol
+                && t.right_pt <= right + tol
+                && t.baseline_pt - t.size_pt >= top - tol
+                && t.baseline_pt <= bottom + tol,
+            "{name}: text outside the printable area on page {}: {:?} at x {}..{}, y {}",
+            t.page,
+            t.text,
+            t.left_pt,
+            t.right_pt,
+            t.baseline_pt
+        );
+    }
+    // Sections do not overlap on a page.
+    for w in laid.sections.windows(2) {
+        if w[0].page == w[1].page {
+            assert!(
+                w[1].top_pt >= w[0].bottom_pt - tol,
+                "{name}: {:?} overlaps {:?}",
+                w[1],
+                w[0]
+            );
+        }
+    }
+}
+
+#[test]
+fn every_section_and_line_fits_the_printable_area_on_both_papers() {
+    for (name, d) in designs() {
+        let bytes = design::to_ron(&d);
+        for paper in [Paper::A4, Paper::Letter] {
+            let laid = sheet::layout_dated(
+                &d,
+                &format!("{name}.ron"),
+                bytes.as_bytes(),
+                paper,
+                "2026-01-01 00:00 UTC",
+            )
+            .unwrap_or_else(|e| panic!("{name}: {e}"));
+            assert_eq!((laid.page_width_pt, laid.page_height_pt), paper.size_pt());
+            assert_inside(&format!("{name} on {paper:?}"), &laid);
+            // Every section is on the sheet once at least.
+            for title in [
+                "Title block",
+                "Result",
+                "Inputs",
+                "Checks",
+                "Material and stiffness model",
+                "Safety cautions",
+            ] {
+                assert!(
+                    laid.sections.iter().any(|s| s.title == title),
+                    "{name}: no {title}"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn failing_and_no_state_designs_render_and_say_so() {
+    let all = designs();
+    let pick = |n: &str| {
+        all.iter()
+            .find(|(name, _)| name == n)
+            .map(|(_, d)| d.clone())
+            .expect("design")
+    };
+    let failing = pick("failing");
+    let pdf = sheet::render(&failing, "failing.ron", b"x", Paper::A4)
+        .expect("a failing design still renders");
+    let (_, text) = pdf_text(&pdf);
+    assert!(text.contains("CHECKS FAIL"), "{text}");
+    assert!(text.contains("FAIL"));
+
+    let no_state = pick("no-state");
+    let a = analyse(&no_state).expect("loads and analyses");
+    assert!(
+        a.bores.iter().any(|b| b.operating.is_err()),
+        "the test design must have a bore with no state"
+    );
+    let pdf = sheet::render(&no_state, "no-state.ron", b"y", Paper::Letter)
+        .expect("a no-state design still renders");
+    let (_, text) = pdf_text(&pdf);
+    assert!(
+        text.contains("No model state at the smallest bore"),
+        "{text}"
+    );
+    assert!(text.contains("no state"));
+}
+
+#[test]
+fn an_invalid_design_is_refused_with_the_reason() {
+    let mut d = Design::default();
+    d.strip.thickness_mm = f64::NAN;
+    let err = sheet::render(&d, "bad.ron", b"", Paper::A4).expect_err("NaN thickness is refused");
+    let msg = err.to_string();
+    assert!(
+        msg.contains("bad.ron") && msg.contains("strip.thickness_mm"),
+        "{msg}"
+    );
+}
