@@ -443,7 +443,7 @@ const fn rating(field: &'static str, unit: &'static str, meaning: &'static str) 
 
 const TOLERANCE_SHARE_OF_BORE: f64 = 0.25;
 
-static LIMITS: [FieldLimit; 26] = [
+static LIMITS: [FieldLimit; 27] = [
     closed(
         "strip.count",
         2.0,
@@ -588,25 +588,19 @@ static LIMITS: [FieldLimit; 26] = [
         "",
         "factor on the holding force",
     ),
+    closed(
+        "duty.cycles",
+        1.0,
+        1e12,
+        "",
+        "grip-release cycles over the life",
+    ),
 ];
-
-static CYCLES_LIMIT: FieldLimit = closed(
-    "duty.cycles",
-    1.0,
-    1e12,
-    "",
-    "grip-release cycles over the life",
-);
 
 /// The table of plausible ranges, one row per numeric field (the operating stroke is
 /// also bounded by the free length, the tolerances by a quarter of the nominal bore).
 pub fn limits() -> &'static [FieldLimit] {
-    static ALL: std::sync::OnceLock<Vec<FieldLimit>> = std::sync::OnceLock::new();
-    ALL.get_or_init(|| {
-        let mut all = LIMITS.to_vec();
-        all.push(CYCLES_LIMIT);
-        all
-    })
+    &LIMITS
 }
 
 /// The limit row for a field path, if the field has one.
