@@ -1,11 +1,11 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
+mod app;
 mod cli;
 mod data_tables;
-mod elliptic_reference;
-mod small_gap;
 mod design_file;
-mod segment_model;
 mod elastica_reference;
+mod elliptic_reference;
 mod hostile;
-mod app;
+mod segment_model;
 mod sheet;
+mod small_gap;
