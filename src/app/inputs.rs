@@ -189,7 +189,7 @@ impl InputsPanel {
         };
         let mut text = shown;
         let resp = ui
-            .add(egui::TextEdit::singleline(&mut text).desired_width(88.0))
+            .add_sized([88.0, 20.0], egui::TextEdit::singleline(&mut text))
             .labelled_by(label.id)
             .on_hover_text(&tip);
         if resp.changed() {
@@ -354,7 +354,8 @@ impl InputsPanel {
             };
             let resp = egui::ComboBox::from_id_salt("grade")
                 .selected_text(current)
-                .width(260.0)
+                .width(250.0)
+                .truncate()
                 .show_ui(ui, |ui| {
                     for m in material::library() {
                         let on = matches!(&s.material, MaterialChoice::Grade(id) if *id == m.id);
@@ -1099,6 +1100,7 @@ impl InputsPanel {
             egui::ComboBox::from_id_salt("friction-pair")
                 .selected_text(text)
                 .width(220.0)
+                .truncate()
                 .show_ui(ui, |ui| {
                     for p in friction::table() {
                         if ui

@@ -341,10 +341,13 @@ fn window_plot(ui: &mut Ui, a: &Analysis, height: f32) {
             for c in &curves {
                 c.add_to(p);
             }
-            p.add(
-                HLine::new("actuator max travel", max_stroke)
-                    .color(C_ACT)
-                    .style(LineStyle::dashed_loose()),
+            marker_or_note(
+                p,
+                "actuator max travel",
+                max_stroke,
+                [right_of(&curves), top_of(&curves)],
+                C_ACT,
+                "mm",
             );
             p.add(
                 HLine::new("operating stroke", seg.design.operating_stroke_mm)
@@ -354,6 +357,56 @@ fn window_plot(ui: &mut Ui, a: &Analysis, height: f32) {
             );
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });
+}
+
+/// Highest value over the curves.
+fn top_of(curves: &[Curve]) -> f64 {
+    curves
+        .iter()
+        .flat_map(|c| c.runs.iter().flatten())
+        .map(|p| p[1])
+        .fold(0.0, f64::max)
+}
+
+/// Rightmost x over the curves.
+fn right_of(curves: &[Curve]) -> f64 {
+    let x = curves
+        .iter()
+        .flat_map(|c| c.runs.iter().flatten())
+        .map(|p| p[0])
+        .fold(f64::NEG_INFINITY, f64::max);
+    if x.is_finite() { x } else { 0.0 }
+}
+
+/// A dashed horizontal marker at `value`, or, when it lies far above the curves (it
+/// would flatten them), a note at the top edge saying where it is.
+fn marker_or_note(
+    p: &mut egui_plot::PlotUi<'_>,
+    name: &str,
+    value: f64,
+    [right, top]: [f64; 2],
+    color: Color32,
+    unit: &str,
+) {
+    if value <= 1.4 * top || top <= 0.0 {
+        p.add(
+            HLine::new(name, value)
+                .color(color)
+                .style(LineStyle::dashed_loose()),
+        );
+    } else {
+        let at = egui_plot::PlotPoint::new(right, top * 1.08);
+        p.add(
+            egui_plot::Text::new(
+                name,
+                at,
+                RichText::new(format!("{name} {value:.2} {unit}: above the plot"))
+                    .color(color)
+                    .small(),
+            )
+            .anchor(egui::Align2::RIGHT_BOTTOM),
+        );
+    }
 }
 
 fn phase_spans(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, mark: Color32) {
@@ -424,10 +477,13 @@ fn force_plot(ui: &mut Ui, a: &Analysis, height: f32) {
                     .color(C_HOLD)
                     .style(LineStyle::dashed_loose()),
             );
-            p.add(
-                HLine::new("actuator rating as pull", seg.max_pull_n())
-                    .color(C_ACT)
-                    .style(LineStyle::dashed_loose()),
+            marker_or_note(
+                p,
+                "actuator rating as pull",
+                seg.max_pull_n(),
+                [right_of(&curves), top_of(&curves).max(need)],
+                C_ACT,
+                "N",
             );
         });
 }
@@ -586,10 +642,7 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     painter.text(
         rect.left_bottom(),
         egui::Align2::LEFT_BOTTOM,
-        format!(
-            "scale 1:1 at {:.2} px/mm; red: flat run on the wall",
-            scale.px_per_mm
-        ),
+        format!("{:.2} px/mm; red: on the wall", scale.px_per_mm),
         egui::FontId::proportional(10.0),
         fg.gamma_multiply(0.7),
     );
