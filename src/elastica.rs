@@ -93,7 +93,7 @@ impl LimitReason {
 pub enum PathError {
     /// The gap to the wall is zero or negative: the relaxed strip already touches or cuts
     /// the bore, so the model has no state.
-    #[error("the relaxed strip does not clear the bore (gap {gap:.6} L <= 0)")]
+    #[error("the relaxed strip does not clear the bore (gap {gap:e} L <= 1e-12 L)")]
     NoClearance {
         /// Nondimensional gap.
         gap: f64,
@@ -370,6 +370,9 @@ fn line_d(k: D, gap: f64) -> LineQ {
 // ---------------------------------------------------------------------------------------
 // Scalar root finding with iteration bounds.
 
+/// Smallest gap (over L) with a state: below it the strip is taken to touch the wall.
+pub const MIN_GAP: f64 = 1e-12;
+
 /// Iteration bound of every Newton solve here.
 const MAX_NEWTON: usize = 60;
 
@@ -568,7 +571,9 @@ impl Path {
         if !gap.is_finite() {
             return Err(PathError::NotFinite);
         }
-        if gap <= 0.0 {
+        // Below 1e-12 L the strip touches the wall for every practical purpose (and the
+        // strokes, of order g^2, would underflow).
+        if gap <= MIN_GAP {
             return Err(PathError::NoClearance { gap });
         }
         let scale = EndScale::of(ends);
@@ -976,7 +981,8 @@ impl Path {
         if stroke <= 0.0 {
             return Some(0.0);
         }
-        let hi = self.first_contact.map(|(k, _)| k).unwrap_or(k_chord_closed());
+        // Without contact the free phase runs to the chord closing; bracket past it.
+        let hi = self.first_contact.map(|(k, _)| k).unwrap_or(0.999_999);
         newton_bracketed(0.0, hi, stroke.sqrt().min(0.9 * hi), 1e-15, |k| {
             let s = free_d(D::var(k, 0))[0];
             (s.v - stroke, s.d[0])
@@ -994,22 +1000,35 @@ impl Path {
         })
     }
 
-    /// The phase the path is in at `stroke`.
+    /// The phase the path is in at `stroke`. The limit is found only for strokes that can
+    /// reach it (past line-contact onset, or past first contact without line contact).
     pub fn phase_at(&self, stroke: f64) -> Phase {
-        if !(stroke >= 0.0) || stroke > self.limit().stroke {
+        if !(stroke >= 0.0) {
             return Phase::BeyondLimit;
         }
-        match (self.first_contact, self.line_onset) {
+        let tentative = match (self.first_contact, self.line_onset) {
+            (Some((_, d1)), _) if stroke <= d1 => return Phase::Free,
+            (Some(_), Some((_, ds))) if stroke < ds => return Phase::PointContact,
             (None, _) => Phase::Free,
-            (Some((_, d1)), _) if stroke <= d1 => Phase::Free,
-            (Some(_), Some((_, ds))) if stroke >= ds => Phase::LineContact,
-            _ => Phase::PointContact,
+            (Some(_), Some(_)) => Phase::LineContact,
+            (Some(_), None) => Phase::PointContact,
+        };
+        if stroke > self.limit().stroke { Phase::BeyondLimit } else { tentative }
+    }
+
+    /// A stroke that misses the limit by rounding (e.g. after a mm round trip) is the limit.
+    fn snap_to_limit(&self, stroke: f64) -> f64 {
+        if self.phase_at(stroke) != Phase::BeyondLimit || !stroke.is_finite() {
+            return stroke;
         }
+        let limit = self.limit().stroke;
+        if stroke > limit && stroke <= limit * (1.0 + 1e-12) { limit } else { stroke }
     }
 
     /// State of the strip at `stroke` (nondimensional). Past the limit the phase is
     /// `BeyondLimit` and the force and stress fields are NaN.
     pub fn state(&self, stroke: f64) -> StripState {
+        let stroke = self.snap_to_limit(stroke);
         let phase = self.phase_at(stroke);
         let solved = match phase {
             Phase::Free => self.free_k(stroke).map(|k| self.free_state(k, stroke)),

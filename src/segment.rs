@@ -467,6 +467,18 @@ impl BorePath<'_> {
         self.path.limit().reason
     }
 
+    /// Stroke where the axial force per strip peaks before the limit (past it the actuator
+    /// sees negative stiffness), mm; `None` when it rises all the way.
+    pub fn axial_peak_stroke_mm(&self) -> Option<f64> {
+        self.path.peaks().axial.map(|d| d * self.l_mm())
+    }
+
+    /// Stroke where the contact force peaks before the limit (past it more stroke loosens
+    /// the grip), mm; `None` when it rises all the way.
+    pub fn contact_peak_stroke_mm(&self) -> Option<f64> {
+        self.path.peaks().contact.map(|d| d * self.l_mm())
+    }
+
     /// Least stroke reaching the required holding force x safety factor, mm.
     pub fn holding_stroke_mm(&self) -> Option<f64> {
         let f_nd = self.segment.required_contact_per_strip_n() / self.segment.force_unit_n();

@@ -106,7 +106,7 @@ proptest! {
     fn solver_entry_points_take_any_numbers(gap in nasty(), stroke in nasty(), target in nasty(), hinged in any::<bool>()) {
         let ends = if hinged { Ends::Hinged } else { Ends::Clamped };
         match Path::new(ends, gap) {
-            Err(_) => prop_assert!(!(gap > 0.0 && gap.is_finite())),
+            Err(_) => prop_assert!(!(gap > bowgrip::elastica::MIN_GAP && gap.is_finite())),
             Ok(p) => {
                 let s = p.state(stroke);
                 if s.phase != Phase::BeyondLimit {
