@@ -28,6 +28,7 @@ const PURPLE: Rgb = (120, 40, 140);
 const BAND: Rgb = (215, 228, 245);
 const SHADE: Rgb = (238, 238, 238);
 const WARN: Rgb = (255, 236, 200);
+const NO_FIT: Rgb = (248, 215, 215);
 
 /// Builds every section.
 pub fn build(a: &Analysis, meta: &SheetMeta, width: f32) -> Vec<Section> {
@@ -385,7 +386,12 @@ fn margin_text(m: Option<f64>, unit: MarginUnit) -> String {
     match (m, unit) {
         (None, _) => NONE.to_string(),
         (Some(v), MarginUnit::Mm) => f::mm(v),
-        (Some(v), MarginUnit::Ratio) => format!("{} ({}%)", f::factor(v), f::fixed(100.0 * v, 1)),
+        (Some(v), MarginUnit::Ratio) => format!(
+            "{} {} ({}%)",
+            f::factor(v),
+            unit.label(),
+            f::fixed(100.0 * v, 1)
+        ),
     }
 }
 
@@ -858,17 +864,7 @@ fn check_table(a: &Analysis, width: f32) -> Section {
             (true, true) => "PASS (limiting)".to_string(),
             (false, true) => "FAIL (limiting)".to_string(),
         };
-        let unit = match c.unit {
-            MarginUnit::Mm => "mm",
-            MarginUnit::Ratio => "ratio",
-        };
-        let margin = match (c.margin, c.unit) {
-            (None, _) => NONE.to_string(),
-            (Some(v), MarginUnit::Mm) => f::mm(v),
-            (Some(v), MarginUnit::Ratio) => {
-                format!("{} ({}%)", f::factor(v), f::fixed(100.0 * v, 1))
-            }
-        };
+        let margin = margin_text(c.margin, c.unit);
         let mut r = row([
             (i + 1).to_string(),
             format!("{} [{}]", c.title, c.id),
@@ -889,7 +885,6 @@ fn check_table(a: &Analysis, width: f32) -> Section {
             r.shade = Some(SHADE);
             r.bold = true;
         }
-        let _ = unit;
         rows.push(r);
     }
     let t = table(
@@ -962,14 +957,31 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
     } else {
         1.0
     };
+    let no_fit = seg.bore_for_gap_mm(0.0);
     let above = |v: f64| if v > ymax { " (above the frame)" } else { "" };
     let plot = Plot {
-        title: "Stroke against bore diameter".to_string(),
+        title: format!(
+            "Strokes at which each event happens, {} bores across the window",
+            a.window.len()
+        ),
         x_label: "bore diameter (mm)".to_string(),
         y_label: "stroke (mm)".to_string(),
         x_range: a.window_mm,
         y_range: (0.0, ymax),
         items: vec![
+            Item::Band {
+                label: if no_fit > a.window_mm.0 {
+                    format!(
+                        "relaxed strips touch the wall: no state below {}",
+                        f::mm(no_fit)
+                    )
+                } else {
+                    String::new()
+                },
+                color: NO_FIT,
+                x0: a.window_mm.0,
+                x1: no_fit,
+            },
             Item::Band {
                 label: format!(
                     "bore tolerance {} to {}",
@@ -979,6 +991,16 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
                 color: BAND,
                 x0: seg.bore_smallest_mm,
                 x1: seg.bore_largest_mm,
+            },
+            Item::VLine {
+                label: String::new(),
+                pen: Pen::solid(BLUE, 0.5),
+                x: seg.bore_smallest_mm,
+            },
+            Item::VLine {
+                label: String::new(),
+                pen: Pen::solid(BLUE, 0.5),
+                x: seg.bore_largest_mm,
             },
             Item::VLine {
                 label: String::new(),
@@ -1136,6 +1158,21 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
                 label: format!("first contact {}", f::mm(fc)),
                 pen: Pen::dashed(GREY, 0.7, &[1.0, 1.5]),
                 x: fc,
+            },
+        );
+    }
+    if let Some(lim) = bore(a, BoreCase::Nominal).and_then(|r| r.row.limit_stroke_mm) {
+        let beyond = if lim > x_end {
+            " (beyond the frame)"
+        } else {
+            ""
+        };
+        items.insert(
+            1,
+            Item::VLine {
+                label: format!("model limit {}{beyond}", f::mm(lim)),
+                pen: Pen::dashed(PURPLE, 1.0, &[6.0, 1.5, 1.5, 1.5]),
+                x: lim,
             },
         );
     }
@@ -1307,17 +1344,16 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     }
     let shape = &a.shape_mm;
     let plate_r = 0.5 * d.end_plate_diameter_mm as f32;
-    if shape.is_empty() {
-        b.paragraph(
-            4.0,
-            cy - 20.0,
-            side_box - 8.0,
-            BODY,
-            Weight::Bold,
-            RED,
-            "No strip shape: the nominal bore has no model state at the operating stroke (see Results).",
-        );
+    // Without a state the strips are drawn relaxed (straight at the mount radius, plates
+    // at the free length), so the reader still sees the interference.
+    let rm = d.mount_radius_mm as f32;
+    let relaxed = [[0.0, f64::from(rm)], [f64::from(l), f64::from(rm)]];
+    let (shape, strip_color): (&[[f64; 2]], Rgb) = if shape.is_empty() {
+        (&relaxed, GREY)
     } else {
+        (shape.as_slice(), BLUE)
+    };
+    {
         let chord = shape.last().map_or(chord, |p| p[0] as f32);
         for xp in [-plate_t, chord] {
             let pts = vec![
@@ -1345,19 +1381,18 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
                 .iter()
                 .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
                 .collect();
-            b.polyline(pts, tw, BLUE, None);
+            b.polyline(pts, tw, strip_color, None);
             // The flat run, where the strip lies on the wall.
             let flat: Vec<[f32; 2]> = shape
                 .iter()
                 .filter(|p| p[1] >= rmax - 1e-6 * s.free_length_mm)
                 .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
                 .collect();
-            if flat.len() >= 2 {
+            if flat.len() >= 2 && !a.shape_mm.is_empty() {
                 b.polyline(flat, tw + 1.6, RED, None);
             }
         }
         // Relaxed strip, for comparison.
-        let rm = d.mount_radius_mm as f32;
         b.polyline(
             vec![[px(0.0), py(rm)], [px(l), py(rm)]],
             0.5,
@@ -1379,7 +1414,17 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             f::mm(l as f64)
         ),
     );
-    if let Some(s) = st {
+    if a.shape_mm.is_empty() {
+        ny = b.paragraph(
+            0.0,
+            ny,
+            side_box,
+            SMALL,
+            Weight::Bold,
+            RED,
+            "No strip shape: the nominal bore has no model state at the operating stroke (see Results). Strips drawn relaxed.",
+        );
+    } else if let Some(s) = st {
         note(
             &mut b,
             format!(
@@ -1420,10 +1465,12 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     for i in 0..n {
         let th = 2.0 * PI as f32 * i as f32 / n as f32 - 0.5 * PI as f32;
         let (sn, cs) = th.sin_cos();
-        for (rc, color, w) in [
-            (d.mount_radius_mm as f32, GREY, 0.5f32),
-            (d.mount_radius_mm as f32 + crest, BLUE, 0.8),
-        ] {
+        let at_crest = st.and_then(|s| s.crest_height_mm).is_some();
+        let rings = [
+            (d.mount_radius_mm as f32, (90, 90, 90), 0.8f32),
+            (d.mount_radius_mm as f32 + crest, BLUE, 1.6),
+        ];
+        for &(rc, color, w) in &rings[..if at_crest { 2 } else { 1 }] {
             let corner = |u: f32, v: f32| {
                 [
                     ex + (rc + v) * scale_pt * cs - u * scale_pt * sn,
@@ -1453,10 +1500,14 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             f::mm(s.thickness_mm),
             f::mm(d.mount_radius_mm)
         ),
-        format!(
-            "Grey: at the plates; blue: at the crest (+{}).",
-            f::mm(crest as f64)
-        ),
+        if st.is_some_and(|s| s.crest_height_mm.is_some()) {
+            format!(
+                "Grey: at the plates; blue: at the crest (+{}).",
+                f::mm(crest as f64)
+            )
+        } else {
+            "Strips drawn at the plates only: no state at the operating stroke.".to_string()
+        },
         format!(
             "Dashed circle: end plate {}.",
             f::mm(d.end_plate_diameter_mm)
