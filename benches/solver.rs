@@ -20,23 +20,36 @@ fn bench(c: &mut Criterion) {
     let point_stroke = 0.5 * (fc + lc);
     let line_stroke = 0.5 * (lc + path.limit_stroke_mm());
 
-    c.bench_function("operating point, point contact (bore set-up + state)", |b| {
-        b.iter(|| seg.at_bore(black_box(bore)).map(|p| p.state(black_box(point_stroke))))
-    });
+    c.bench_function(
+        "operating point, point contact (bore set-up + state)",
+        |b| {
+            b.iter(|| {
+                seg.at_bore(black_box(bore))
+                    .map(|p| p.state(black_box(point_stroke)))
+            })
+        },
+    );
     c.bench_function("operating point, line contact (bore set-up + state)", |b| {
-        b.iter(|| seg.at_bore(black_box(bore)).map(|p| p.state(black_box(line_stroke))))
+        b.iter(|| {
+            seg.at_bore(black_box(bore))
+                .map(|p| p.state(black_box(line_stroke)))
+        })
     });
     c.bench_function("400-point curve + 200-bore window", |b| {
         let (lo, hi) = analysis::window_range_mm(&seg);
         b.iter(|| {
             let curve = path.sweep(analysis::CURVE_POINTS);
             let rows: Vec<_> = (0..analysis::WINDOW_POINTS)
-                .map(|i| seg.bore_row(lo + (hi - lo) * i as f64 / (analysis::WINDOW_POINTS - 1) as f64))
+                .map(|i| {
+                    seg.bore_row(lo + (hi - lo) * i as f64 / (analysis::WINDOW_POINTS - 1) as f64)
+                })
                 .collect();
             black_box((curve, rows))
         })
     });
-    c.bench_function("full recompute (analyse)", |b| b.iter(|| analysis::analyse(black_box(&design))));
+    c.bench_function("full recompute (analyse)", |b| {
+        b.iter(|| analysis::analyse(black_box(&design)))
+    });
 }
 
 criterion_group!(benches, bench);

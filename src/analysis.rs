@@ -77,7 +77,8 @@ pub struct Analysis {
 /// the reach of the strips, mm.
 pub fn window_range_mm(seg: &Segment) -> (f64, f64) {
     let band = (seg.bore_largest_mm - seg.bore_smallest_mm).max(0.02 * seg.bore_nominal_mm);
-    let lo = (seg.bore_smallest_mm - 1.5 * band).max(seg.relaxed_diameter_mm().min(seg.bore_smallest_mm) * 0.98);
+    let lo = (seg.bore_smallest_mm - 1.5 * band)
+        .max(seg.relaxed_diameter_mm().min(seg.bore_smallest_mm) * 0.98);
     let hi = seg.bore_largest_mm + 1.5 * band;
     (lo, hi.max(lo + 1e-3))
 }
@@ -100,8 +101,13 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
             BoreResult {
                 case,
                 bore_mm,
-                operating: path.as_ref().map(|p| p.state(op)).map_err(|e| e.to_string()),
-                row: path.map(|p| p.row()).unwrap_or_else(|_| segment.bore_row(bore_mm)),
+                operating: path
+                    .as_ref()
+                    .map(|p| p.state(op))
+                    .map_err(|e| e.to_string()),
+                row: path
+                    .map(|p| p.row())
+                    .unwrap_or_else(|_| segment.bore_row(bore_mm)),
             }
         })
         .collect();
@@ -116,5 +122,14 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
             segment.bore_row(window_mm.0 + t * (window_mm.1 - window_mm.0))
         })
         .collect();
-    Ok(Analysis { segment, checks, limiting, bores, curve, window, window_mm, shape_mm })
+    Ok(Analysis {
+        segment,
+        checks,
+        limiting,
+        bores,
+        curve,
+        window,
+        window_mm,
+        shape_mm,
+    })
 }

@@ -91,7 +91,9 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                     Some(s) => format!(
                         "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall"
                     ),
-                    None => format!("first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm"),
+                    None => format!(
+                        "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm"
+                    ),
                 },
                 bore_mm: Some(large),
                 stroke_mm: Some(fc),
@@ -110,7 +112,14 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                 stroke_mm: None,
             },
         },
-        Err(e) => no_state("reach", "reaches the wall at the largest bore", MarginUnit::Mm, large, None, e),
+        Err(e) => no_state(
+            "reach",
+            "reaches the wall at the largest bore",
+            MarginUnit::Mm,
+            large,
+            None,
+            e,
+        ),
     };
     out.push(reach);
 
@@ -143,10 +152,23 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                     bore_mm: Some(large),
                     stroke_mm: Some(op),
                 },
-                None => beyond("hold", "holds the required load at the largest bore", large, op, &s),
+                None => beyond(
+                    "hold",
+                    "holds the required load at the largest bore",
+                    large,
+                    op,
+                    &s,
+                ),
             }
         }
-        Err(e) => no_state("hold", "holds the required load at the largest bore", MarginUnit::Ratio, large, Some(op), e),
+        Err(e) => no_state(
+            "hold",
+            "holds the required load at the largest bore",
+            MarginUnit::Ratio,
+            large,
+            Some(op),
+            e,
+        ),
     };
     out.push(hold);
 
@@ -176,10 +198,26 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         }
         Err(e) => {
             for (id, title, unit) in [
-                ("static", "static stress at the smallest bore", MarginUnit::Ratio),
-                ("fatigue", "fatigue (Goodman, zero-to-peak) at the smallest bore", MarginUnit::Ratio),
-                ("actuator", "actuator force or torque within rating", MarginUnit::Ratio),
-                ("stroke", "operating stroke within the actuator and short of the limit", MarginUnit::Mm),
+                (
+                    "static",
+                    "static stress at the smallest bore",
+                    MarginUnit::Ratio,
+                ),
+                (
+                    "fatigue",
+                    "fatigue (Goodman, zero-to-peak) at the smallest bore",
+                    MarginUnit::Ratio,
+                ),
+                (
+                    "actuator",
+                    "actuator force or torque within rating",
+                    MarginUnit::Ratio,
+                ),
+                (
+                    "stroke",
+                    "operating stroke within the actuator and short of the limit",
+                    MarginUnit::Mm,
+                ),
             ] {
                 out.push(no_state(id, title, unit, small, Some(op), &e));
             }
@@ -209,11 +247,18 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
     let (id, title) = if is_static {
         ("static", "static stress at the smallest bore")
     } else {
-        ("fatigue", "fatigue (Goodman, zero-to-peak) at the smallest bore")
+        (
+            "fatigue",
+            "fatigue (Goodman, zero-to-peak) at the smallest bore",
+        )
     };
     let (Some(stress), Some(fos)) = (
         s.max_stress_mpa,
-        if is_static { s.static_safety_factor } else { s.fatigue_safety_factor },
+        if is_static {
+            s.static_safety_factor
+        } else {
+            s.fatigue_safety_factor
+        },
     ) else {
         return beyond(id, title, bore, op, s);
     };
@@ -228,7 +273,16 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
             seg.fatigue_strength_mpa, seg.design.duty.cycles, seg.material.tensile_strength_mpa
         )
     };
-    Check { id, title, pass: fos >= 1.0, margin: Some(fos - 1.0), unit: MarginUnit::Ratio, reason, bore_mm: Some(bore), stroke_mm: Some(op) }
+    Check {
+        id,
+        title,
+        pass: fos >= 1.0,
+        margin: Some(fos - 1.0),
+        unit: MarginUnit::Ratio,
+        reason,
+        bore_mm: Some(bore),
+        stroke_mm: Some(op),
+    }
 }
 
 fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check {
@@ -238,7 +292,11 @@ fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check 
     };
     let rating = seg.actuator_effort_rating();
     let need = reading.effort;
-    let margin = if need > 0.0 { rating / need - 1.0 } else { f64::INFINITY };
+    let margin = if need > 0.0 {
+        rating / need - 1.0
+    } else {
+        f64::INFINITY
+    };
     let unit = reading.effort_unit;
     Check {
         id: "actuator",
@@ -259,7 +317,10 @@ fn beyond(id: &'static str, title: &'static str, bore: f64, op: f64, s: &Segment
         pass: false,
         margin: None,
         unit: MarginUnit::Ratio,
-        reason: s.reason.clone().unwrap_or_else(|| "no state at the operating stroke".to_string()),
+        reason: s
+            .reason
+            .clone()
+            .unwrap_or_else(|| "no state at the operating stroke".to_string()),
         bore_mm: Some(bore),
         stroke_mm: Some(op),
     }
@@ -273,7 +334,16 @@ fn no_state(
     op: Option<f64>,
     e: &SegmentError,
 ) -> Check {
-    Check { id, title, pass: false, margin: None, unit, reason: e.to_string(), bore_mm: Some(bore), stroke_mm: op }
+    Check {
+        id,
+        title,
+        pass: false,
+        margin: None,
+        unit,
+        reason: e.to_string(),
+        bore_mm: Some(bore),
+        stroke_mm: op,
+    }
 }
 
 /// Index of the check that limits the design: the failing check with the most negative

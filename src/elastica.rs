@@ -69,7 +69,9 @@ impl LimitReason {
             LimitReason::FlatRunBuckling => {
                 "flat run on the wall reaches its column buckling load and can snap off the wall"
             }
-            LimitReason::FlatRunCloses => "flat run shrinks back to zero past the fold of line contact",
+            LimitReason::FlatRunCloses => {
+                "flat run shrinks back to zero past the fold of line contact"
+            }
             LimitReason::ChordClosed => "end plates would meet (strip chord reaches zero)",
             LimitReason::AxialForceVanishes => "axial force per strip falls to zero",
             LimitReason::BranchLost => "solver lost the continuous solution branch",
@@ -149,7 +151,10 @@ impl D {
         D { v, d }
     }
     fn chain(self, v: f64, dv: f64) -> D {
-        D { v, d: [self.d[0] * dv, self.d[1] * dv] }
+        D {
+            v,
+            d: [self.d[0] * dv, self.d[1] * dv],
+        }
     }
     fn sin(self) -> D {
         let (s, c) = self.v.sin_cos();
@@ -171,13 +176,19 @@ impl D {
 impl std::ops::Add for D {
     type Output = D;
     fn add(self, o: D) -> D {
-        D { v: self.v + o.v, d: [self.d[0] + o.d[0], self.d[1] + o.d[1]] }
+        D {
+            v: self.v + o.v,
+            d: [self.d[0] + o.d[0], self.d[1] + o.d[1]],
+        }
     }
 }
 impl std::ops::Sub for D {
     type Output = D;
     fn sub(self, o: D) -> D {
-        D { v: self.v - o.v, d: [self.d[0] - o.d[0], self.d[1] - o.d[1]] }
+        D {
+            v: self.v - o.v,
+            d: [self.d[0] - o.d[0], self.d[1] - o.d[1]],
+        }
     }
 }
 impl std::ops::Mul for D {
@@ -185,7 +196,10 @@ impl std::ops::Mul for D {
     fn mul(self, o: D) -> D {
         D {
             v: self.v * o.v,
-            d: [self.d[0] * o.v + self.v * o.d[0], self.d[1] * o.v + self.v * o.d[1]],
+            d: [
+                self.d[0] * o.v + self.v * o.d[0],
+                self.d[1] * o.v + self.v * o.d[1],
+            ],
         }
     }
 }
@@ -193,19 +207,31 @@ impl std::ops::Div for D {
     type Output = D;
     fn div(self, o: D) -> D {
         let q = self.v / o.v;
-        D { v: q, d: [(self.d[0] - q * o.d[0]) / o.v, (self.d[1] - q * o.d[1]) / o.v] }
+        D {
+            v: q,
+            d: [
+                (self.d[0] - q * o.d[0]) / o.v,
+                (self.d[1] - q * o.d[1]) / o.v,
+            ],
+        }
     }
 }
 impl std::ops::Mul<D> for f64 {
     type Output = D;
     fn mul(self, o: D) -> D {
-        D { v: self * o.v, d: [self * o.d[0], self * o.d[1]] }
+        D {
+            v: self * o.v,
+            d: [self * o.d[0], self * o.d[1]],
+        }
     }
 }
 impl std::ops::Sub<D> for f64 {
     type Output = D;
     fn sub(self, o: D) -> D {
-        D { v: self - o.v, d: [-o.d[0], -o.d[1]] }
+        D {
+            v: self - o.v,
+            d: [-o.d[0], -o.d[1]],
+        }
     }
 }
 
@@ -241,7 +267,10 @@ fn incomplete_d(phi: D, k: D) -> (D, D, D) {
     let delta = (1.0 - k.v * k.v * s * s).sqrt();
     let mix = |v: f64, by_phi: f64, by_k: f64| D {
         v,
-        d: [phi.d[0] * by_phi + k.d[0] * by_k, phi.d[1] * by_phi + k.d[1] * by_k],
+        d: [
+            phi.d[0] * by_phi + k.d[0] * by_k,
+            phi.d[1] * by_phi + k.d[1] * by_k,
+        ],
     };
     (
         mix(fed.0, 1.0 / delta, fk),
@@ -264,8 +293,14 @@ struct EndScale {
 impl EndScale {
     fn of(ends: Ends) -> EndScale {
         match ends {
-            Ends::Clamped => EndScale { force: 1.0, curvature: 1.0 },
-            Ends::Hinged => EndScale { force: 0.25, curvature: 0.5 },
+            Ends::Clamped => EndScale {
+                force: 1.0,
+                curvature: 1.0,
+            },
+            Ends::Hinged => EndScale {
+                force: 0.25,
+                curvature: 0.5,
+            },
         }
     }
 }
@@ -422,8 +457,13 @@ fn newton_bracketed(
 
 /// Brent's method (the `roots` crate) for an inverse query on `[lo, hi]`, iteration-bounded.
 fn brent(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> Option<f64> {
-    let mut conv = roots::SimpleConvergency { eps: 1e-15, max_iter: MAX_NEWTON };
-    roots::find_root_brent(lo, hi, &f, &mut conv).ok().filter(|x| x.is_finite())
+    let mut conv = roots::SimpleConvergency {
+        eps: 1e-15,
+        max_iter: MAX_NEWTON,
+    };
+    roots::find_root_brent(lo, hi, &f, &mut conv)
+        .ok()
+        .filter(|x| x.is_finite())
 }
 
 /// Modulus at which `E/K = 1/2`: the free strip's chord closes (`X = 0`).
@@ -562,7 +602,12 @@ fn golden_max(mut lo: f64, mut hi: f64, f: impl Fn(f64) -> f64) -> f64 {
 enum PointGoal {
     Stroke(f64),
     /// `wk * kappa + wp * axial + wf * contact = value` (clamped-form quantities).
-    Linear { wk: f64, wp: f64, wf: f64, value: f64 },
+    Linear {
+        wk: f64,
+        wp: f64,
+        wf: f64,
+        value: f64,
+    },
 }
 
 impl Path {
@@ -623,17 +668,30 @@ impl Path {
 
     /// The limit with its line-contact modulus, computed once.
     fn limit_data(&self) -> (Limit, Option<f64>) {
-        *self.limit_cache.get_or_init(|| match (self.first_contact, self.line_onset) {
-            (None, _) => {
-                let reason = if self.branch_lost { LimitReason::BranchLost } else { LimitReason::ChordClosed };
-                (Limit { stroke: 1.0, reason, phase: Phase::Free }, None)
-            }
-            (Some(_), Some((ks, _))) => {
-                let (limit, k) = self.line_limit(ks);
-                (limit, Some(k))
-            }
-            (Some(_), None) => (self.point_limit_without_line(), None),
-        })
+        *self
+            .limit_cache
+            .get_or_init(|| match (self.first_contact, self.line_onset) {
+                (None, _) => {
+                    let reason = if self.branch_lost {
+                        LimitReason::BranchLost
+                    } else {
+                        LimitReason::ChordClosed
+                    };
+                    (
+                        Limit {
+                            stroke: 1.0,
+                            reason,
+                            phase: Phase::Free,
+                        },
+                        None,
+                    )
+                }
+                (Some(_), Some((ks, _))) => {
+                    let (limit, k) = self.line_limit(ks);
+                    (limit, Some(k))
+                }
+                (Some(_), None) => (self.point_limit_without_line(), None),
+            })
     }
 
     /// Nondimensional gap `g / L`.
@@ -687,7 +745,11 @@ impl Path {
         };
         // The stroke rises with k, so the chord can only close at the end of the range.
         let chord_closes = chord(k_end).0 >= 0.0;
-        let k_chord = if chord_closes { newton_bracketed(ks, k_end, k_end, 1e-15, chord) } else { None };
+        let k_chord = if chord_closes {
+            newton_bracketed(ks, k_end, k_end, 1e-15, chord)
+        } else {
+            None
+        };
         let stop = k_chord.unwrap_or(k_end);
         // The buckling margin need not be monotonic past the fold: sample, then refine.
         const SAMPLES: usize = 12;
@@ -699,13 +761,27 @@ impl Path {
             if buckling(k).0 >= 0.0 {
                 let kb = newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, buckling).unwrap_or(k);
                 let stroke = line_d(D::c(kb), gap).stroke.v;
-                return (Limit { stroke, reason: LimitReason::FlatRunBuckling, phase: Phase::LineContact }, kb);
+                return (
+                    Limit {
+                        stroke,
+                        reason: LimitReason::FlatRunBuckling,
+                        phase: Phase::LineContact,
+                    },
+                    kb,
+                );
             }
             prev = k;
         }
         if let Some(kc) = k_chord {
             let stroke = line_d(D::c(kc), gap).stroke.v;
-            return (Limit { stroke, reason: LimitReason::ChordClosed, phase: Phase::LineContact }, kc);
+            return (
+                Limit {
+                    stroke,
+                    reason: LimitReason::ChordClosed,
+                    phase: Phase::LineContact,
+                },
+                kc,
+            );
         }
         let reason = if k_close < k_axial {
             LimitReason::FlatRunCloses
@@ -713,7 +789,14 @@ impl Path {
             LimitReason::AxialForceVanishes
         };
         let stroke = line_d(D::c(k_end), gap).stroke.v;
-        (Limit { stroke, reason, phase: Phase::LineContact }, k_end)
+        (
+            Limit {
+                stroke,
+                reason,
+                phase: Phase::LineContact,
+            },
+            k_end,
+        )
     }
 
     /// The limit on a point-contact branch that never reaches line contact: march in
@@ -725,12 +808,30 @@ impl Path {
     /// Marches a point branch without line contact from first contact to its limit,
     /// recording where the axial and the contact force peak on the way.
     fn march_without_line(&self) -> (Limit, Peaks) {
-        let mut peaks = Peaks { axial: None, contact: None };
-        let Some((k1, d1)) = self.first_contact else {
-            return (Limit { stroke: 1.0, reason: LimitReason::BranchLost, phase: Phase::Free }, peaks);
+        let mut peaks = Peaks {
+            axial: None,
+            contact: None,
         };
-        let lost = |stroke| Limit { stroke, reason: LimitReason::BranchLost, phase: Phase::PointContact };
-        let mut node = PointNode { k: k1, phi0: 0.0, stroke: d1 };
+        let Some((k1, d1)) = self.first_contact else {
+            return (
+                Limit {
+                    stroke: 1.0,
+                    reason: LimitReason::BranchLost,
+                    phase: Phase::Free,
+                },
+                peaks,
+            );
+        };
+        let lost = |stroke| Limit {
+            stroke,
+            reason: LimitReason::BranchLost,
+            phase: Phase::PointContact,
+        };
+        let mut node = PointNode {
+            k: k1,
+            phi0: 0.0,
+            stroke: d1,
+        };
         let mut prev: Option<PointNode> = None;
         let first = point_d(D::c(k1), D::c(0.0));
         let (mut last_axial, mut last_contact) = (first.axial.v, 0.0);
@@ -741,7 +842,10 @@ impl Path {
             let guess = match prev {
                 Some(p) => {
                     let r = h / (node.stroke - p.stroke);
-                    (node.k + r * (node.k - p.k), node.phi0 + r * (node.phi0 - p.phi0))
+                    (
+                        node.k + r * (node.k - p.k),
+                        node.phi0 + r * (node.phi0 - p.phi0),
+                    )
                 }
                 None => (node.k * 0.98, -0.2 * h.sqrt().min(0.3)),
             };
@@ -753,10 +857,21 @@ impl Path {
                 continue;
             };
             let q = point_d(D::c(k), D::c(phi0));
-            let next = PointNode { k, phi0, stroke: target };
+            let next = PointNode {
+                k,
+                phi0,
+                stroke: target,
+            };
             if q.axial.v <= 0.0 {
                 let stroke = self.bisect_point(node, next, |q| q.axial.v > 0.0);
-                return (Limit { stroke, reason: LimitReason::AxialForceVanishes, phase: Phase::PointContact }, peaks);
+                return (
+                    Limit {
+                        stroke,
+                        reason: LimitReason::AxialForceVanishes,
+                        phase: Phase::PointContact,
+                    },
+                    peaks,
+                );
             }
             if peaks.axial.is_none() && q.axial.v < last_axial {
                 peaks.axial = Some(self.point_peak(prev.unwrap_or(node), next, |q| q.axial.v));
@@ -765,7 +880,14 @@ impl Path {
                 peaks.contact = Some(self.point_peak(prev.unwrap_or(node), next, |q| q.contact.v));
             }
             if target >= 1.0 {
-                return (Limit { stroke: 1.0, reason: LimitReason::ChordClosed, phase: Phase::PointContact }, peaks);
+                return (
+                    Limit {
+                        stroke: 1.0,
+                        reason: LimitReason::ChordClosed,
+                        phase: Phase::PointContact,
+                    },
+                    peaks,
+                );
             }
             last_axial = q.axial.v;
             last_contact = q.contact.v;
@@ -777,15 +899,26 @@ impl Path {
     }
 
     /// Bisects the stroke between two point nodes for the last stroke where `keep` holds.
-    fn bisect_point(&self, mut lo: PointNode, mut hi: PointNode, keep: impl Fn(&PointQ) -> bool) -> f64 {
+    fn bisect_point(
+        &self,
+        mut lo: PointNode,
+        mut hi: PointNode,
+        keep: impl Fn(&PointQ) -> bool,
+    ) -> f64 {
         for _ in 0..60 {
             if hi.stroke - lo.stroke < 1e-13 {
                 break;
             }
             let mid = 0.5 * (lo.stroke + hi.stroke);
             let guess = (0.5 * (lo.k + hi.k), 0.5 * (lo.phi0 + hi.phi0));
-            let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(mid), guess) else { break };
-            let node = PointNode { k, phi0, stroke: mid };
+            let Some((k, phi0)) = self.solve_point(PointGoal::Stroke(mid), guess) else {
+                break;
+            };
+            let node = PointNode {
+                k,
+                phi0,
+                stroke: mid,
+            };
             if keep(&point_d(D::c(k), D::c(phi0))) {
                 lo = node;
             } else {
@@ -814,7 +947,10 @@ impl Path {
     pub fn peaks(&self) -> Peaks {
         *self.peaks_cache.get_or_init(|| {
             let Some(_) = self.first_contact else {
-                return Peaks { axial: None, contact: None };
+                return Peaks {
+                    axial: None,
+                    contact: None,
+                };
             };
             let Some((ks, ds)) = self.line_onset else {
                 return self.march_without_line().1;
@@ -825,9 +961,20 @@ impl Path {
             // line contact in k, where everything is explicit.
             let peak_of = |pick: fn(&LineQ) -> f64| {
                 const N: usize = 24;
-                let ks_list: Vec<f64> = (0..=N).map(|i| ks + (kl - ks) * i as f64 / N as f64).collect();
-                let vals: Vec<f64> = ks_list.iter().map(|&k| pick(&line_d(D::c(k), gap))).collect();
-                let (imax, _) = vals.iter().enumerate().fold((0, f64::NEG_INFINITY), |acc, (i, &v)| if v > acc.1 { (i, v) } else { acc });
+                let ks_list: Vec<f64> = (0..=N)
+                    .map(|i| ks + (kl - ks) * i as f64 / N as f64)
+                    .collect();
+                let vals: Vec<f64> = ks_list
+                    .iter()
+                    .map(|&k| pick(&line_d(D::c(k), gap)))
+                    .collect();
+                let (imax, _) =
+                    vals.iter()
+                        .enumerate()
+                        .fold(
+                            (0, f64::NEG_INFINITY),
+                            |acc, (i, &v)| if v > acc.1 { (i, v) } else { acc },
+                        );
                 if imax == N {
                     return None;
                 }
@@ -836,7 +983,10 @@ impl Path {
                 let k = golden_max(lo, hi, |k| pick(&line_d(D::c(k), gap)));
                 Some(line_d(D::c(k), gap).stroke.v.max(ds))
             };
-            Peaks { axial: peak_of(|q| q.axial.v), contact: peak_of(|q| q.contact.v) }
+            Peaks {
+                axial: peak_of(|q| q.axial.v),
+                contact: peak_of(|q| q.contact.v),
+            }
         })
     }
 
@@ -866,7 +1016,8 @@ impl Path {
             (1.0 / gap, 1.0 / scale2)
         };
         let norm = |r1: D, r2: D| (r1.v * s1).powi(2) + (r2.v * s2).powi(2);
-        let inside = |k: f64, phi0: f64| k > 0.0 && k < 1.0 && (-FRAC_PI_2 - 0.6..=0.6).contains(&phi0);
+        let inside =
+            |k: f64, phi0: f64| k > 0.0 && k < 1.0 && (-FRAC_PI_2 - 0.6..=0.6).contains(&phi0);
         let (mut k, mut phi0) = guess;
         if !inside(k, phi0) {
             return None;
@@ -939,7 +1090,11 @@ impl Path {
     /// Marches the point branch in stroke from first contact to `stroke`, then solves `goal`.
     fn march_point(&self, goal: PointGoal, stroke: f64) -> Option<(f64, f64)> {
         let (k1, d1) = self.first_contact?;
-        let mut node = PointNode { k: k1, phi0: 0.0, stroke: d1 };
+        let mut node = PointNode {
+            k: k1,
+            phi0: 0.0,
+            stroke: d1,
+        };
         let mut prev: Option<PointNode> = None;
         let total = stroke - d1;
         let mut step = total / 16.0;
@@ -952,14 +1107,24 @@ impl Path {
             let guess = match prev {
                 Some(p) => {
                     let r = h / (node.stroke - p.stroke);
-                    (node.k + r * (node.k - p.k), node.phi0 + r * (node.phi0 - p.phi0))
+                    (
+                        node.k + r * (node.k - p.k),
+                        node.phi0 + r * (node.phi0 - p.phi0),
+                    )
                 }
-                None => (node.k * 0.99, -(h / total.max(1e-300)).sqrt().min(1.0) * 0.5),
+                None => (
+                    node.k * 0.99,
+                    -(h / total.max(1e-300)).sqrt().min(1.0) * 0.5,
+                ),
             };
             match self.solve_point(PointGoal::Stroke(target), guess) {
                 Some((k, phi0)) => {
                     prev = Some(node);
-                    node = PointNode { k, phi0, stroke: target };
+                    node = PointNode {
+                        k,
+                        phi0,
+                        stroke: target,
+                    };
                     step *= 1.3;
                 }
                 None => {
@@ -1013,7 +1178,11 @@ impl Path {
             (Some(_), Some(_)) => Phase::LineContact,
             (Some(_), None) => Phase::PointContact,
         };
-        if stroke > self.limit().stroke { Phase::BeyondLimit } else { tentative }
+        if stroke > self.limit().stroke {
+            Phase::BeyondLimit
+        } else {
+            tentative
+        }
     }
 
     /// A stroke that misses the limit by rounding (e.g. after a mm round trip) is the limit.
@@ -1022,7 +1191,11 @@ impl Path {
             return stroke;
         }
         let limit = self.limit().stroke;
-        if stroke > limit && stroke <= limit * (1.0 + 1e-12) { limit } else { stroke }
+        if stroke > limit && stroke <= limit * (1.0 + 1e-12) {
+            limit
+        } else {
+            stroke
+        }
     }
 
     /// State of the strip at `stroke` (nondimensional). Past the limit the phase is
@@ -1032,7 +1205,9 @@ impl Path {
         let phase = self.phase_at(stroke);
         let solved = match phase {
             Phase::Free => self.free_k(stroke).map(|k| self.free_state(k, stroke)),
-            Phase::PointContact => self.point_at(stroke).map(|(k, p)| self.point_state(k, p, stroke)),
+            Phase::PointContact => self
+                .point_at(stroke)
+                .map(|(k, p)| self.point_state(k, p, stroke)),
             Phase::LineContact => self.line_k(stroke).map(|k| self.line_state(k, stroke)),
             Phase::BeyondLimit => None,
         };
@@ -1108,7 +1283,10 @@ impl Path {
             let [_, axial, _, kappa, _] = free_d(D::c(k));
             wk_c * kappa.v + wp_c * axial.v - value
         };
-        let k_end = self.first_contact.map(|(k, _)| k).unwrap_or(k_chord_closed());
+        let k_end = self
+            .first_contact
+            .map(|(k, _)| k)
+            .unwrap_or(k_chord_closed());
         if eval_free(k_end) >= 0.0 {
             let k = brent(0.0, k_end, eval_free)?;
             let stroke = free_d(D::c(k))[0].v;
@@ -1130,11 +1308,23 @@ impl Path {
             return Some(d1);
         }
         // Clamped-form weights for the phase equations.
-        let (sk, sp, sf) = (wk * self.scale_curvature, wp * self.scale_force, wf * self.scale_force);
-        let point_end = self.line_onset.map(|(_, d)| d).unwrap_or(self.limit().stroke);
+        let (sk, sp, sf) = (
+            wk * self.scale_curvature,
+            wp * self.scale_force,
+            wf * self.scale_force,
+        );
+        let point_end = self
+            .line_onset
+            .map(|(_, d)| d)
+            .unwrap_or(self.limit().stroke);
         let m_end = measure(&self.state(point_end));
         if m_end >= value {
-            let goal = PointGoal::Linear { wk: sk, wp: sp, wf: sf, value };
+            let goal = PointGoal::Linear {
+                wk: sk,
+                wp: sp,
+                wf: sf,
+                value,
+            };
             let t = ((value - m1) / (m_end - m1)).clamp(0.0, 1.0);
             let guess_stroke = d1 + t * (point_end - d1);
             let solved = self
@@ -1190,21 +1380,33 @@ impl Path {
             Phase::BeyondLimit => return Vec::new(),
             Phase::Free => {
                 let lam = if hinged { 2.0 * ke.0 } else { 4.0 * ke.0 };
-                let (a, b) = if hinged { (FRAC_PI_2, 1.5 * PI) } else { (0.0, 2.0 * PI) };
+                let (a, b) = if hinged {
+                    (FRAC_PI_2, 1.5 * PI)
+                } else {
+                    (0.0, 2.0 * PI)
+                };
                 span(a, b, 0.0, lam, &mut half);
                 return half;
             }
             Phase::PointContact => {
                 let (f0, _) = elliptic::incomplete(s.phi0, k);
                 let psi = -2.0 * (k * s.phi0.sin()).asin();
-                let lam = if hinged { 2.0 * (ke.0 - f0) } else { 4.0 * (ke.0 - f0) };
+                let lam = if hinged {
+                    2.0 * (ke.0 - f0)
+                } else {
+                    4.0 * (ke.0 - f0)
+                };
                 let a = if hinged { FRAC_PI_2 } else { s.phi0 };
                 span(a, PI - s.phi0, psi, lam, &mut half);
                 chord = 1.0 - stroke;
             }
             Phase::LineContact => {
                 let alpha = 2.0 * k.asin();
-                let lam = if hinged { 2.0 * ke.0 / s.arc } else { 4.0 * ke.0 / s.arc };
+                let lam = if hinged {
+                    2.0 * ke.0 / s.arc
+                } else {
+                    4.0 * ke.0 / s.arc
+                };
                 let a = if hinged { FRAC_PI_2 } else { -FRAC_PI_2 };
                 span(a, 1.5 * PI, alpha, lam, &mut half);
                 chord = 1.0 - stroke;
@@ -1234,5 +1436,3 @@ fn beyond(stroke: f64) -> StripState {
         energy: f64::NAN,
     }
 }
-
-

@@ -229,7 +229,10 @@ pub fn incomplete_dk(phi: f64, k: f64, fe: (f64, f64)) -> (f64, f64) {
     }
     let kp2 = co_square(k);
     let delta = (1.0 - k * k * s * s).sqrt();
-    (e / (k * kp2) - f / k - k * s * c / (kp2 * delta), (e - f) / k)
+    (
+        e / (k * kp2) - f / k - k * s * c / (kp2 * delta),
+        (e - f) / k,
+    )
 }
 
 #[cfg(test)]

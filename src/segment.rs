@@ -200,12 +200,14 @@ impl Segment {
         design.validate()?;
         let strip = &design.strip;
         let material = match &strip.material {
-            MaterialChoice::Grade(id) => material::find(id).cloned().ok_or_else(|| {
-                DesignError::UnknownGrade {
-                    id: id.clone(),
-                    known: material::ids().into_iter().map(String::from).collect(),
-                }
-            })?,
+            MaterialChoice::Grade(id) => {
+                material::find(id)
+                    .cloned()
+                    .ok_or_else(|| DesignError::UnknownGrade {
+                        id: id.clone(),
+                        known: material::ids().into_iter().map(String::from).collect(),
+                    })?
+            }
             MaterialChoice::Custom {
                 name,
                 youngs_modulus_gpa,
@@ -225,7 +227,10 @@ impl Segment {
         let ratio = strip.width_mm / strip.thickness_mm;
         let (stiffness_used, stiffness_reason) = match strip.stiffness {
             Stiffness::Beam => (StiffnessUsed::Beam, "beam chosen in the design".to_string()),
-            Stiffness::Plate => (StiffnessUsed::Plate, "plate chosen in the design".to_string()),
+            Stiffness::Plate => (
+                StiffnessUsed::Plate,
+                "plate chosen in the design".to_string(),
+            ),
             Stiffness::Auto if ratio >= PLATE_RATIO => (
                 StiffnessUsed::Plate,
                 format!("automatic: width/thickness = {ratio:.1} >= {PLATE_RATIO} (wide strip)"),
@@ -245,7 +250,8 @@ impl Segment {
         let t = strip.thickness_mm * 1e-3;
         let bending_stiffness_nm2 = modulus_pa * b * t.powi(3) / 12.0;
         let su = material.tensile_strength_mpa;
-        let fatigue_strength = fatigue_strength_mpa(su, material.endurance_limit_mpa, design.duty.cycles as f64);
+        let fatigue_strength =
+            fatigue_strength_mpa(su, material.endurance_limit_mpa, design.duty.cycles as f64);
         // n_f = 1 / (sa/Sf + sm/Su) with sa = sm = s/2  =>  s at n_f = 1 is 2 / (1/Sf + 1/Su).
         let fatigue_allowable_mpa = 2.0 / (1.0 / fatigue_strength + 1.0 / su);
         Ok(Segment {
@@ -283,7 +289,9 @@ impl Segment {
     pub fn gap_mm(&self, bore_mm: f64) -> f64 {
         let r = 0.5 * bore_mm;
         let s = &self.design.strip;
-        (r * r - 0.25 * s.width_mm * s.width_mm).sqrt() - 0.5 * s.thickness_mm - self.design.mount_radius_mm
+        (r * r - 0.25 * s.width_mm * s.width_mm).sqrt()
+            - 0.5 * s.thickness_mm
+            - self.design.mount_radius_mm
     }
 
     /// Diameter over the strip corners at crest height `h`, mm:
@@ -296,7 +304,8 @@ impl Segment {
 
     /// The largest diameter of the relaxed segment: end plates or strips, mm.
     pub fn relaxed_diameter_mm(&self) -> f64 {
-        self.outer_diameter_mm(0.0).max(self.design.end_plate_diameter_mm)
+        self.outer_diameter_mm(0.0)
+            .max(self.design.end_plate_diameter_mm)
     }
 
     /// Largest bore any stroke can reach (free crest peaks near 0.40 L), mm.
@@ -315,7 +324,8 @@ impl Segment {
     /// stroke), mm.
     pub fn largest_bore_at_stroke_mm(&self, stroke_mm: f64) -> f64 {
         let l = self.design.strip.free_length_mm;
-        let free = Path::new(self.design.strip.ends, 1.0).map(|p| p.state((stroke_mm / l).min(0.999)));
+        let free =
+            Path::new(self.design.strip.ends, 1.0).map(|p| p.state((stroke_mm / l).min(0.999)));
         match free {
             Ok(s) if s.phase == Phase::Free => self.bore_for_gap_mm(s.crest_height * l),
             _ => self.largest_reachable_bore_mm(),
@@ -326,8 +336,14 @@ impl Segment {
     pub fn max_stroke_mm(&self) -> f64 {
         match self.design.actuator {
             Actuator::Direct { max_stroke_mm, .. } => max_stroke_mm,
-            Actuator::Spool { radius_mm, max_angle_deg, .. } => radius_mm * max_angle_deg.to_radians(),
-            Actuator::LeadScrew { lead_mm, max_turns, .. } => lead_mm * max_turns,
+            Actuator::Spool {
+                radius_mm,
+                max_angle_deg,
+                ..
+            } => radius_mm * max_angle_deg.to_radians(),
+            Actuator::LeadScrew {
+                lead_mm, max_turns, ..
+            } => lead_mm * max_turns,
         }
     }
 
@@ -335,10 +351,17 @@ impl Segment {
     pub fn max_pull_n(&self) -> f64 {
         match self.design.actuator {
             Actuator::Direct { max_force_n, .. } => max_force_n,
-            Actuator::Spool { radius_mm, max_torque_nm, .. } => max_torque_nm / (radius_mm * 1e-3),
-            Actuator::LeadScrew { lead_mm, efficiency, max_torque_nm, .. } => {
-                max_torque_nm * 2.0 * PI * efficiency / (lead_mm * 1e-3)
-            }
+            Actuator::Spool {
+                radius_mm,
+                max_torque_nm,
+                ..
+            } => max_torque_nm / (radius_mm * 1e-3),
+            Actuator::LeadScrew {
+                lead_mm,
+                efficiency,
+                max_torque_nm,
+                ..
+            } => max_torque_nm * 2.0 * PI * efficiency / (lead_mm * 1e-3),
         }
     }
 
@@ -357,7 +380,11 @@ impl Segment {
                 effort: pull_n * radius_mm * 1e-3,
                 effort_unit: "N m",
             },
-            Actuator::LeadScrew { lead_mm, efficiency, .. } => ActuatorReading {
+            Actuator::LeadScrew {
+                lead_mm,
+                efficiency,
+                ..
+            } => ActuatorReading {
                 position: stroke_mm / lead_mm,
                 position_unit: "turns",
                 effort: pull_n * lead_mm * 1e-3 / (2.0 * PI * efficiency),
@@ -370,7 +397,9 @@ impl Segment {
     pub fn actuator_effort_rating(&self) -> f64 {
         match self.design.actuator {
             Actuator::Direct { max_force_n, .. } => max_force_n,
-            Actuator::Spool { max_torque_nm, .. } | Actuator::LeadScrew { max_torque_nm, .. } => max_torque_nm,
+            Actuator::Spool { max_torque_nm, .. } | Actuator::LeadScrew { max_torque_nm, .. } => {
+                max_torque_nm
+            }
         }
     }
 
@@ -389,12 +418,21 @@ impl Segment {
     /// Sets up the path at a bore.
     pub fn at_bore(&self, bore_mm: f64) -> Result<BorePath<'_>, SegmentError> {
         if !(bore_mm.is_finite() && bore_mm > 0.0) {
-            return Err(SegmentError::BadQuery { what: "bore_mm", value: bore_mm, allowed: "a positive number of mm" });
+            return Err(SegmentError::BadQuery {
+                what: "bore_mm",
+                value: bore_mm,
+                allowed: "a positive number of mm",
+            });
         }
         let gap_mm = self.gap_mm(bore_mm);
         let l = self.design.strip.free_length_mm;
         match Path::new(self.design.strip.ends, gap_mm / l) {
-            Ok(path) => Ok(BorePath { segment: self, bore_mm, gap_mm, path }),
+            Ok(path) => Ok(BorePath {
+                segment: self,
+                bore_mm,
+                gap_mm,
+                path,
+            }),
             Err(PathError::NoClearance { .. }) | Err(PathError::NotFinite) => {
                 Err(SegmentError::NoClearance { bore_mm, gap_mm })
             }

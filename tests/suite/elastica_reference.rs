@@ -11,7 +11,10 @@ const PATHS: &str = include_str!("../reference/elastica_paths_mpmath.csv");
 const STATES: &str = include_str!("../reference/elastica_mpmath.csv");
 
 fn rows(text: &str) -> impl Iterator<Item = Vec<&str>> {
-    text.lines().skip(1).filter(|l| !l.starts_with('#') && !l.trim().is_empty()).map(|l| l.split(',').collect())
+    text.lines()
+        .skip(1)
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+        .map(|l| l.split(',').collect())
 }
 
 fn ends(name: &str) -> Ends {
@@ -37,14 +40,20 @@ fn paths_match_mpmath() {
         let (e, g) = (ends(r[0]), num(r[1]).expect("gap"));
         let path = Path::new(e, g).expect("positive gap");
         let fc = path.first_contact_stroke().expect("reachable");
-        assert!(close(fc, num(r[2]).expect("first contact"), 1e-11), "{r:?}: first contact {fc}");
+        assert!(
+            close(fc, num(r[2]).expect("first contact"), 1e-11),
+            "{r:?}: first contact {fc}"
+        );
         match (path.line_contact_stroke(), num(r[3])) {
             (Some(a), Some(b)) => assert!(close(a, b, 1e-11), "{r:?}: onset {a}"),
             (None, None) => {}
             other => panic!("{r:?}: line-contact onset differs: {other:?}"),
         }
         let lim = path.limit();
-        assert!(close(lim.stroke, num(r[4]).expect("limit"), 1e-10), "{r:?}: limit {lim:?}");
+        assert!(
+            close(lim.stroke, num(r[4]).expect("limit"), 1e-10),
+            "{r:?}: limit {lim:?}"
+        );
         let reason = match r[5] {
             "buckling" => LimitReason::FlatRunBuckling,
             "axial" => LimitReason::AxialForceVanishes,
@@ -68,7 +77,11 @@ fn paths_match_mpmath() {
 fn states_match_mpmath() {
     let mut n = 0;
     for r in rows(STATES) {
-        let (e, g, d) = (ends(r[0]), num(r[1]).expect("gap"), num(r[2]).expect("stroke"));
+        let (e, g, d) = (
+            ends(r[0]),
+            num(r[1]).expect("gap"),
+            num(r[2]).expect("stroke"),
+        );
         let s = Path::new(e, g).expect("positive gap").state(d);
         let phase = match r[3] {
             "free" => Phase::Free,
@@ -81,10 +94,26 @@ fn states_match_mpmath() {
         let want = |i: usize| num(r[i]).expect("value");
         assert!(close(s.axial, want(4), tol), "{r:?}: axial {}", s.axial);
         // Contact force is judged on the scale of the axial force (it starts from zero).
-        assert!((s.contact - want(5)).abs() <= tol * want(4).abs(), "{r:?}: contact {}", s.contact);
-        assert!(close(s.crest_height, want(6), tol), "{r:?}: crest {}", s.crest_height);
-        assert!((s.flat_length - want(7)).abs() <= tol, "{r:?}: flat {}", s.flat_length);
-        assert!(close(s.kappa_max, want(8), tol), "{r:?}: curvature {}", s.kappa_max);
+        assert!(
+            (s.contact - want(5)).abs() <= tol * want(4).abs(),
+            "{r:?}: contact {}",
+            s.contact
+        );
+        assert!(
+            close(s.crest_height, want(6), tol),
+            "{r:?}: crest {}",
+            s.crest_height
+        );
+        assert!(
+            (s.flat_length - want(7)).abs() <= tol,
+            "{r:?}: flat {}",
+            s.flat_length
+        );
+        assert!(
+            close(s.kappa_max, want(8), tol),
+            "{r:?}: curvature {}",
+            s.kappa_max
+        );
         assert!(close(s.energy, want(9), tol), "{r:?}: energy {}", s.energy);
         n += 1;
     }
@@ -94,7 +123,13 @@ fn states_match_mpmath() {
 #[test]
 fn largest_reachable_gap_matches_mpmath() {
     // `# g_max_over_l=...` in the paths file: max over k of k / K(k).
-    let line = PATHS.lines().find(|l| l.starts_with("# g_max_over_l=")).expect("g_max line");
-    let g: f64 = line.trim_start_matches("# g_max_over_l=").parse().expect("number");
+    let line = PATHS
+        .lines()
+        .find(|l| l.starts_with("# g_max_over_l="))
+        .expect("g_max line");
+    let g: f64 = line
+        .trim_start_matches("# g_max_over_l=")
+        .parse()
+        .expect("number");
     assert!(close(bowgrip::elastica::max_reachable_gap(), g, 1e-13));
 }

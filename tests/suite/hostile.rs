@@ -30,7 +30,13 @@ fn nasty() -> impl Strategy<Value = f64> {
 /// Sets the `i`-th numeric field of a design to `v` (cycling over all of them).
 fn poke(d: &mut Design, i: usize, v: f64) {
     match i % 16 {
-        0 => d.strip.count = if v.is_finite() { v.abs().min(1e9) as u32 } else { 0 },
+        0 => {
+            d.strip.count = if v.is_finite() {
+                v.abs().min(1e9) as u32
+            } else {
+                0
+            }
+        }
         1 => d.strip.free_length_mm = v,
         2 => d.strip.width_mm = v,
         3 => d.strip.thickness_mm = v,
@@ -44,13 +50,25 @@ fn poke(d: &mut Design, i: usize, v: f64) {
         11 => d.duty.holding_force_n = v,
         12 => d.duty.safety_factor = v,
         13 => {
-            d.actuator = Actuator::Direct { max_force_n: v, max_stroke_mm: 10.0 };
+            d.actuator = Actuator::Direct {
+                max_force_n: v,
+                max_stroke_mm: 10.0,
+            };
         }
         14 => {
-            d.actuator = Actuator::LeadScrew { lead_mm: 1.0, efficiency: v, max_torque_nm: 1.0, max_turns: 5.0 };
+            d.actuator = Actuator::LeadScrew {
+                lead_mm: 1.0,
+                efficiency: v,
+                max_torque_nm: 1.0,
+                max_turns: 5.0,
+            };
         }
         _ => {
-            d.actuator = Actuator::Spool { radius_mm: v, max_torque_nm: 1.0, max_angle_deg: 360.0 };
+            d.actuator = Actuator::Spool {
+                radius_mm: v,
+                max_torque_nm: 1.0,
+                max_angle_deg: 360.0,
+            };
         }
     }
 }

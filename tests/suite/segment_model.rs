@@ -54,9 +54,15 @@ fn stiffness_rule_and_bending_stiffness() {
     let b_plate = 200e9 / (1.0 - 0.09) * 2e-3 * 0.2e-3_f64.powi(3) / 12.0;
     assert!(rel(plate.bending_stiffness_nm2, b_plate) < 1e-14);
     d.strip.width_mm = 1.99;
-    assert_eq!(Segment::new(&d).expect("valid").stiffness_used, StiffnessUsed::Beam);
+    assert_eq!(
+        Segment::new(&d).expect("valid").stiffness_used,
+        StiffnessUsed::Beam
+    );
     d.strip.stiffness = Stiffness::Plate;
-    assert_eq!(Segment::new(&d).expect("valid").stiffness_used, StiffnessUsed::Plate);
+    assert_eq!(
+        Segment::new(&d).expect("valid").stiffness_used,
+        StiffnessUsed::Plate
+    );
 }
 
 #[test]
@@ -68,7 +74,12 @@ fn fatigue_strength_follows_the_shigley_s_n_line() {
     assert!(rel(fatigue_strength_mpa(1700.0, 600.0, 1e6), 600.0) < 1e-14);
     assert!(rel(fatigue_strength_mpa(1700.0, 600.0, 1e9), 600.0) < 1e-14);
     let mid = 10f64.powf(4.5);
-    assert!(rel(fatigue_strength_mpa(1700.0, 600.0, mid), (1530.0_f64 * 600.0).sqrt()) < 1e-12);
+    assert!(
+        rel(
+            fatigue_strength_mpa(1700.0, 600.0, mid),
+            (1530.0_f64 * 600.0).sqrt()
+        ) < 1e-12
+    );
 }
 
 #[test]
@@ -90,13 +101,22 @@ fn actuator_mappings() {
     // Mechanics note, segment level: spool angle delta/r_s, torque N P r_s; lead screw
     // turns delta/lead, torque N P lead / (2 pi eff).
     let mut d = Design::default();
-    d.actuator = Actuator::Spool { radius_mm: 5.0, max_torque_nm: 2.0, max_angle_deg: 720.0 };
+    d.actuator = Actuator::Spool {
+        radius_mm: 5.0,
+        max_torque_nm: 2.0,
+        max_angle_deg: 720.0,
+    };
     let seg = Segment::new(&d).expect("valid");
     let r = seg.actuator_reading(3.0, 100.0);
     assert!(rel(r.position, (3.0_f64 / 5.0).to_degrees()) < 1e-14);
     assert!(rel(r.effort, 100.0 * 5e-3) < 1e-14);
     assert!(rel(seg.max_stroke_mm(), 5.0 * 4.0 * PI) < 1e-14);
-    d.actuator = Actuator::LeadScrew { lead_mm: 0.8, efficiency: 0.35, max_torque_nm: 0.4, max_turns: 12.0 };
+    d.actuator = Actuator::LeadScrew {
+        lead_mm: 0.8,
+        efficiency: 0.35,
+        max_torque_nm: 0.4,
+        max_turns: 12.0,
+    };
     let seg = Segment::new(&d).expect("valid");
     let r = seg.actuator_reading(2.0, 300.0);
     assert!(rel(r.position, 2.5) < 1e-14);
@@ -111,7 +131,12 @@ fn checks_are_judged_where_the_contract_says() {
     let seg = Segment::new(&d).expect("valid");
     let list = checks::run(&seg);
     let ids: Vec<_> = list.iter().map(|c| c.id).collect();
-    assert_eq!(ids, ["fit", "reach", "hold", "static", "fatigue", "actuator", "stroke", "hub"]);
+    assert_eq!(
+        ids,
+        [
+            "fit", "reach", "hold", "static", "fatigue", "actuator", "stroke", "hub"
+        ]
+    );
     let at = |id: &str| list.iter().find(|c| c.id == id).expect("present");
     assert_eq!(at("fit").bore_mm, Some(seg.bore_smallest_mm));
     assert_eq!(at("reach").bore_mm, Some(seg.bore_largest_mm));
@@ -154,14 +179,26 @@ fn holding_and_stress_strokes_are_where_their_quantities_reach_the_target() {
         let need = d.duty.holding_force_n * d.duty.safety_factor;
         if let Some(h) = row.holding_stroke_mm {
             let s = p.state(h);
-            assert!(rel(s.holding_force_n.expect("state"), need) < 1e-9, "bore {bore}");
+            assert!(
+                rel(s.holding_force_n.expect("state"), need) < 1e-9,
+                "bore {bore}"
+            );
         }
         if let Some(x) = row.stress_limit_stroke_mm {
             let s = p.state(x);
-            let nmin = s.static_safety_factor.expect("state").min(s.fatigue_safety_factor.expect("state"));
+            let nmin = s
+                .static_safety_factor
+                .expect("state")
+                .min(s.fatigue_safety_factor.expect("state"));
             assert!((nmin - 1.0).abs() < 1e-9, "bore {bore}: {nmin}");
             let before = p.state(0.999 * x);
-            assert!(before.static_safety_factor.expect("state").min(before.fatigue_safety_factor.expect("state")) > 1.0);
+            assert!(
+                before
+                    .static_safety_factor
+                    .expect("state")
+                    .min(before.fatigue_safety_factor.expect("state"))
+                    > 1.0
+            );
         }
     }
 }
@@ -178,24 +215,26 @@ fn design_strategy() -> impl Strategy<Value = Design> {
         0.5f64..1.5,
         prop::sample::select(vec!["carbon-1095-44hrc", "ss301-full-hard", "17-7ph-ch900"]),
     )
-        .prop_map(|(count, length, t, b, gap_ratio, hinged, plate_ratio, grade)| {
-            let mut d = Design::default();
-            d.strip.count = count;
-            d.strip.free_length_mm = length;
-            d.strip.thickness_mm = t.min(length / 20.0);
-            d.strip.width_mm = b.max(0.2).min(length / 2.0);
-            d.strip.material = MaterialChoice::Grade(grade.into());
-            d.strip.ends = if hinged { Ends::Hinged } else { Ends::Clamped };
-            d.mount_radius_mm = 0.3 * length + 5.0;
-            d.end_plate_diameter_mm = plate_ratio * d.mount_radius_mm;
-            let gap = gap_ratio * length;
-            let r = gap + 0.5 * d.strip.thickness_mm + d.mount_radius_mm;
-            d.bore.diameter_mm = 2.0 * (r * r + 0.25 * d.strip.width_mm.powi(2)).sqrt();
-            d.bore.minus_mm = 0.0;
-            d.bore.plus_mm = 0.0;
-            d.operating_stroke_mm = 0.05 * length;
-            d
-        })
+        .prop_map(
+            |(count, length, t, b, gap_ratio, hinged, plate_ratio, grade)| {
+                let mut d = Design::default();
+                d.strip.count = count;
+                d.strip.free_length_mm = length;
+                d.strip.thickness_mm = t.min(length / 20.0);
+                d.strip.width_mm = b.max(0.2).min(length / 2.0);
+                d.strip.material = MaterialChoice::Grade(grade.into());
+                d.strip.ends = if hinged { Ends::Hinged } else { Ends::Clamped };
+                d.mount_radius_mm = 0.3 * length + 5.0;
+                d.end_plate_diameter_mm = plate_ratio * d.mount_radius_mm;
+                let gap = gap_ratio * length;
+                let r = gap + 0.5 * d.strip.thickness_mm + d.mount_radius_mm;
+                d.bore.diameter_mm = 2.0 * (r * r + 0.25 * d.strip.width_mm.powi(2)).sqrt();
+                d.bore.minus_mm = 0.0;
+                d.bore.plus_mm = 0.0;
+                d.operating_stroke_mm = 0.05 * length;
+                d
+            },
+        )
 }
 
 proptest! {

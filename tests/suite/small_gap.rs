@@ -57,12 +57,24 @@ fn pin_ended_elastica_table() {
         assert_eq!(s.phase, Phase::Free);
         assert!((s.k - k).abs() < 1e-12, "modulus recovered from the stroke");
         // Tolerance: one unit in the third printed decimal (rounded or truncated).
-        assert!((s.axial / euler(Ends::Hinged) - load).abs() < 1e-3, "alpha {alpha_deg}: {}", s.axial);
-        assert!((1.0 - stroke - chord).abs() < 1e-3, "alpha {alpha_deg}: chord");
-        assert!((s.crest_height - height).abs() < 1e-3, "alpha {alpha_deg}: height");
+        assert!(
+            (s.axial / euler(Ends::Hinged) - load).abs() < 1e-3,
+            "alpha {alpha_deg}: {}",
+            s.axial
+        );
+        assert!(
+            (1.0 - stroke - chord).abs() < 1e-3,
+            "alpha {alpha_deg}: chord"
+        );
+        assert!(
+            (s.crest_height - height).abs() < 1e-3,
+            "alpha {alpha_deg}: height"
+        );
         // The clamped strip of the same stroke carries four times the load (T&G 2.7:
         // a clamped strip is four pin-ended quarter waves).
-        let c = Path::new(Ends::Clamped, 0.45).expect("valid gap").state(stroke);
+        let c = Path::new(Ends::Clamped, 0.45)
+            .expect("valid gap")
+            .state(stroke);
         assert!(rel(c.axial, 4.0 * s.axial) < 1e-12);
     }
 }
@@ -86,7 +98,10 @@ fn small_gap_first_contact() {
 fn small_gap_line_contact_onset() {
     // Point contact ends when the crest flattens: P = 16 pi^2 B/L^2 clamped, 4 pi^2 B/L^2
     // hinged, at delta = 3 g^2 / L (beam-column theory, T&G chapter 1).
-    for (ends, p_onset) in [(Ends::Clamped, 16.0 * PI * PI), (Ends::Hinged, 4.0 * PI * PI)] {
+    for (ends, p_onset) in [
+        (Ends::Clamped, 16.0 * PI * PI),
+        (Ends::Hinged, 4.0 * PI * PI),
+    ] {
         let path = Path::new(ends, G).expect("valid gap");
         let d = path.line_contact_stroke().expect("line contact exists");
         assert!(rel(d, 3.0 * G * G) < TOL, "{ends:?}: {d}");
@@ -113,7 +128,11 @@ fn small_gap_point_contact_force_law() {
                 Ends::Clamped => 2.0 * G * w.powi(3) / (0.125 * (w - 2.0 * (w / 2.0).tan())),
                 Ends::Hinged => 2.0 * G * w.powi(3) / (0.125 * (w - w.tan())),
             };
-            assert!((s.contact - law).abs() < TOL * scale, "{ends:?} step {i}: {} vs {law}", s.contact);
+            assert!(
+                (s.contact - law).abs() < TOL * scale,
+                "{ends:?} step {i}: {} vs {law}",
+                s.contact
+            );
         }
     }
 }
@@ -131,7 +150,10 @@ fn small_gap_line_contact_laws() {
             assert_eq!(s.phase, Phase::LineContact);
             let l = s.arc;
             assert!(rel(s.axial, c / (l * l)) < TOL, "{ends:?}: P");
-            assert!(rel(s.stroke, 3.0 * G * G / (2.0 * l)) < TOL, "{ends:?}: delta");
+            assert!(
+                rel(s.stroke, 3.0 * G * G / (2.0 * l)) < TOL,
+                "{ends:?}: delta"
+            );
             assert!(rel(s.contact, 2.0 * c * G / l.powi(3)) < TOL, "{ends:?}: F");
         }
     }
@@ -141,11 +163,18 @@ fn small_gap_line_contact_laws() {
 fn small_gap_flat_run_buckling() {
     // The flat run buckles as a column with the free arcs as clamps (clamped) or hinges
     // (hinged): at l = L/3, delta = 9 g^2/(2L), P = 36 pi^2 B/L^2 clamped (9 pi^2 hinged).
-    for (ends, p) in [(Ends::Clamped, 36.0 * PI * PI), (Ends::Hinged, 9.0 * PI * PI)] {
+    for (ends, p) in [
+        (Ends::Clamped, 36.0 * PI * PI),
+        (Ends::Hinged, 9.0 * PI * PI),
+    ] {
         let path = Path::new(ends, G).expect("valid gap");
         let lim = path.limit();
         assert_eq!(lim.reason, LimitReason::FlatRunBuckling);
-        assert!(rel(lim.stroke, 4.5 * G * G) < TOL, "{ends:?}: {}", lim.stroke);
+        assert!(
+            rel(lim.stroke, 4.5 * G * G) < TOL,
+            "{ends:?}: {}",
+            lim.stroke
+        );
         let s = path.state(lim.stroke);
         assert!(rel(s.arc, 1.0 / 3.0) < TOL);
         assert!(rel(s.axial, p) < TOL);
@@ -178,7 +207,12 @@ fn axial_force_is_the_stroke_derivative_of_energy() {
                 let h = 1e-6 * path.limit().stroke;
                 let du = (path.state(d + h).energy - path.state(d - h).energy) / (2.0 * h);
                 let s = path.state(d);
-                assert!(rel(du, s.axial) < 1e-6, "{ends:?} g {gap} d {d} {:?}: {du} vs {}", s.phase, s.axial);
+                assert!(
+                    rel(du, s.axial) < 1e-6,
+                    "{ends:?} g {gap} d {d} {:?}: {du} vs {}",
+                    s.phase,
+                    s.axial
+                );
             }
         }
     }
@@ -200,7 +234,11 @@ fn contact_force_is_the_gap_derivative_of_energy() {
                 let down = Path::new(ends, gap - h).expect("valid").state(d);
                 assert_eq!(up.phase, s.phase);
                 let du = -(up.energy - down.energy) / (2.0 * h);
-                assert!(rel(du, s.contact) < 1e-6, "{ends:?} g {gap} d {d}: {du} vs {}", s.contact);
+                assert!(
+                    rel(du, s.contact) < 1e-6,
+                    "{ends:?} g {gap} d {d}: {du} vs {}",
+                    s.contact
+                );
             }
         }
     }
@@ -211,17 +249,29 @@ fn forces_are_continuous_across_phase_boundaries() {
     for ends in BOTH {
         for gap in [0.01, 0.1, 0.25, 0.3] {
             let path = Path::new(ends, gap).expect("valid gap");
-            let edges: Vec<f64> =
-                path.first_contact_stroke().into_iter().chain(path.line_contact_stroke()).collect();
+            let edges: Vec<f64> = path
+                .first_contact_stroke()
+                .into_iter()
+                .chain(path.line_contact_stroke())
+                .collect();
             assert_eq!(edges.len(), 2, "both boundaries exist at g/L = {gap}");
             for d in edges {
                 let e = 1e-9 * d;
                 let (a, b) = (path.state(d - e), path.state(d + e));
                 assert_ne!(a.phase, b.phase, "a boundary at {d}");
                 let scale = b.axial.abs().max(1.0);
-                assert!((a.axial - b.axial).abs() < 1e-5 * scale, "P jump {ends:?} g {gap} at {d}");
-                assert!((a.contact - b.contact).abs() < 1e-5 * scale, "F jump {ends:?} g {gap} at {d}");
-                assert!((a.kappa_max - b.kappa_max).abs() < 1e-5 * b.kappa_max, "curvature jump");
+                assert!(
+                    (a.axial - b.axial).abs() < 1e-5 * scale,
+                    "P jump {ends:?} g {gap} at {d}"
+                );
+                assert!(
+                    (a.contact - b.contact).abs() < 1e-5 * scale,
+                    "F jump {ends:?} g {gap} at {d}"
+                );
+                assert!(
+                    (a.kappa_max - b.kappa_max).abs() < 1e-5 * b.kappa_max,
+                    "curvature jump"
+                );
             }
         }
     }
@@ -249,11 +299,23 @@ fn fold_comes_before_the_limit_for_large_gaps() {
     // Mechanics note, section 4: the fold in l (k = 0.4897) is reached before flat-run
     // buckling once g/L > 0.195.
     let fold = bowgrip::elastica::k_line_fold();
-    for (gap, past_fold) in [(0.15, false), (0.19, false), (0.2, true), (0.25, true), (0.3, true)] {
+    for (gap, past_fold) in [
+        (0.15, false),
+        (0.19, false),
+        (0.2, true),
+        (0.25, true),
+        (0.3, true),
+    ] {
         let path = Path::new(Ends::Clamped, gap).expect("valid gap");
         let at_limit = path.state(path.limit().stroke);
         assert_eq!(at_limit.phase, Phase::LineContact);
-        assert_eq!(at_limit.k > fold, past_fold, "g/L = {gap}: {:?} k {}", path.limit(), at_limit.k);
+        assert_eq!(
+            at_limit.k > fold,
+            past_fold,
+            "g/L = {gap}: {:?} k {}",
+            path.limit(),
+            at_limit.k
+        );
     }
 }
 
