@@ -563,10 +563,13 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
 const BORES_HEADER: &str = "bore_mm,first_contact_stroke_mm,holding_stroke_mm,\
 stress_limit_stroke_mm,line_contact_stroke_mm,limit_stroke_mm";
 
-/// The `i`-th of `n` equally spaced values from `from` to `to`, both ends exact.
+/// The `i`-th of `n` equally spaced values from `from` to `to`; both ends exact.
 fn spaced(from: f64, to: f64, i: usize, n: usize) -> f64 {
-    let t = i as f64 / (n - 1) as f64;
-    from * (1.0 - t) + to * t
+    if i + 1 >= n {
+        to
+    } else {
+        from + (to - from) * (i as f64 / (n - 1) as f64)
+    }
 }
 
 fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
@@ -776,6 +779,7 @@ mod tests {
         assert_eq!(spaced(60.1, 80.7, 0, 7), 60.1);
         assert_eq!(spaced(60.1, 80.7, 6, 7), 80.7);
         assert_eq!(spaced(60.0, 80.0, 1, 3), 70.0);
+        assert_eq!(spaced(50.0, 56.0, 1, 61), 50.1);
     }
 
     #[test]
