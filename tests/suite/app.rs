@@ -213,6 +213,79 @@ fn files_open_save_and_guard_unsaved_work() {
 
     // The recent list remembers the file for the next session.
     assert_eq!(h.state().session().recent.first(), Some(&good));
+
+    // Exports through the Tools menu, next to the design file. The CSV columns are the
+    // contract's: the state names for the curve, the bore rows for the window.
+    h.get_by_role_and_label(Role::Button, "Tools").click();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Export plots and tables…")
+        .click();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Export all").click();
+    h.run();
+    let read = |ending: &str| {
+        std::fs::read_to_string(dir.path().join(format!("six{ending}")))
+            .unwrap_or_else(|e| panic!("{ending}: {e}"))
+    };
+    let window = read("-window.csv");
+    assert_eq!(
+        window.lines().next(),
+        Some(
+            "bore_mm,first_contact_stroke_mm,holding_stroke_mm,stress_limit_stroke_mm,line_contact_stroke_mm,limit_stroke_mm"
+        )
+    );
+    assert_eq!(window.lines().count(), 1 + analysis::WINDOW_POINTS);
+    let curve = read("-curve.csv");
+    assert!(
+        curve.starts_with("stroke_mm,phase,axial_force_per_strip_n,"),
+        "{}",
+        &curve[..80.min(curve.len())]
+    );
+    assert_eq!(curve.lines().count(), 1 + analysis::CURVE_POINTS);
+    for svg in ["-window.svg", "-forces.svg", "-stress.svg"] {
+        let text = read(svg);
+        assert!(
+            text.starts_with("<svg") && text.contains("<polyline"),
+            "{svg}"
+        );
+    }
+
+    // The sizing sheet: written next to the design as a PDF, or the reason is shown.
+    h.get_by_role_and_label(Role::Button, "Tools")
+        .click_accesskit();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Print sizing sheet…")
+        .click();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Write the sheet")
+        .click();
+    h.run();
+    let status = h
+        .state()
+        .status()
+        .cloned()
+        .unwrap_or_else(|| panic!("no status"));
+    let pdf = dir.path().join("six.pdf");
+    if status.is_error {
+        assert!(
+            status
+                .text
+                .starts_with("The sizing sheet could not be made"),
+            "{}",
+            status.text
+        );
+    } else {
+        assert!(
+            status.text.contains(&pdf.display().to_string()),
+            "{}",
+            status.text
+        );
+        let bytes = std::fs::read(&pdf).unwrap_or_else(|e| panic!("{e}"));
+        assert!(
+            bytes.starts_with(b"%PDF-"),
+            "PDF header (ISO 32000-1, 7.5.2)"
+        );
+    }
 }
 
 #[test]
