@@ -381,13 +381,13 @@ fn fixed(v: Option<f64>, decimals: usize) -> String {
 
 fn point_table(seg: &Segment, s: &SegmentState) -> String {
     let mut t = String::new();
-    let bore_note = if s.bore_mm == seg.bore_nominal_mm {
-        " (nominal)"
+    let bore_label = if s.bore_mm == seg.bore_nominal_mm {
+        "bore (nominal)"
     } else {
-        ""
+        "bore"
     };
     let rows: Vec<(&str, String, &str)> = vec![
-        ("bore", format!("{:.3}{bore_note}", s.bore_mm), "mm"),
+        (bore_label, format!("{:.3}", s.bore_mm), "mm"),
         ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
         ("stroke", format!("{:.3}", s.stroke_mm), "mm"),
         ("phase", s.phase.to_string(), ""),
