@@ -1293,15 +1293,19 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     let view_max_pt: f32 = 230.0;
     let side_box = 0.6 * width;
     let end_box = width - side_box - 12.0;
-    let need = |scale_pt: f32| {
-        side_w_mm * scale_pt <= side_box && 1.15 * bore_d * scale_pt <= view_max_pt.min(end_box)
+    // Each view takes the largest standard scale that fits its box.
+    let pick = |fits: &dyn Fn(f32) -> bool| {
+        SCALES
+            .iter()
+            .map(|(r, lab)| (r * PT_PER_MM, *lab))
+            .find(|(sp, _)| fits(*sp))
+            .unwrap_or((0.002 * PT_PER_MM, "1:500"))
     };
-    let (scale_pt, scale_label) = SCALES
-        .iter()
-        .map(|(r, lab)| (r * PT_PER_MM, *lab))
-        .find(|(sp, _)| need(*sp))
-        .unwrap_or((0.002 * PT_PER_MM, "1:500"));
-    let view_h_pt = 1.15 * bore_d * scale_pt + 10.0;
+    let (scale_pt, scale_label) =
+        pick(&|sp| side_w_mm * sp <= side_box && 1.15 * bore_d * sp <= view_max_pt);
+    let (end_scale_pt, end_scale_label) =
+        pick(&|sp| 1.15 * bore_d * sp <= view_max_pt.min(end_box));
+    let view_h_pt = 1.15 * bore_d * scale_pt.max(end_scale_pt) + 10.0;
     let mut b = Block::new();
     let top = 14.0;
     let cy = top + 0.5 * view_h_pt;
@@ -1311,7 +1315,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         9.0,
         Weight::Bold,
         format!(
-            "Side view, section through two strips, at the operating stroke {}",
+            "Side view, section through two strips, at stroke {}, scale {scale_label}",
             f::mm(op)
         ),
     );
@@ -1436,25 +1440,31 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     }
     // End view.
     let ex = side_box + 12.0 + 0.5 * end_box;
-    b.text(side_box + 12.0, 9.0, 9.0, Weight::Bold, "End view");
-    b.polyline(circle(ex, cy, big_r * scale_pt), 1.0, INK, None);
+    b.text(
+        side_box + 12.0,
+        9.0,
+        9.0,
+        Weight::Bold,
+        format!("End view, scale {end_scale_label}"),
+    );
+    b.polyline(circle(ex, cy, big_r * end_scale_pt), 1.0, INK, None);
     if plate_r > 0.0 {
         b.polyline(
-            circle(ex, cy, plate_r * scale_pt),
+            circle(ex, cy, plate_r * end_scale_pt),
             0.5,
             GREY,
             Some(vec![3.0, 2.0]),
         );
     }
     b.line(
-        [ex - (big_r + 3.0) * scale_pt, cy],
-        [ex + (big_r + 3.0) * scale_pt, cy],
+        [ex - (big_r + 3.0) * end_scale_pt, cy],
+        [ex + (big_r + 3.0) * end_scale_pt, cy],
         0.4,
         GREY,
     );
     b.line(
-        [ex, cy - (big_r + 3.0) * scale_pt],
-        [ex, cy + (big_r + 3.0) * scale_pt],
+        [ex, cy - (big_r + 3.0) * end_scale_pt],
+        [ex, cy + (big_r + 3.0) * end_scale_pt],
         0.4,
         GREY,
     );
@@ -1473,8 +1483,8 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         for &(rc, color, w) in &rings[..if at_crest { 2 } else { 1 }] {
             let corner = |u: f32, v: f32| {
                 [
-                    ex + (rc + v) * scale_pt * cs - u * scale_pt * sn,
-                    cy + (rc + v) * scale_pt * sn + u * scale_pt * cs,
+                    ex + (rc + v) * end_scale_pt * cs - u * end_scale_pt * sn,
+                    cy + (rc + v) * end_scale_pt * sn + u * end_scale_pt * cs,
                 ]
             };
             let pts = vec![
@@ -1485,7 +1495,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             ];
             b.marks.push(super::draw::Mark::Line {
                 points: pts,
-                width: w.max(t * scale_pt),
+                width: w.max(t * end_scale_pt),
                 color,
                 dash: None,
                 closed: true,
@@ -1531,7 +1541,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         SMALL,
         Weight::Bold,
         INK,
-        &format!("Both views to scale {scale_label} when printed at 100 % on {} paper (do not scale from a resized print).", meta.paper.name()),
+        &format!("Both views are to the scales stated when printed at 100 % on {} paper (do not scale from a resized print).", meta.paper.name()),
     );
     b.height = y - 6.0;
     section("Side view and end view", width, vec![b])
