@@ -305,6 +305,7 @@ fn path(points: &[[f32; 2]], closed: bool) -> Option<krilla::geom::Path> {
 
 /// Writes placed marks onto a page surface.
 pub fn emit(surface: &mut Surface, marks: &[Mark]) -> anyhow::Result<()> {
+    let mut clips: Vec<bool> = Vec::new();
     for mark in marks {
         match mark {
             Mark::Text {
@@ -372,16 +373,28 @@ pub fn emit(surface: &mut Surface, marks: &[Mark]) -> anyhow::Result<()> {
                 surface.draw_path(&p);
             }
             Mark::Clip([x0, y0, x1, y1]) => {
-                let Some(rect) = Rect::from_ltrb(*x0, *y0, *x1, *y1) else {
-                    continue;
-                };
-                let mut pb = PathBuilder::new();
-                pb.push_rect(rect);
-                if let Some(p) = pb.finish() {
-                    surface.push_clip_path(&p, &FillRule::NonZero);
+                // Every clip is paired with an `Unclip`; remember whether this one was pushed
+                // so a degenerate rectangle never pops someone else's state.
+                let path = Rect::from_ltrb(*x0, *y0, *x1, *y1).and_then(|rect| {
+                    let mut pb = PathBuilder::new();
+                    pb.push_rect(rect);
+                    pb.finish()
+                });
+                if let Some(p) = &path {
+                    surface.push_clip_path(p, &FillRule::NonZero);
+                }
+                clips.push(path.is_some());
+            }
+            Mark::Unclip => {
+                if clips.pop() == Some(true) {
+                    surface.pop();
                 }
             }
-            Mark::Unclip => surface.pop(),
+        }
+    }
+    for pushed in clips {
+        if pushed {
+            surface.pop();
         }
     }
     Ok(())
