@@ -259,6 +259,22 @@ fn assert_inside(name: &str, laid: &SheetLayout) {
             t.baseline_pt
         );
     }
+    // No two lines of text on one baseline run into each other (table cells, legends,
+    // tick labels, title-block fields).
+    for (i, a) in laid.texts.iter().enumerate() {
+        for b in &laid.texts[i + 1..] {
+            let same_line = a.page == b.page
+                && (a.baseline_pt - b.baseline_pt).abs() < 0.5 * a.size_pt.min(b.size_pt);
+            let overlap = a.left_pt < b.right_pt - tol && b.left_pt < a.right_pt - tol;
+            assert!(
+                !(same_line && overlap),
+                "{name}: {:?} runs into {:?} on page {}",
+                a.text,
+                b.text,
+                a.page
+            );
+        }
+    }
     // Sections do not overlap on a page.
     for w in laid.sections.windows(2) {
         if w[0].page == w[1].page {
@@ -287,6 +303,16 @@ fn every_section_and_line_fits_the_printable_area_on_both_papers() {
             .unwrap_or_else(|e| panic!("{name}: {e}"));
             assert_eq!((laid.page_width_pt, laid.page_height_pt), paper.size_pt());
             assert_inside(&format!("{name} on {paper:?}"), &laid);
+            // Each section fits one page, so none is split: the sheet breaks to a new page
+            // before a section that would not fit.
+            for s in &laid.sections {
+                let parts = laid.sections.iter().filter(|o| o.title == s.title).count();
+                assert_eq!(
+                    parts, 1,
+                    "{name} on {paper:?}: {} is split over pages",
+                    s.title
+                );
+            }
             // Every section is on the sheet once at least.
             for title in [
                 "Title block",
