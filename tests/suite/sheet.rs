@@ -48,6 +48,13 @@ fn designs() -> Vec<(String, Design)> {
         }),
     ));
     out.push((
+        "out-of-reach".to_string(),
+        with(&|d| {
+            d.title = "Bore beyond the reach of the strips".to_string();
+            d.bore.diameter_mm = 130.0;
+        }),
+    ));
+    out.push((
         "pipe-spool".to_string(),
         with(&|d| {
             d.title = "A very long design title that has to wrap over more than one line in the title block of the \
