@@ -309,9 +309,7 @@ fn guard_window(app: &mut GripApp, ctx: &Context) {
         ui.horizontal(|ui| {
             if let Some(path) = app.doc.path.clone() {
                 if ui.button("Save, then continue").clicked() {
-                    app.guard = None;
-                    app.push(Command::SaveAs(path));
-                    app.push(Command::Discard(pending.clone()));
+                    app.push(Command::SaveThen(path, pending.clone()));
                 }
             } else if ui.button("Save as…").clicked() {
                 app.guard = None;

@@ -94,6 +94,13 @@ pub fn fmt_value(v: f64) -> String {
 }
 
 impl InputsPanel {
+    /// Forgets typed and refused entries (after undo or redo, the fields show the design).
+    pub fn forget_entries(&mut self) {
+        self.typed.clear();
+        self.errors.clear();
+        self.active = None;
+    }
+
     /// Draws the panel and returns the commands it recorded.
     pub fn ui(&mut self, ui: &mut Ui, d: &Design, analysis: Option<&Analysis>) -> Vec<Command> {
         let mut out = Vec::new();
@@ -175,7 +182,7 @@ impl InputsPanel {
                 Gesture::Done
             };
             self.take_gesture(row.key, out);
-            self.propose(d, row.key, v, row.integer, gesture, out, &set);
+            let _ = self.propose(d, row.key, v, row.integer, gesture, out, &set);
             self.typed.remove(row.key);
         }
         if resp.drag_stopped() {
@@ -202,7 +209,15 @@ impl InputsPanel {
             );
             self.take_gesture(row.key, out);
             match text.trim().parse::<f64>() {
-                Ok(x) => self.propose(d, row.key, x, row.integer, Gesture::Ongoing, out, &set),
+                Ok(x) => {
+                    if self.propose(d, row.key, x, row.integer, Gesture::Ongoing, out, &set)
+                        && let Some(t) = self.typed.get_mut(row.key)
+                    {
+                        // The text now stands for the new value; an undo that brings
+                        // back the old one shows the old one.
+                        t.over = x;
+                    }
+                }
                 Err(_) => {
                     let allowed = limit
                         .map(|l| {
@@ -257,11 +272,11 @@ impl InputsPanel {
         gesture: Gesture,
         out: &mut Vec<Command>,
         set: &impl Fn(&mut Design, f64),
-    ) {
+    ) -> bool {
         if integer && v.fract() != 0.0 {
             self.errors
                 .insert(key, format!("{key}: {v} is not a whole number"));
-            return;
+            return false;
         }
         let mut next = d.clone();
         set(&mut next, v);
@@ -269,9 +284,11 @@ impl InputsPanel {
             Ok(()) => {
                 self.errors.remove(key);
                 out.push(Command::Edit(Box::new(next), gesture));
+                true
             }
             Err(e) => {
                 self.errors.insert(key, e.to_string());
+                false
             }
         }
     }

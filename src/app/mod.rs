@@ -53,6 +53,8 @@ pub enum Command {
     Save,
     /// Save to this path and make it the current file.
     SaveAs(PathBuf),
+    /// Save to this path and, only if that worked, carry out the held-back action.
+    SaveThen(PathBuf, Pending),
     /// Quit (asks first when there are unsaved changes).
     Quit,
     /// Carry out an action the unsaved-changes prompt held back, discarding the changes.
@@ -396,6 +398,11 @@ impl GripApp {
                 self.save_now(&path);
                 false
             }
+            Command::SaveThen(path, pending) => {
+                self.guard = None;
+                self.save_now(&path);
+                !self.doc.dirty && self.carry_out(pending)
+            }
             Command::Restore => match self.recovery_offer.take() {
                 Some((rec, design)) => {
                     self.doc = Document::new(design, rec.source.clone());
@@ -432,6 +439,7 @@ impl GripApp {
             Some(design) => {
                 to.push(std::mem::replace(&mut self.doc.design, design));
                 self.doc.dirty = true;
+                self.inputs.forget_entries();
                 true
             }
             None => false,

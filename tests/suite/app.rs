@@ -120,6 +120,18 @@ fn inputs_drive_the_checks() {
     }
     assert_eq!(*h.state().design(), d0);
     assert_matches_fresh_analysis(h.state());
+    let shown = h
+        .get_by_role_and_label(Role::TextInput, "Thickness")
+        .value();
+    assert_eq!(
+        shown,
+        Some(d0.strip.thickness_mm.to_string()),
+        "the field follows the undo"
+    );
+    // Redo brings the last edit back.
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Y);
+    h.run();
+    assert_eq!(h.state().design().strip.thickness_mm, 0.15);
 }
 
 fn open_through_the_window(h: &mut Harness<'static, GripApp>, path: &Path) {
@@ -142,12 +154,9 @@ fn files_open_save_and_guard_unsaved_work() {
     design::save_atomic(&good, &six).unwrap_or_else(|e| panic!("{e}"));
     // Out of the plausible range: thickness 9 mm (allowed 0.02 to 5 mm).
     let bad = dir.path().join("bad.ron");
-    let mut text = design::to_ron(&Design::default());
-    text = text.replace("thickness_mm: 0.25", "thickness_mm: 9.0");
-    assert!(
-        text.contains("thickness_mm: 9.0"),
-        "sample text changed: {text}"
-    );
+    let mut too_thick = Design::default();
+    too_thick.strip.thickness_mm = 9.0;
+    let text = design::to_ron(&too_thick);
     std::fs::write(&bad, text).unwrap_or_else(|e| panic!("{e}"));
 
     let mut h = harness(GripApp::new(state.clone(), None));
