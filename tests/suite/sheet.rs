@@ -5,6 +5,7 @@
 
 use bowgrip::analysis::{BoreCase, analyse};
 use bowgrip::design::{self, Actuator, Design, PipeRef};
+use bowgrip::segment::Segment;
 use bowgrip::sheet::{self, Paper, SheetLayout};
 use sha2::{Digest, Sha256};
 
@@ -24,6 +25,11 @@ fn sample(name: &str) -> (Design, String) {
     )
 }
 
+/// The bore the relaxed strips' edges just touch (gap zero), mm.
+fn touching_bore_mm(d: &Design) -> f64 {
+    Segment::new(d).expect("segment").bore_for_gap_mm(0.0)
+}
+
 /// Designs that exercise every branch of the sheet: passing, failing checks, a bore with no
 /// state, a pipe bore with a spool, a direct pull.
 fn designs() -> Vec<(String, Design)> {
@@ -36,22 +42,28 @@ fn designs() -> Vec<(String, Design)> {
     out.push((
         "failing".to_string(),
         with(&|d| {
-            d.title = "Too small a bore: several checks fail".to_string();
-            d.bore.diameter_mm = 60.5;
+            // Just over the strips' corner diameter: states exist, but the relaxed segment
+            // lacks the 1 mm clearance the fit check asks for.
+            d.title = "Too small a bore: the fit check fails".to_string();
+            d.bore.diameter_mm = touching_bore_mm(d) + 0.6;
         }),
     ));
     out.push((
         "no-state".to_string(),
         with(&|d| {
+            // Below the strips' corner diameter at every bore of the band: no state.
             d.title = "Relaxed strips do not fit the bore".to_string();
-            d.bore.diameter_mm = 57.0;
+            d.bore.diameter_mm = touching_bore_mm(d) - 1.0;
         }),
     ));
     out.push((
         "out-of-reach".to_string(),
         with(&|d| {
             d.title = "Bore beyond the reach of the strips".to_string();
-            d.bore.diameter_mm = 130.0;
+            d.bore.diameter_mm = Segment::new(d)
+                .expect("segment")
+                .largest_reachable_bore_mm()
+                + 5.0;
         }),
     ));
     out.push((
@@ -352,7 +364,13 @@ fn failing_and_no_state_designs_render_and_say_so() {
         .expect("a failing design still renders");
     let (_, text) = pdf_text(&pdf);
     assert!(text.contains("CHECKS FAIL"), "{text}");
-    assert!(text.contains("FAIL"));
+    assert!(
+        text.contains("FAIL (limiting)") || text.contains("FAIL"),
+        "{text}"
+    );
+    let a = analyse(&failing).expect("analyses");
+    let fit = a.checks.iter().find(|c| c.id == "fit").expect("fit check");
+    assert!(!fit.pass, "the test design must fail the fit check");
 
     let no_state = pick("no-state");
     let a = analyse(&no_state).expect("loads and analyses");
