@@ -385,7 +385,7 @@ fn fit_window(app: &mut GripApp, ctx: &Context) {
             Some(FitOutcome::Found { value, design, hold_margin }) => {
                 ui.label(format!("{} = {} {}: every check passes; holding margin {}.", var.label(), fmt_value(value), var.unit(), hold_margin.map_or("n/a".to_string(), |m| format!("{:+.1} %", 100.0 * m))));
                 if ui.button("Apply").clicked() {
-                    app.push(Command::Edit(Box::new(design), Gesture::Done));
+                    app.push(Command::Edit(design, Gesture::Done));
                     app.dialogs.fit_result = None;
                 }
             }
@@ -397,6 +397,9 @@ fn fit_window(app: &mut GripApp, ctx: &Context) {
     });
     app.dialogs.show_fit = open;
 }
+
+/// An export: button label, file ending, and the text to write.
+type ExportJob<'a> = (&'static str, &'static str, Box<dyn Fn() -> String + 'a>);
 
 fn export_window(app: &mut GripApp, ctx: &Context) {
     let mut open = app.dialogs.show_export;
@@ -416,7 +419,7 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                 return;
             };
             let base = app.dialogs.export_base.trim().to_string();
-            let jobs: [(&str, &str, Box<dyn Fn() -> String + '_>); 5] = [
+            let jobs: [ExportJob<'_>; 5] = [
                 (
                     "Stroke-bore plot (SVG)",
                     "-window.svg",

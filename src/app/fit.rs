@@ -118,7 +118,7 @@ pub enum FitOutcome {
         /// The value in the variable's unit.
         value: f64,
         /// The design with that value.
-        design: Design,
+        design: Box<Design>,
         /// Holding margin at that value (ratio minus one).
         hold_margin: Option<f64>,
     },
@@ -154,7 +154,7 @@ impl Sample {
 /// Fits `var` in `design` (see the module note).
 pub fn fit(design: &Design, var: FitVar) -> FitOutcome {
     let (lo, hi, log) = var.range(design);
-    if !(hi > lo) {
+    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
         return FitOutcome::Blocked(format!(
             "the {} has no room to vary here ({lo:.3} to {hi:.3} {})",
             var.label(),
@@ -213,7 +213,7 @@ pub fn fit(design: &Design, var: FitVar) -> FitOutcome {
     let s = Sample::at(var, design, good_v);
     FitOutcome::Found {
         value: var.get(&fitted),
-        design: fitted,
+        design: Box::new(fitted),
         hold_margin: s.check("hold").and_then(|c| c.margin),
     }
 }
@@ -255,7 +255,7 @@ fn blocked(var: FitVar, samples: &[Sample], lo: f64, hi: f64) -> FitOutcome {
             }
         }
     }
-    tally.sort_by(|a, b| b.2.cmp(&a.2));
+    tally.sort_by_key(|t| std::cmp::Reverse(t.2));
     let (from, to) = (holding[0].value, holding[holding.len() - 1].value);
     match tally.first() {
         Some((_, title, _, example)) => FitOutcome::Blocked(format!(

@@ -298,10 +298,11 @@ impl GripApp {
     }
 
     fn shortcuts(&mut self, ctx: &egui::Context) {
+        type Action = fn(&mut GripApp);
         use egui::{Key, KeyboardShortcut, Modifiers};
         let shift = Modifiers::COMMAND | Modifiers::SHIFT;
         // Most specific first: Ctrl+Shift+S before Ctrl+S.
-        let table: [(KeyboardShortcut, fn(&mut GripApp)); 6] = [
+        let table: [(KeyboardShortcut, Action); 6] = [
             (KeyboardShortcut::new(shift, Key::S), |a| {
                 a.dialogs.open_save_as(a.doc.path.as_deref())
             }),
@@ -561,11 +562,11 @@ impl GripApp {
         match analysis::analyse(&self.doc.design) {
             Ok(a) => {
                 self.fallback_shape = None;
-                if a.shape_mm.is_empty() {
-                    if let Ok(p) = a.segment.at_bore(a.segment.bore_nominal_mm) {
-                        let s = 0.995 * p.limit_stroke_mm();
-                        self.fallback_shape = Some((s, p.shape_mm(s, 48)));
-                    }
+                if a.shape_mm.is_empty()
+                    && let Ok(p) = a.segment.at_bore(a.segment.bore_nominal_mm)
+                {
+                    let s = 0.995 * p.limit_stroke_mm();
+                    self.fallback_shape = Some((s, p.shape_mm(s, 48)));
                 }
                 self.analysis = Some(a);
                 self.analysis_error = None;
