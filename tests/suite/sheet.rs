@@ -364,10 +364,6 @@ fn failing_and_no_state_designs_render_and_say_so() {
         .expect("a failing design still renders");
     let (_, text) = pdf_text(&pdf);
     assert!(text.contains("CHECKS FAIL"), "{text}");
-    assert!(
-        text.contains("FAIL (limiting)") || text.contains("FAIL"),
-        "{text}"
-    );
     let a = analyse(&failing).expect("analyses");
     let fit = a.checks.iter().find(|c| c.id == "fit").expect("fit check");
     assert!(!fit.pass, "the test design must fail the fit check");
