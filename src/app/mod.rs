@@ -88,6 +88,8 @@ struct Document {
     design: Design,
     path: Option<PathBuf>,
     dirty: bool,
+    /// The design as last opened or saved; `None` when it is not on disk (restored work).
+    saved: Option<Design>,
     undo: Vec<Design>,
     redo: Vec<Design>,
     /// The design before the ongoing gesture began.
@@ -97,6 +99,7 @@ struct Document {
 impl Document {
     fn new(design: Design, path: Option<PathBuf>) -> Document {
         Document {
+            saved: Some(design.clone()),
             design,
             path,
             dirty: false,
@@ -104,6 +107,11 @@ impl Document {
             redo: Vec::new(),
             gesture_start: None,
         }
+    }
+
+    /// Unsaved when the design differs from what was last opened or saved.
+    fn refresh_dirty(&mut self) {
+        self.dirty = self.saved.as_ref() != Some(&self.design);
     }
 
     fn push_undo(&mut self, before: Design) {
@@ -365,9 +373,7 @@ impl GripApp {
                     Gesture::Ongoing => self.doc.gesture_start = Some(before),
                     Gesture::Done => self.doc.push_undo(before),
                 }
-                if changed {
-                    self.doc.dirty = true;
-                }
+                self.doc.refresh_dirty();
                 changed
             }
             Command::EndGesture => {
@@ -407,6 +413,7 @@ impl GripApp {
             Command::Restore => match self.recovery_offer.take() {
                 Some((rec, design)) => {
                     self.doc = Document::new(design, rec.source.clone());
+                    self.doc.saved = None;
                     self.doc.dirty = true;
                     self.say(format!(
                         "Restored unsaved work{}; save it to keep it.",
@@ -439,7 +446,7 @@ impl GripApp {
         match from.pop() {
             Some(design) => {
                 to.push(std::mem::replace(&mut self.doc.design, design));
-                self.doc.dirty = true;
+                self.doc.refresh_dirty();
                 self.inputs.forget_entries();
                 true
             }
@@ -501,6 +508,7 @@ impl GripApp {
         match design::save_atomic(path, &self.doc.design) {
             Ok(()) => {
                 self.doc.path = Some(path.to_path_buf());
+                self.doc.saved = Some(self.doc.design.clone());
                 self.doc.dirty = false;
                 self.session.remember(path);
                 self.store_session();

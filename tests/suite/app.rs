@@ -119,6 +119,7 @@ fn inputs_drive_the_checks() {
         h.run();
     }
     assert_eq!(*h.state().design(), d0);
+    assert!(!h.state().is_dirty(), "back to the design as opened");
     assert_matches_fresh_analysis(h.state());
     let shown = h
         .get_by_role_and_label(Role::TextInput, "Thickness")
