@@ -299,9 +299,9 @@ fn paginate(
         let fy = bottom - top - FOOTER_PT + 8.0;
         frame.line([0.0, fy], [cw, fy], 0.4, GREY);
         let verdict = if crate::checks::all_pass(&analysis.checks) {
-            "all checks pass"
+            "All checks pass."
         } else {
-            "CHECKS FAIL: see the check table"
+            "CHECKS FAIL: see the check table."
         };
         frame.text_in(
             0.0,
@@ -310,7 +310,7 @@ fn paginate(
             Weight::Regular,
             GREY,
             format!(
-                "Strips store spring energy and can snap; end plates pinch. Model results: confirm by test and local codes. Design {verdict}."
+                "Strips store spring energy and can snap; end plates pinch. Model results: confirm by test and local codes. {verdict}"
             ),
         );
         frame.text_right(
