@@ -239,6 +239,11 @@ impl GripApp {
         self.guard.is_some()
     }
 
+    /// Whether quitting was confirmed (the window closes next).
+    pub fn is_quitting(&self) -> bool {
+        self.quit_confirmed
+    }
+
     /// Whether a recovery copy is being offered.
     pub fn is_offering_recovery(&self) -> bool {
         self.recovery_offer.is_some()

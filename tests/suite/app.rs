@@ -223,6 +223,7 @@ fn files_open_save_and_guard_unsaved_work() {
 
     // The recent list remembers the file for the next session.
     assert_eq!(h.state().session().recent.first(), Some(&good));
+    assert!(h.state().title().contains("bowgrip") && h.state().title().contains("six.ron"));
 
     // Exports through the Tools menu, next to the design file. The CSV columns are the
     // contract's: the state names for the curve, the bore rows for the window.
@@ -296,6 +297,30 @@ fn files_open_save_and_guard_unsaved_work() {
             "PDF header (ISO 32000-1, 7.5.2)"
         );
     }
+
+    // Closing the window with unsaved changes asks first; discarding lets it close.
+    h.input_mut()
+        .viewports
+        .entry(egui::ViewportId::ROOT)
+        .or_default()
+        .events
+        .push(egui::ViewportEvent::Close);
+    h.run();
+    assert!(h.state().is_asking_to_discard() && !h.state().is_quitting());
+    h.get_by_role_and_label(Role::Button, "Discard changes")
+        .click();
+    h.run();
+    assert!(h.state().is_quitting());
+    h.state_mut().on_close();
+    drop(h);
+
+    // The next start, without a file named, reopens the last one.
+    let again = GripApp::new(state, None);
+    assert_eq!(again.path(), Some(good.as_path()));
+    assert!(
+        !again.is_offering_recovery(),
+        "a confirmed quit leaves no recovery copy"
+    );
 }
 
 #[test]
