@@ -166,9 +166,10 @@ impl GripApp {
     /// offered, not applied.
     pub fn new(state_dir: PathBuf, file: Option<PathBuf>) -> GripApp {
         let session = Session::load(&state_dir);
-        let recovery_offer = match Recovery::find(&state_dir) {
-            Some(Ok(found)) => Some(found),
-            Some(Err(_)) | None => None,
+        let (recovery_offer, unreadable) = match Recovery::find(&state_dir) {
+            Some(Ok(found)) => (Some(found), None),
+            Some(Err(why)) => (None, Some(why)),
+            None => (None, None),
         };
         let mut app = GripApp {
             doc: Document::new(Design::default(), None),
@@ -192,6 +193,11 @@ impl GripApp {
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
             app.open_now(&path);
+        }
+        if let Some(why) = unreadable {
+            app.fail(format!(
+                "A recovery copy was found but cannot be used (it stays on disk): {why}"
+            ));
         }
         app.reanalyse();
         app

@@ -256,11 +256,20 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             };
             ui.strong(format!("To scale at {stroke:.3} mm stroke{note}")).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
             let h = cell.y - 20.0;
-            ui.horizontal(|ui| {
-                let w = ui.available_width();
-                side_view(ui, a, shape, Vec2::new(w * 0.62, h));
-                end_view(ui, a, Vec2::new(w * 0.36, h));
-            });
+            let w = ui.available_width();
+            // A long strip reads better with the end view below it, a short one beside it.
+            let d = &a.segment.design;
+            let long = d.strip.free_length_mm * 1.15 > 1.4 * a.segment.bore_nominal_mm;
+            if long {
+                let side_h = (h * 0.66).min(w * 1.1 * a.segment.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
+                side_view(ui, a, shape, Vec2::new(w, side_h));
+                end_view(ui, a, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
+            } else {
+                ui.horizontal(|ui| {
+                    side_view(ui, a, shape, Vec2::new(w * 0.62, h));
+                    end_view(ui, a, Vec2::new(w * 0.36, h));
+                });
+            }
         });
     });
 }
@@ -567,7 +576,7 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     };
     let plate_w = (0.04 * d.strip.free_length_mm).max(1.0);
     let scale = Scale::fit(
-        rect,
+        rect.with_max_y(rect.max.y - 14.0),
         (-plate_w - 2.0, chord + plate_w + 2.0),
         (-r_wall * 1.08, r_wall * 1.08),
     );
@@ -655,7 +664,7 @@ fn end_view(ui: &mut Ui, a: &Analysis, size: Vec2) {
     let fg = ui.visuals().text_color();
     let r_wall = 0.5 * a.segment.bore_nominal_mm;
     let scale = Scale::fit(
-        rect,
+        rect.with_max_y(rect.max.y - 14.0),
         (-r_wall * 1.05, r_wall * 1.05),
         (-r_wall * 1.05, r_wall * 1.05),
     );
