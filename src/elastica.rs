@@ -251,8 +251,8 @@ fn reach_d(k: D) -> D {
 
 /// Complete integrals `(K, E, D)` of a dual modulus, `D = (K - E) / k^2`.
 fn complete_d(k: D) -> (D, D, D) {
-    let ke = elliptic::complete(k.v);
-    let dc = elliptic::complete_d(k.v);
+    let (kk, ee, dc) = elliptic::complete3(k.v);
+    let ke = (kk, ee);
     let (dk, de) = elliptic::complete_dk(k.v, ke);
     let dd = elliptic::incomplete_d_dk(FRAC_PI_2, k.v, (ke.0, ke.1, dc));
     (k.chain(ke.0, dk), k.chain(ke.1, de), k.chain(dc, dd))
@@ -723,14 +723,6 @@ impl Path {
     fn line_limit(&self, ks: f64) -> (Limit, f64) {
         let gap = self.gap;
         let k_fold = k_line_fold();
-        // The flat run closes again where the reach falls back to 2 g beyond the fold.
-        let k_close = newton_bracketed(k_fold, 0.999_999, 0.5 * (k_fold + 1.0), 1e-15, |k| {
-            let r = reach_d(D::var(k, 0));
-            (r.v - 2.0 * gap, r.d[0])
-        })
-        .unwrap_or(0.999_999);
-        let k_axial = std::f64::consts::FRAC_1_SQRT_2; // cos(alpha) = 1 - 2k^2 = 0
-        let k_end = k_close.min(k_axial);
         // Conditions, each negative before and crossing zero at its limit.
         let buckling = |k: f64| {
             let q = line_d(D::var(k, 0), gap);
@@ -743,6 +735,30 @@ impl Path {
             let q = line_d(D::var(k, 0), gap);
             (q.stroke.v - 1.0, q.stroke.d[0])
         };
+        // Usual case (g/L below about 0.19): the margin rises from the onset and is positive
+        // at the fold, so the first crossing lies before the fold.
+        if buckling(k_fold).0 >= 0.0 {
+            // Seed from the small-gap law: buckling at l = L/3, where k is about 1.5 ks.
+            let seed = (1.5 * ks).min(0.5 * (ks + k_fold));
+            let kb = newton_bracketed(ks, k_fold, seed, 1e-15, buckling).unwrap_or(k_fold);
+            if chord(kb).0 < 0.0 {
+                let stroke = line_d(D::c(kb), gap).stroke.v;
+                let limit = Limit {
+                    stroke,
+                    reason: LimitReason::FlatRunBuckling,
+                    phase: Phase::LineContact,
+                };
+                return (limit, kb);
+            }
+        }
+        // The flat run closes again where the reach falls back to 2 g beyond the fold.
+        let k_close = newton_bracketed(k_fold, 0.999_999, 0.5 * (k_fold + 1.0), 1e-15, |k| {
+            let r = reach_d(D::var(k, 0));
+            (r.v - 2.0 * gap, r.d[0])
+        })
+        .unwrap_or(0.999_999);
+        let k_axial = std::f64::consts::FRAC_1_SQRT_2; // cos(alpha) = 1 - 2k^2 = 0
+        let k_end = k_close.min(k_axial);
         // The stroke rises with k, so the chord can only close at the end of the range.
         let chord_closes = chord(k_end).0 >= 0.0;
         let k_chord = if chord_closes {
@@ -751,7 +767,7 @@ impl Path {
             None
         };
         let stop = k_chord.unwrap_or(k_end);
-        // The buckling margin need not be monotonic past the fold: sample, then refine.
+        // Otherwise the margin need not be monotonic past the fold: sample, then refine.
         const SAMPLES: usize = 12;
         let mut prev = ks;
         for i in 1..=SAMPLES {
@@ -1059,29 +1075,43 @@ impl Path {
     }
 
     /// Guess for `(k, phi0)` at a point-contact stroke: `phi0` from a shape fitted to the
-    /// branch between its ends, then `k` from the gap equation at that `phi0`.
-    fn point_guess(&self, stroke: f64) -> (f64, f64) {
+    /// branch between its ends, and `k` from a fitted dip between the end moduli
+    /// (`(k - ks)/(k1 - ks) = (1-u)^3 - 0.68 u (1-u)` with `u = phi0 / (-pi/2)`, fitted to
+    /// solved branches from g/L = 0.05 to 0.2), or from the gap equation when `refine`.
+    fn point_guess(&self, stroke: f64, refine: bool) -> (f64, f64) {
         let (k1, d1) = self.first_contact.unwrap_or((0.0, 0.0));
-        let phi0 = match self.line_onset {
-            Some((_, ds)) => {
+        let (phi0, k_fit) = match self.line_onset {
+            Some((ks, ds)) => {
                 let t = ((stroke - d1) / (ds - d1)).clamp(0.0, 1.0);
-                -FRAC_PI_2 * (1.0 - (1.0 - t) * (1.0 - t))
+                let u = 1.0 - (1.0 - t) * (1.0 - t);
+                let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
+                (-FRAC_PI_2 * u, ks + (k1 - ks) * f)
             }
-            None => -FRAC_PI_2 * ((stroke - d1) / (1.0 - d1)).clamp(0.0, 1.0).sqrt(),
+            None => (
+                -FRAC_PI_2 * ((stroke - d1) / (1.0 - d1)).clamp(0.0, 1.0).sqrt(),
+                0.8 * k1,
+            ),
         };
+        if !refine {
+            return (k_fit, phi0);
+        }
         let gap = self.gap;
-        let k = newton_bracketed(1e-3 * k1, k1.max(1e-300) * 1.05, 0.8 * k1, 1e-12, |k| {
+        let k = newton_bracketed(1e-3 * k1, k1.max(1e-300) * 1.05, k_fit, 1e-12, |k| {
             let q = point_d(D::var(k, 0), D::c(phi0));
             (q.crest.v - gap, q.crest.d[0])
         })
-        .unwrap_or(0.8 * k1);
+        .unwrap_or(k_fit);
         (k, phi0)
     }
 
     /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
     /// marching from first contact.
     fn point_at(&self, stroke: f64) -> Option<(f64, f64)> {
-        if let Some(sol) = self.solve_point(PointGoal::Stroke(stroke), self.point_guess(stroke)) {
+        let goal = PointGoal::Stroke(stroke);
+        if let Some(sol) = self
+            .solve_point(goal, self.point_guess(stroke, false))
+            .or_else(|| self.solve_point(goal, self.point_guess(stroke, true)))
+        {
             return Some(sol);
         }
         self.march_point(PointGoal::Stroke(stroke), stroke)
@@ -1301,9 +1331,10 @@ impl Path {
     /// Least contact-phase stroke where `wk kappa + wp axial + wf contact` (weights on this
     /// end condition's values) reaches `value`. Each phase is taken as rising.
     fn stroke_for_goal(&self, value: f64, wk: f64, wp: f64, wf: f64) -> Option<f64> {
-        let (_, d1) = self.first_contact?;
+        let (k1, d1) = self.first_contact?;
         let measure = |s: &StripState| wk * s.kappa_max + wp * s.axial + wf * s.contact;
-        let m1 = measure(&self.state(d1));
+        // The phase ends are known in closed form: no solve needed to evaluate them.
+        let m1 = measure(&self.free_state(k1, d1));
         if m1 >= value {
             return Some(d1);
         }
@@ -1317,7 +1348,10 @@ impl Path {
             .line_onset
             .map(|(_, d)| d)
             .unwrap_or(self.limit().stroke);
-        let m_end = measure(&self.state(point_end));
+        let m_end = match self.line_onset {
+            Some((ks, ds)) => measure(&self.line_state(ks, ds)),
+            None => measure(&self.state(point_end)),
+        };
         if m_end >= value {
             let goal = PointGoal::Linear {
                 wk: sk,
@@ -1328,8 +1362,11 @@ impl Path {
             let t = ((value - m1) / (m_end - m1)).clamp(0.0, 1.0);
             let guess_stroke = d1 + t * (point_end - d1);
             let solved = self
-                .point_at(guess_stroke)
-                .and_then(|guess| self.solve_point(goal, guess))
+                .solve_point(goal, self.point_guess(guess_stroke, false))
+                .or_else(|| {
+                    self.point_at(guess_stroke)
+                        .and_then(|guess| self.solve_point(goal, guess))
+                })
                 .or_else(|| self.march_point(goal, guess_stroke))?;
             let stroke = point_d(D::c(solved.0), D::c(solved.1)).stroke.v;
             return (stroke <= self.limit().stroke).then_some(stroke);

@@ -78,6 +78,84 @@ pub fn carlson_rd(x0: f64, y0: f64, z0: f64) -> f64 {
     scale * series / (a * a.sqrt()) + 3.0 * sum
 }
 
+/// `(R_F(x, y, z), R_D(x, y, z))` together: the two share the duplication steps
+/// (DLMF 19.26.18), so this costs little more than one of them.
+pub fn carlson_rf_rd(x0: f64, y0: f64, z0: f64) -> (f64, f64) {
+    let (mut x, mut y, mut z) = (x0, y0, z0);
+    let af0 = (x0 + y0 + z0) / 3.0;
+    let ad0 = (x0 + y0 + 3.0 * z0) / 5.0;
+    let (mut af, mut ad) = (af0, ad0);
+    let dev = |a: f64| (a - x0).abs().max((a - y0).abs()).max((a - z0).abs());
+    let mut qf = RF_FACTOR * dev(af0);
+    let mut qd = RD_FACTOR * dev(ad0);
+    let mut scale = 1.0;
+    let mut sum = 0.0;
+    while (qf >= af.abs() || qd >= ad.abs()) && scale > 1e-60 {
+        let (sx, sy, sz) = (x.sqrt(), y.sqrt(), z.sqrt());
+        let lam = sx * sy + sy * sz + sz * sx;
+        sum += scale / (sz * (z + lam));
+        x = 0.25 * (x + lam);
+        y = 0.25 * (y + lam);
+        z = 0.25 * (z + lam);
+        af = 0.25 * (af + lam);
+        ad = 0.25 * (ad + lam);
+        qf *= 0.25;
+        qd *= 0.25;
+        scale *= 0.25;
+    }
+    let rf = {
+        let xs = (af0 - x0) * scale / af;
+        let ys = (af0 - y0) * scale / af;
+        let zs = -(xs + ys);
+        let e2 = xs * ys - zs * zs;
+        let e3 = xs * ys * zs;
+        (1.0 - e2 / 10.0 + e3 / 14.0 + e2 * e2 / 24.0 - 3.0 * e2 * e3 / 44.0) / af.sqrt()
+    };
+    let rd = {
+        let xs = (ad0 - x0) * scale / ad;
+        let ys = (ad0 - y0) * scale / ad;
+        let zs = -(xs + ys) / 3.0;
+        let xy = xs * ys;
+        let z2 = zs * zs;
+        let e2 = xy - 6.0 * z2;
+        let e3 = (3.0 * xy - 8.0 * z2) * zs;
+        let e4 = 3.0 * (xy - z2) * z2;
+        let e5 = xy * z2 * zs;
+        let series = 1.0 - 3.0 * e2 / 14.0 + e3 / 6.0 + 9.0 * e2 * e2 / 88.0
+            - 3.0 * e4 / 22.0
+            - 9.0 * e2 * e3 / 52.0
+            + 3.0 * e5 / 26.0;
+        scale * series / (ad * ad.sqrt()) + 3.0 * sum
+    };
+    (rf, rd)
+}
+
+/// Complete `(K, E, D)` with `D = (K - E)/k^2`, all from one arithmetic-geometric mean:
+/// with `c_{n+1} = c_n^2 / (4 a_{n+1})` (from `c_n^2 = a_n^2 - b_n^2`, DLMF 19.8.2) the sum
+/// `K - E = K sum 2^(n-1) c_n^2` is formed from `c_n / k` without cancellation.
+pub fn complete3(k: f64) -> (f64, f64, f64) {
+    let mut a = 1.0;
+    let mut b = co_square(k).sqrt();
+    let mut s = 1.0; // c_n / k
+    let mut weight = 0.5; // 2^(n-1)
+    let mut sum = weight; // sum 2^(n-1) (c_n/k)^2
+    for _ in 0..40 {
+        let an = 0.5 * (a + b);
+        let sn = k * s * s / (4.0 * an);
+        b = (a * b).sqrt();
+        a = an;
+        s = sn;
+        weight *= 2.0;
+        sum += weight * s * s;
+        if k * s <= 1e-17 * a {
+            break;
+        }
+    }
+    let kk = PI / (2.0 * a);
+    let d = kk * sum;
+    (kk, kk - k * k * d, d)
+}
+
 /// `1 - k^2` without the cancellation of the naive form near `k = 1`.
 #[inline]
 fn co_square(k: f64) -> f64 {
@@ -187,8 +265,9 @@ pub fn incomplete_fed(phi: f64, k: f64) -> (f64, f64, f64) {
     }
     let c2 = c * c;
     let d2 = 1.0 - k * k * s * s;
-    let f = s * carlson_rf(c2, d2, 1.0);
-    let d = s * s * s * carlson_rd(c2, d2, 1.0) / 3.0;
+    let (rf, rd) = carlson_rf_rd(c2, d2, 1.0);
+    let f = s * rf;
+    let d = s * s * s * rd / 3.0;
     (f, f - k * k * d, d)
 }
 
@@ -274,6 +353,37 @@ mod tests {
             }
             let (f, e) = incomplete(FRAC_PI_2, k);
             assert!((f / kk - 1.0).abs() < 2e-15 && (e / ee - 1.0).abs() < 2e-15);
+        }
+    }
+
+    #[test]
+    fn joint_and_single_carlson_agree() {
+        for &(x, y, z) in &[
+            (0.3, 0.9, 1.0),
+            (0.0, 0.5, 1.0),
+            (2.0, 3.0, 4.0),
+            (1e-8, 0.99, 1.0),
+        ] {
+            let (rf, rd) = carlson_rf_rd(x, y, z);
+            assert!((rf / carlson_rf(x, y, z) - 1.0).abs() < 1e-15);
+            assert!((rd / carlson_rd(x, y, z) - 1.0).abs() < 1e-15);
+        }
+    }
+
+    #[test]
+    fn complete3_agrees_with_agm_and_carlson() {
+        for &k in &[0.0, 1e-9, 1e-3, 0.1, 0.5, 0.9, 0.999] {
+            let (kk, ee, dd) = complete3(k);
+            let (k2, e2) = complete(k);
+            assert!(
+                (kk / k2 - 1.0).abs() < 4e-16 && (ee / e2 - 1.0).abs() < 1e-15,
+                "k {k}"
+            );
+            assert!(
+                (dd / complete_d(k) - 1.0).abs() < 1e-15,
+                "k {k}: {dd} vs {}",
+                complete_d(k)
+            );
         }
     }
 
