@@ -4,6 +4,7 @@
 //! safety cautions.
 
 use std::path::{Path, PathBuf};
+use std::sync::{Arc, Mutex};
 
 use egui::{Context, RichText, Ui};
 
@@ -47,6 +48,8 @@ pub struct Dialogs {
     show_export: bool,
     export_base: String,
     show_print: bool,
+    /// What the last PNG export wrote, filled in by the screenshot callback.
+    png_result: Arc<Mutex<Option<super::Status>>>,
     print_path: String,
     /// The window should close now (the quit was confirmed).
     pub quit_requested: bool,
@@ -207,6 +210,15 @@ pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
 
 /// All windows, drawn over the panels.
 pub fn windows(app: &mut GripApp, ctx: &Context) {
+    let png = app
+        .dialogs
+        .png_result
+        .lock()
+        .ok()
+        .and_then(|mut done| done.take());
+    if let Some(status) = png {
+        app.status = Some(status);
+    }
     file_window(app, ctx);
     guard_window(app, ctx);
     recovery_window(app, ctx);
@@ -403,6 +415,7 @@ type ExportJob<'a> = (&'static str, &'static str, Box<dyn Fn() -> String + 'a>);
 
 fn export_window(app: &mut GripApp, ctx: &Context) {
     let mut open = app.dialogs.show_export;
+    let mut close_now = false;
     egui::Window::new("Export plots and tables")
         .open(&mut open)
         .default_width(460.0)
@@ -499,14 +512,75 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     is_error: failed,
                 });
             }
-            ui.label(
-                RichText::new(
-                    "PNG images: use your desktop's screenshot tool; the SVGs scale without loss.",
-                )
-                .small(),
-            );
+            if ui
+                .button("Plots as PNG (as on screen)")
+                .on_hover_text("Closes this window, takes a screenshot of the next frame and cuts each plot out of it.")
+                .clicked()
+            {
+                request_pngs(app.plot_rects, Arc::clone(&app.dialogs.png_result), ctx, &base);
+                close_now = true;
+            }
         });
-    app.dialogs.show_export = open;
+    app.dialogs.show_export = open && !close_now;
+}
+
+/// Asks for a screenshot of the next frame; its callback cuts out the three plots and
+/// writes them as `<base>-window.png`, `-forces.png`, `-stress.png`.
+fn request_pngs(
+    rects: [Option<egui::Rect>; 3],
+    result: Arc<Mutex<Option<super::Status>>>,
+    ctx: &Context,
+    base: &str,
+) {
+    let targets: Vec<(String, egui::Rect)> = ["-window.png", "-forces.png", "-stress.png"]
+        .iter()
+        .zip(rects)
+        .filter_map(|(ending, rect)| rect.map(|r| (format!("{base}{ending}"), r)))
+        .collect();
+    let ppp = ctx.pixels_per_point();
+    let repaint = ctx.clone();
+    ctx.request_screenshot(move |image| {
+        let mut lines = Vec::new();
+        let mut failed = false;
+        for (path, rect) in targets {
+            let written = crop_png(&image, rect, ppp)
+                .ok_or_else(|| "the plot is not on screen".to_string())
+                .and_then(|png| std::fs::write(&path, png).map_err(|e| e.to_string()));
+            match written {
+                Ok(()) => lines.push(format!("Wrote {path}.")),
+                Err(e) => {
+                    failed = true;
+                    lines.push(format!("Could not write {path}: {e}"));
+                }
+            }
+        }
+        if let Ok(mut slot) = result.lock() {
+            *slot = Some(super::Status {
+                text: lines.join(" "),
+                is_error: failed,
+            });
+        }
+        repaint.request_repaint();
+    });
+}
+
+/// The part of a screenshot under `rect` (in points) as PNG bytes; `None` when the rect
+/// lies outside the image.
+fn crop_png(image: &egui::ColorImage, rect: egui::Rect, ppp: f32) -> Option<Vec<u8>> {
+    let [w, h] = image.size;
+    let px = |v: f32, limit: usize| ((v * ppp).max(0.0) as usize).min(limit);
+    let (x0, x1) = (px(rect.min.x, w), px(rect.max.x, w));
+    let (y0, y1) = (px(rect.min.y, h), px(rect.max.y, h));
+    if x1 <= x0 || y1 <= y0 || image.pixels.len() < w * h {
+        return None;
+    }
+    let mut rgba = Vec::with_capacity((x1 - x0) * (y1 - y0) * 4);
+    for y in y0..y1 {
+        for p in &image.pixels[y * w + x0..y * w + x1] {
+            rgba.extend_from_slice(&p.to_array());
+        }
+    }
+    Some(export::png_rgba((x1 - x0) as u32, (y1 - y0) as u32, &rgba))
 }
 
 fn print_window(app: &mut GripApp, ctx: &Context) {

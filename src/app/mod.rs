@@ -155,6 +155,8 @@ pub struct GripApp {
     /// When the operating stroke is past the model's limit: a stroke just short of it and
     /// the strip shape there, so the side view still shows something.
     fallback_shape: Option<(f64, Vec<[f64; 2]>)>,
+    /// Where the three plots were drawn last frame (stroke-bore, force, stress), for PNG export.
+    plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
     dialogs: dialogs::Dialogs,
 }
@@ -187,6 +189,7 @@ impl GripApp {
             sent_title: String::new(),
             applied_theme: None,
             fallback_shape: None,
+            plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
         };

@@ -235,11 +235,15 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.set_width(cell.x);
             ui.strong("Stroke against bore").on_hover_text("For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.");
             window_plot(ui, a, cell.y - 20.0);
+            // Heading, axes and plot: what the PNG export cuts out.
+            app.plot_rects[0] = Some(ui.min_rect());
         });
         ui.vertical(|ui| {
             ui.set_width(cell.x);
             ui.strong(format!("Forces against stroke at the nominal bore, {:.2} mm", a.segment.bore_nominal_mm)).on_hover_text("Shaded: the free, point-contact and line-contact phases.");
             force_plot(ui, a, cell.y - 20.0);
+            // Heading, axes and plot: what the PNG export cuts out.
+            app.plot_rects[1] = Some(ui.min_rect());
         });
     });
     ui.horizontal(|ui| {
@@ -247,6 +251,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.set_width(cell.x);
             ui.strong("Peak stress against stroke (nominal bore)").on_hover_text("Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables.");
             stress_plot(ui, a, cell.y - 20.0);
+            // Heading, axes and plot: what the PNG export cuts out.
+            app.plot_rects[2] = Some(ui.min_rect());
         });
         ui.vertical(|ui| {
             ui.set_width(cell.x);
