@@ -414,8 +414,8 @@ const MAX_NEWTON: usize = 60;
 /// Safeguarded Newton on `[lo, hi]` for `f(x) = 0` with `f` increasing or decreasing and a
 /// sign change across the bracket. `f` returns value and derivative.
 fn newton_bracketed(
-    mut lo: f64,
-    mut hi: f64,
+    lo: f64,
+    hi: f64,
     x0: f64,
     tol: f64,
     mut f: impl FnMut(f64) -> (f64, f64),
@@ -431,23 +431,46 @@ fn newton_bracketed(
     if fhi == 0.0 {
         return Some(hi);
     }
-    let rising = fhi > flo;
+    newton_signed(lo, hi, fhi > flo, x0, tol, f)
+}
+
+/// Safeguarded Newton on `[lo, hi]` when the signs at the ends are already known
+/// (`rising`: negative at `lo`, positive at `hi`). Once a Newton step is below
+/// `sqrt(tol)`, quadratic convergence puts the next iterate within `tol`, so it stops there.
+fn newton_signed(
+    mut lo: f64,
+    mut hi: f64,
+    rising: bool,
+    x0: f64,
+    tol: f64,
+    mut f: impl FnMut(f64) -> (f64, f64),
+) -> Option<f64> {
     let mut x = x0.clamp(lo, hi);
+    let quadratic = tol.sqrt();
     for _ in 0..MAX_NEWTON {
         let (fx, dfx) = f(x);
         if fx == 0.0 {
             return Some(x);
+        }
+        if !fx.is_finite() {
+            return None;
         }
         if (fx > 0.0) == rising {
             hi = x;
         } else {
             lo = x;
         }
-        let mut next = x - fx / dfx;
-        if !(next > lo && next < hi) || !next.is_finite() {
-            next = 0.5 * (lo + hi);
-        }
-        if (next - x).abs() <= tol * (1.0 + x.abs()) || hi - lo <= tol * (1.0 + x.abs()) {
+        let newton = x - fx / dfx;
+        let scale = 1.0 + x.abs();
+        let next = if newton > lo && newton < hi && newton.is_finite() {
+            if (newton - x).abs() <= quadratic * scale {
+                return Some(newton);
+            }
+            newton
+        } else {
+            0.5 * (lo + hi)
+        };
+        if (next - x).abs() <= tol * scale || hi - lo <= tol * scale {
             return Some(next);
         }
         x = next;
@@ -640,7 +663,8 @@ impl Path {
         // First contact: crest height k/K rises with k up to k_top.
         // Seed from K = pi/2 (1 + k^2/4): k = (pi g / 2) (1 + (pi g/2)^2 / 4).
         let seed = FRAC_PI_2 * gap * (1.0 + 0.25 * (FRAC_PI_2 * gap).powi(2));
-        let k1 = newton_bracketed(0.0, k_top, seed, 1e-15, |k| {
+        // Signs known: crest 0 < g at k = 0 and the highest crest > g at k_top.
+        let k1 = newton_signed(0.0, k_top, true, seed, 1e-15, |k| {
             let kk = D::var(k, 0);
             let crest = kk / complete_ke_d(kk).0;
             (crest.v - gap, crest.d[0])
@@ -654,7 +678,10 @@ impl Path {
         // Line-contact onset: c sin(alpha)/l = 2 g on the rising side of the fold.
         let k_fold = k_line_fold();
         if 2.0 * gap < reach_d(D::c(k_fold)).v {
-            let ks = newton_bracketed(0.0, k_fold, gap, 1e-15, |k| {
+            // Signs known: reach 0 < 2g at k = 0 and the peak reach > 2g at the fold.
+            // Seed from reach = 2k (1 - 3k^2/2) + O(k^5).
+            let seed = gap * (1.0 + 1.5 * gap * gap);
+            let ks = newton_signed(0.0, k_fold, true, seed, 1e-15, |k| {
                 let r = reach_d(D::var(k, 0));
                 (r.v - 2.0 * gap, r.d[0])
             });
