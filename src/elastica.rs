@@ -463,7 +463,8 @@ fn newton_signed(
         let newton = x - fx / dfx;
         let scale = 1.0 + x.abs();
         let next = if newton > lo && newton < hi && newton.is_finite() {
-            if (newton - x).abs() <= quadratic * scale {
+            // Relative to x itself: small moduli (small gaps) need their own digits.
+            if (newton - x).abs() <= quadratic * x.abs() {
                 return Some(newton);
             }
             newton
