@@ -5,15 +5,15 @@
 //! `material`, `pipe`, `friction`) import nothing from the GUI, file dialogs or the PDF
 //! writer. `design` is the RON design file; `cli`, `app` and `sheet` are the front ends.
 
-pub mod elliptic;
-pub mod elastica;
-pub mod material;
-pub mod pipe;
-pub mod friction;
-pub mod design;
-pub mod segment;
-pub mod checks;
 pub mod analysis;
 pub mod app;
-pub mod sheet;
+pub mod checks;
 pub mod cli;
+pub mod design;
+pub mod elastica;
+pub mod elliptic;
+pub mod friction;
+pub mod material;
+pub mod pipe;
+pub mod segment;
+pub mod sheet;
