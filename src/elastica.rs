@@ -1226,7 +1226,8 @@ impl Path {
     /// The phase the path is in at `stroke`. The limit is found only for strokes that can
     /// reach it (past line-contact onset, or past first contact without line contact).
     pub fn phase_at(&self, stroke: f64) -> Phase {
-        if !(stroke >= 0.0) {
+        // NaN and negative strokes have no state.
+        if stroke.is_nan() || stroke < 0.0 {
             return Phase::BeyondLimit;
         }
         let tentative = match (self.first_contact, self.line_onset) {
@@ -1326,7 +1327,7 @@ impl Path {
     /// Least stroke at which the contact force per strip reaches `contact`
     /// (nondimensional, this end condition), `None` if it is not reached before the limit.
     pub fn stroke_for_contact(&self, contact: f64) -> Option<f64> {
-        if !(contact > 0.0) {
+        if contact.is_nan() || contact <= 0.0 {
             return self.first_contact_stroke();
         }
         self.stroke_for_goal(contact, 0.0, 0.0, 1.0)
@@ -1350,9 +1351,7 @@ impl Path {
             let stroke = free_d(D::c(k))[0].v;
             return (stroke <= self.limit().stroke).then_some(stroke);
         }
-        if self.first_contact.is_none() {
-            return None;
-        }
+        self.first_contact?;
         self.stroke_for_goal(value, wk, wp, 0.0)
     }
 
@@ -1440,8 +1439,7 @@ impl Path {
             }
         };
         let mut half = Vec::with_capacity(2 * n + 2);
-        let chord;
-        match s.phase {
+        let chord = match s.phase {
             Phase::BeyondLimit => return Vec::new(),
             Phase::Free => {
                 let lam = if hinged { 2.0 * ke.0 } else { 4.0 * ke.0 };
@@ -1463,7 +1461,7 @@ impl Path {
                 };
                 let a = if hinged { FRAC_PI_2 } else { s.phi0 };
                 span(a, PI - s.phi0, psi, lam, &mut half);
-                chord = 1.0 - stroke;
+                1.0 - stroke
             }
             Phase::LineContact => {
                 let alpha = 2.0 * k.asin();
@@ -1474,9 +1472,9 @@ impl Path {
                 };
                 let a = if hinged { FRAC_PI_2 } else { -FRAC_PI_2 };
                 span(a, 1.5 * PI, alpha, lam, &mut half);
-                chord = 1.0 - stroke;
+                1.0 - stroke
             }
-        }
+        };
         let mut all = half.clone();
         for p in half.iter().rev() {
             all.push([chord - p[0], p[1]]);

@@ -100,11 +100,13 @@ fn goodman_factor_of_the_state() {
 fn actuator_mappings() {
     // Mechanics note, segment level: spool angle delta/r_s, torque N P r_s; lead screw
     // turns delta/lead, torque N P lead / (2 pi eff).
-    let mut d = Design::default();
-    d.actuator = Actuator::Spool {
-        radius_mm: 5.0,
-        max_torque_nm: 2.0,
-        max_angle_deg: 720.0,
+    let mut d = Design {
+        actuator: Actuator::Spool {
+            radius_mm: 5.0,
+            max_torque_nm: 2.0,
+            max_angle_deg: 720.0,
+        },
+        ..Design::default()
     };
     let seg = Segment::new(&d).expect("valid");
     let r = seg.actuator_reading(3.0, 100.0);
