@@ -433,9 +433,14 @@ impl Segment {
                 gap_mm,
                 path,
             }),
-            Err(PathError::NoClearance { .. }) | Err(PathError::NotFinite) => {
+            Err(PathError::NoClearance { .. }) => {
                 Err(SegmentError::NoClearance { bore_mm, gap_mm })
             }
+            Err(PathError::NotFinite) => Err(SegmentError::BadQuery {
+                what: "bore_mm",
+                value: bore_mm,
+                allowed: "a bore whose gap to the strips is a finite number of mm",
+            }),
         }
     }
 
@@ -618,7 +623,7 @@ impl BorePath<'_> {
         let end = self.limit_stroke_mm().min(self.segment.max_stroke_mm());
         let points = points.max(2);
         (0..points)
-            .map(|i| self.state(end * i as f64 / (points - 1) as f64))
+            .map(|i| self.state(end * (i as f64 / (points - 1) as f64)))
             .collect()
     }
 
