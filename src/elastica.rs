@@ -1132,6 +1132,18 @@ impl Path {
         (k, phi0)
     }
 
+    /// Guess for `(k, phi0)` where the contact force is the fraction `r` of its value at
+    /// line-contact onset: along solved branches `F / F_onset` is close to
+    /// `u (0.63 + 0.37 u)` with `u = phi0 / (-pi/2)`, inverted here.
+    fn point_guess_contact(&self, r: f64) -> Option<(f64, f64)> {
+        let (k1, _) = self.first_contact?;
+        let (ks, _) = self.line_onset?;
+        let r = r.clamp(0.0, 1.0);
+        let u = ((0.3969 + 1.48 * r).sqrt() - 0.63) / 0.74;
+        let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
+        Some((ks + (k1 - ks) * f, -FRAC_PI_2 * u))
+    }
+
     /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
     /// marching from first contact.
     fn point_at(&self, stroke: f64) -> Option<(f64, f64)> {
@@ -1388,8 +1400,15 @@ impl Path {
             };
             let t = ((value - m1) / (m_end - m1)).clamp(0.0, 1.0);
             let guess_stroke = d1 + t * (point_end - d1);
+            let contact_only = wk == 0.0 && wp == 0.0;
+            let first_guess = if contact_only {
+                self.point_guess_contact(t)
+                    .unwrap_or_else(|| self.point_guess(guess_stroke, false))
+            } else {
+                self.point_guess(guess_stroke, false)
+            };
             let solved = self
-                .solve_point(goal, self.point_guess(guess_stroke, false))
+                .solve_point(goal, first_guess)
                 .or_else(|| {
                     self.point_at(guess_stroke)
                         .and_then(|guess| self.solve_point(goal, guess))

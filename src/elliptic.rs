@@ -97,7 +97,8 @@ pub fn complete3(k: f64) -> (f64, f64, f64) {
         s = sn;
         weight *= 2.0;
         sum += weight * s * s;
-        if k * s <= 1e-17 * a {
+        // As in `complete`: past 1e-9 a the next term is below rounding.
+        if k * s <= 1e-9 * a {
             break;
         }
     }
@@ -121,7 +122,9 @@ pub fn complete(k: f64) -> (f64, f64) {
     let mut weight = 0.5; // 2^(n-1)
     let mut sum = weight * c * c;
     for _ in 0..40 {
-        if c.abs() <= 1e-17 * a {
+        // Once c_n <= 1e-9 a, the next c is below 3e-19 a (c_{n+1} = c_n^2 / 4 a_{n+1}):
+        // a has converged and the remaining terms of the sum are below rounding.
+        if c.abs() <= 1e-9 * a {
             break;
         }
         let an = 0.5 * (a + b);
