@@ -19,7 +19,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::checks::{self, Check};
 use crate::design::{self, Design};
-use crate::segment::{BorePath, BoreRow, Segment, SegmentState};
+use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sheet::{self, Paper};
 
 /// Default number of strokes on a `sweep`.
@@ -455,39 +455,20 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
 // ---------------------------------------------------------------------------------------
 // sweep
 
-/// The fixed outside columns of `sweep`, then extras.
-const SWEEP_HEADER: &str = "stroke_mm,phase,axial_force_per_strip_n,contact_force_per_strip_n,\
-actuator_force_n,radial_force_n,holding_force_n,outer_diameter_mm,flat_length_mm,\
-max_stress_mpa,first_contact_stroke_mm,line_contact_stroke_mm,bore_mm,crest_height_mm,\
-static_safety_factor,fatigue_safety_factor,limit_stroke_mm,limit_reason";
-
-/// A CSV cell: Rust's default `f64` formatting (shortest round trip), empty for `None`.
-fn cell(v: Option<f64>) -> String {
-    v.map(|v| v.to_string()).unwrap_or_default()
-}
+/// Columns of `sweep` after the fixed outside names (`segment::STATE_COLUMNS`).
+const SWEEP_EXTRA: &str = "bore_mm,crest_height_mm,static_safety_factor,\
+fatigue_safety_factor,limit_stroke_mm,limit_reason";
 
 fn sweep_csv_row(s: &SegmentState) -> String {
-    let cells = [
-        s.stroke_mm.to_string(),
-        s.phase.to_string(),
-        cell(s.axial_force_per_strip_n),
-        cell(s.contact_force_per_strip_n),
-        cell(s.actuator_force_n),
-        cell(s.radial_force_n),
-        cell(s.holding_force_n),
-        cell(s.outer_diameter_mm),
-        cell(s.flat_length_mm),
-        cell(s.max_stress_mpa),
-        cell(s.first_contact_stroke_mm),
-        cell(s.line_contact_stroke_mm),
+    let extra = [
         s.bore_mm.to_string(),
-        cell(s.crest_height_mm),
-        cell(s.static_safety_factor),
-        cell(s.fatigue_safety_factor),
+        csv_cell(s.crest_height_mm),
+        csv_cell(s.static_safety_factor),
+        csv_cell(s.fatigue_safety_factor),
         s.limit_stroke_mm.to_string(),
         s.limit_reason.to_string(),
     ];
-    cells.join(",")
+    format!("{},{}", s.csv_cells().join(","), extra.join(","))
 }
 
 fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
@@ -499,7 +480,7 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let n = a.points;
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
     if a.csv {
-        writeln!(out, "{SWEEP_HEADER}")?;
+        writeln!(out, "{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","))?;
         for s in states {
             writeln!(out, "{}", sweep_csv_row(&s))?;
         }
@@ -559,10 +540,6 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
 // ---------------------------------------------------------------------------------------
 // bores
 
-/// The `bores` columns, exactly.
-const BORES_HEADER: &str = "bore_mm,first_contact_stroke_mm,holding_stroke_mm,\
-stress_limit_stroke_mm,line_contact_stroke_mm,limit_stroke_mm";
-
 /// The `i`-th of `n` equally spaced values from `from` to `to`; both ends exact.
 fn spaced(from: f64, to: f64, i: usize, n: usize) -> f64 {
     if i + 1 >= n {
@@ -576,9 +553,9 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
     let rows = (0..a.points).map(|i| seg.bore_row(spaced(a.from_mm, a.to_mm, i, a.points)));
     if a.csv {
-        writeln!(out, "{BORES_HEADER}")?;
+        writeln!(out, "{}", BORE_ROW_COLUMNS.join(","))?;
         for r in rows {
-            writeln!(out, "{}", bore_csv_row(&r))?;
+            writeln!(out, "{}", r.csv_line())?;
         }
         return Ok(Status::Done);
     }
@@ -606,18 +583,6 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     }
     writeln!(out, "{CAUTION}")?;
     Ok(Status::Done)
-}
-
-fn bore_csv_row(r: &BoreRow) -> String {
-    format!(
-        "{},{},{},{},{},{}",
-        r.bore_mm,
-        cell(r.first_contact_stroke_mm),
-        cell(r.holding_stroke_mm),
-        cell(r.stress_limit_stroke_mm),
-        cell(r.line_contact_stroke_mm),
-        cell(r.limit_stroke_mm)
-    )
 }
 
 // ---------------------------------------------------------------------------------------

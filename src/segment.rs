@@ -171,6 +171,72 @@ pub struct BoreRow {
     pub limit_stroke_mm: Option<f64>,
 }
 
+/// The fixed outside names of a state, in order: the columns every curve CSV starts with.
+pub const STATE_COLUMNS: [&str; 12] = [
+    "stroke_mm",
+    "phase",
+    "axial_force_per_strip_n",
+    "contact_force_per_strip_n",
+    "actuator_force_n",
+    "radial_force_n",
+    "holding_force_n",
+    "outer_diameter_mm",
+    "flat_length_mm",
+    "max_stress_mpa",
+    "first_contact_stroke_mm",
+    "line_contact_stroke_mm",
+];
+
+/// The columns of a stroke-against-bore row, in order.
+pub const BORE_ROW_COLUMNS: [&str; 6] = [
+    "bore_mm",
+    "first_contact_stroke_mm",
+    "holding_stroke_mm",
+    "stress_limit_stroke_mm",
+    "line_contact_stroke_mm",
+    "limit_stroke_mm",
+];
+
+/// A CSV cell: Rust's default `f64` formatting (shortest round trip), empty for `None`.
+pub fn csv_cell(v: Option<f64>) -> String {
+    v.map(|x| x.to_string()).unwrap_or_default()
+}
+
+impl SegmentState {
+    /// The cells of [`STATE_COLUMNS`] for this state.
+    pub fn csv_cells(&self) -> [String; 12] {
+        [
+            self.stroke_mm.to_string(),
+            self.phase.to_string(),
+            csv_cell(self.axial_force_per_strip_n),
+            csv_cell(self.contact_force_per_strip_n),
+            csv_cell(self.actuator_force_n),
+            csv_cell(self.radial_force_n),
+            csv_cell(self.holding_force_n),
+            csv_cell(self.outer_diameter_mm),
+            csv_cell(self.flat_length_mm),
+            csv_cell(self.max_stress_mpa),
+            csv_cell(self.first_contact_stroke_mm),
+            csv_cell(self.line_contact_stroke_mm),
+        ]
+    }
+}
+
+impl BoreRow {
+    /// The row as one CSV line of [`BORE_ROW_COLUMNS`] (no line end).
+    pub fn csv_line(&self) -> String {
+        [
+            self.bore_mm.to_string(),
+            csv_cell(self.first_contact_stroke_mm),
+            csv_cell(self.holding_stroke_mm),
+            csv_cell(self.stress_limit_stroke_mm),
+            csv_cell(self.line_contact_stroke_mm),
+            csv_cell(self.limit_stroke_mm),
+        ]
+        .join(",")
+    }
+}
+
 /// Fraction of tensile strength allowed for static stress (common practice for statically
 /// loaded flat springs; the project's contract fixes it).
 pub const STATIC_FRACTION: f64 = 0.75;

@@ -6,58 +6,20 @@
 
 use std::fmt::Write as _;
 
-use crate::segment::{BoreRow, SegmentState};
+use crate::segment::{BORE_ROW_COLUMNS, BoreRow, STATE_COLUMNS, SegmentState};
 
 /// Columns of the curve CSV: the first twelve state names.
-pub const CURVE_COLUMNS: [&str; 12] = [
-    "stroke_mm",
-    "phase",
-    "axial_force_per_strip_n",
-    "contact_force_per_strip_n",
-    "actuator_force_n",
-    "radial_force_n",
-    "holding_force_n",
-    "outer_diameter_mm",
-    "flat_length_mm",
-    "max_stress_mpa",
-    "first_contact_stroke_mm",
-    "line_contact_stroke_mm",
-];
+pub const CURVE_COLUMNS: [&str; 12] = STATE_COLUMNS;
 
 /// Columns of the window CSV.
-pub const WINDOW_COLUMNS: [&str; 6] = [
-    "bore_mm",
-    "first_contact_stroke_mm",
-    "holding_stroke_mm",
-    "stress_limit_stroke_mm",
-    "line_contact_stroke_mm",
-    "limit_stroke_mm",
-];
-
-fn cell(v: Option<f64>) -> String {
-    v.map(|x| x.to_string()).unwrap_or_default()
-}
+pub const WINDOW_COLUMNS: [&str; 6] = BORE_ROW_COLUMNS;
 
 /// The curve as CSV with a header row; an empty cell where a quantity does not exist.
 pub fn curve_csv(curve: &[SegmentState]) -> String {
     let mut out = CURVE_COLUMNS.join(",");
     out.push('\n');
     for s in curve {
-        let cells = [
-            s.stroke_mm.to_string(),
-            s.phase.to_string(),
-            cell(s.axial_force_per_strip_n),
-            cell(s.contact_force_per_strip_n),
-            cell(s.actuator_force_n),
-            cell(s.radial_force_n),
-            cell(s.holding_force_n),
-            cell(s.outer_diameter_mm),
-            cell(s.flat_length_mm),
-            cell(s.max_stress_mpa),
-            cell(s.first_contact_stroke_mm),
-            cell(s.line_contact_stroke_mm),
-        ];
-        out.push_str(&cells.join(","));
+        out.push_str(&s.csv_cells().join(","));
         out.push('\n');
     }
     out
@@ -68,15 +30,7 @@ pub fn window_csv(rows: &[BoreRow]) -> String {
     let mut out = WINDOW_COLUMNS.join(",");
     out.push('\n');
     for r in rows {
-        let cells = [
-            r.bore_mm.to_string(),
-            cell(r.first_contact_stroke_mm),
-            cell(r.holding_stroke_mm),
-            cell(r.stress_limit_stroke_mm),
-            cell(r.line_contact_stroke_mm),
-            cell(r.limit_stroke_mm),
-        ];
-        out.push_str(&cells.join(","));
+        out.push_str(&r.csv_line());
         out.push('\n');
     }
     out
