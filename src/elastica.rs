@@ -479,13 +479,90 @@ fn newton_signed(
     Some(x)
 }
 
-/// Brent's method (the `roots` crate) for an inverse query on `[lo, hi]`, iteration-bounded.
-fn brent(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> Option<f64> {
-    let mut conv = roots::SimpleConvergency {
-        eps: 1e-15,
-        max_iter: MAX_NEWTON,
+/// When the `roots` crate's Newton-Raphson is done: a step below `sqrt(1e-15) |x|` leaves
+/// the next iterate within rounding (convergence is quadratic), and a residual within
+/// `1e-15` of the target's size is a root. Leaving the bracket ends the search at once.
+struct NewtonSettled<'a> {
+    y_scale: f64,
+    left_bracket: &'a std::cell::Cell<bool>,
+}
+
+impl roots::Convergency<f64> for NewtonSettled<'_> {
+    fn is_root_found(&mut self, y: f64) -> bool {
+        y.abs() <= 1e-15 * self.y_scale
+    }
+    fn is_converged(&mut self, x1: f64, x2: f64) -> bool {
+        (x1 - x2).abs() <= 3e-8 * x1.abs().max(x2.abs())
+    }
+    fn is_iteration_limit_reached(&mut self, iter: usize) -> bool {
+        iter >= MAX_NEWTON || self.left_bracket.get()
+    }
+}
+
+/// Brent's method converges only superlinearly, so it runs to rounding in `x`.
+struct BrentSettled {
+    y_scale: f64,
+}
+
+impl roots::Convergency<f64> for BrentSettled {
+    fn is_root_found(&mut self, y: f64) -> bool {
+        y.abs() <= 1e-15 * self.y_scale
+    }
+    fn is_converged(&mut self, x1: f64, x2: f64) -> bool {
+        (x1 - x2).abs() <= 1e-15 * (1.0 + x1.abs().max(x2.abs()))
+    }
+    fn is_iteration_limit_reached(&mut self, iter: usize) -> bool {
+        iter >= MAX_NEWTON
+    }
+}
+
+/// An inverse query `f(x) = 0` on `[lo, hi]`, where `f` (value and exact derivative) changes
+/// sign across the bracket: Newton-Raphson from `seed` with the `roots` crate, and its
+/// Brent method on the bracket if Newton leaves it or does not settle. `y_scale` is the
+/// size of the target value, for the residual test.
+fn inverse_query(
+    lo: f64,
+    hi: f64,
+    seed: f64,
+    y_scale: f64,
+    f: impl Fn(f64) -> (f64, f64),
+) -> Option<f64> {
+    let left_bracket = std::cell::Cell::new(false);
+    // roots asks for the value and then the derivative at the same x: evaluate once.
+    let last = std::cell::Cell::new((f64::NAN, f64::NAN, f64::NAN));
+    let eval = |x: f64| {
+        let (lx, v, d) = last.get();
+        if lx == x {
+            return (v, d);
+        }
+        if !(x >= lo && x <= hi) {
+            left_bracket.set(true);
+            return (f64::NAN, f64::NAN);
+        }
+        let (v, d) = f(x);
+        last.set((x, v, d));
+        (v, d)
     };
-    roots::find_root_brent(lo, hi, &f, &mut conv)
+    let y_scale = y_scale.abs().max(f64::MIN_POSITIVE);
+    let mut newton = NewtonSettled {
+        y_scale,
+        left_bracket: &left_bracket,
+    };
+    let found = roots::find_root_newton_raphson(
+        seed.clamp(lo, hi),
+        |x| eval(x).0,
+        |x| eval(x).1,
+        &mut newton,
+    );
+    if let Ok(x) = found
+        && x >= lo
+        && x <= hi
+        && !left_bracket.get()
+    {
+        return Some(x);
+    }
+    let mut brent = BrentSettled { y_scale };
+    roots::find_root_brent(lo, hi, |x| f(x).0, &mut brent)
         .ok()
         .filter(|x| x.is_finite())
 }
@@ -765,12 +842,18 @@ impl Path {
         };
         // Usual case (g/L below about 0.19): the margin rises from the onset and is positive
         // at the fold, so the first crossing lies before the fold.
-        if buckling(k_fold).0 >= 0.0 {
+        let at_fold = buckling(k_fold).0;
+        if at_fold >= 0.0 {
             // Seed from the small-gap law: buckling at l = L/3, where k is about 1.5 ks.
+            // Signs known: at the onset the flat run has no length (margin -4 pi^2).
             let seed = (1.5 * ks).min(0.5 * (ks + k_fold));
-            let kb = newton_bracketed(ks, k_fold, seed, 1e-15, buckling).unwrap_or(k_fold);
-            if chord(kb).0 < 0.0 {
-                let stroke = line_d(D::c(kb), gap).stroke.v;
+            let kb = if at_fold == 0.0 {
+                k_fold
+            } else {
+                newton_signed(ks, k_fold, true, seed, 1e-15, buckling).unwrap_or(k_fold)
+            };
+            let stroke = line_d(D::c(kb), gap).stroke.v;
+            if stroke < 1.0 {
                 let limit = Limit {
                     stroke,
                     reason: LimitReason::FlatRunBuckling,
@@ -1037,6 +1120,12 @@ impl Path {
     /// Two-equation Newton on `(k, phi0)`: crest on the wall plus `goal`, with a
     /// backtracking line search on the scaled residual so that it stays on the branch.
     fn solve_point(&self, goal: PointGoal, guess: (f64, f64)) -> Option<(f64, f64)> {
+        self.solve_point_q(goal, guess)
+            .map(|(k, phi0, _)| (k, phi0))
+    }
+
+    /// As [`Path::solve_point`], also returning the quantities at the solution.
+    fn solve_point_q(&self, goal: PointGoal, guess: (f64, f64)) -> Option<(f64, f64, PointQ)> {
         let gap = self.gap;
         let residual = |k: f64, phi0: f64| {
             let q = point_d(D::var(k, 0), D::var(phi0, 1));
@@ -1047,17 +1136,13 @@ impl Path {
                     wk * q.kappa + wp * q.axial + wf * q.contact - D::c(value)
                 }
             };
-            (r1, r2)
+            (r1, r2, q)
         };
         // Scales that make both residuals order one: the gap, and the goal's own size.
-        let (s1, s2) = {
-            let (_, r2) = residual(guess.0, guess.1);
-            let scale2 = match goal {
-                PointGoal::Stroke(_) => gap * gap,
-                PointGoal::Linear { value, .. } => value.abs().max(1e-300),
-            };
-            let _ = r2;
-            (1.0 / gap, 1.0 / scale2)
+        let s1 = 1.0 / gap;
+        let s2 = match goal {
+            PointGoal::Stroke(_) => 1.0 / (gap * gap),
+            PointGoal::Linear { value, .. } => 1.0 / value.abs().max(1e-300),
         };
         let norm = |r1: D, r2: D| (r1.v * s1).powi(2) + (r2.v * s2).powi(2);
         let inside =
@@ -1066,7 +1151,11 @@ impl Path {
         if !inside(k, phi0) {
             return None;
         }
-        let (mut r1, mut r2) = residual(k, phi0);
+        let (mut r1, mut r2, mut q) = residual(k, phi0);
+        // Once a full Newton step is below sqrt(1e-15) (relative in k, absolute in phi0),
+        // quadratic convergence leaves the new iterate within rounding: stop there, with
+        // its quantities already in hand.
+        let quadratic = 3e-8;
         for _ in 0..MAX_NEWTON {
             let det = r1.d[0] * r2.d[1] - r1.d[1] * r2.d[0];
             if !det.is_finite() || det == 0.0 {
@@ -1075,7 +1164,7 @@ impl Path {
             let dk = -(r1.v * r2.d[1] - r2.v * r1.d[1]) / det;
             let dp = -(r2.v * r1.d[0] - r1.v * r2.d[0]) / det;
             if dk.abs() < 1e-15 * (1.0 + k) && dp.abs() < 1e-14 {
-                return Some((k + dk, phi0 + dp));
+                return Some((k, phi0, q));
             }
             let base = norm(r1, r2);
             let mut t = (0.3 / dp.abs()).min(0.5 * k / dk.abs()).min(1.0);
@@ -1083,12 +1172,13 @@ impl Path {
             for _ in 0..30 {
                 let (kn, pn) = (k + t * dk, phi0 + t * dp);
                 if inside(kn, pn) {
-                    let (n1, n2) = residual(kn, pn);
+                    let (n1, n2, nq) = residual(kn, pn);
                     if norm(n1, n2) < base || base < 1e-28 {
                         k = kn;
                         phi0 = pn;
                         r1 = n1;
                         r2 = n2;
+                        q = nq;
                         accepted = true;
                         break;
                     }
@@ -1097,6 +1187,9 @@ impl Path {
             }
             if !accepted {
                 return None;
+            }
+            if t == 1.0 && dk.abs() <= quadratic * k && dp.abs() <= quadratic {
+                return Some((k, phi0, q));
             }
         }
         None
@@ -1147,14 +1240,20 @@ impl Path {
     /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
     /// marching from first contact.
     fn point_at(&self, stroke: f64) -> Option<(f64, f64)> {
+        self.point_at_q(stroke).map(|(k, phi0, _)| (k, phi0))
+    }
+
+    /// As [`Path::point_at`], also returning the quantities at the solution.
+    fn point_at_q(&self, stroke: f64) -> Option<(f64, f64, PointQ)> {
         let goal = PointGoal::Stroke(stroke);
         if let Some(sol) = self
-            .solve_point(goal, self.point_guess(stroke, false))
-            .or_else(|| self.solve_point(goal, self.point_guess(stroke, true)))
+            .solve_point_q(goal, self.point_guess(stroke, false))
+            .or_else(|| self.solve_point_q(goal, self.point_guess(stroke, true)))
         {
             return Some(sol);
         }
-        self.march_point(PointGoal::Stroke(stroke), stroke)
+        let (k, phi0) = self.march_point(goal, stroke)?;
+        Some((k, phi0, point_d(D::c(k), D::c(phi0))))
     }
 
     /// Marches the point branch in stroke from first contact to `stroke`, then solves `goal`.
@@ -1218,7 +1317,10 @@ impl Path {
         }
         // Without contact the free phase runs to the chord closing; bracket past it.
         let hi = self.first_contact.map(|(k, _)| k).unwrap_or(0.999_999);
-        newton_bracketed(0.0, hi, stroke.sqrt().min(0.9 * hi), 1e-15, |k| {
+        // Signs known: no stroke at k = 0, and the phase ends at or past `stroke` (first
+        // contact, or a chord beyond closing). Seed from stroke = k^2 (1 + k^2/8) + O(k^6).
+        let seed = (stroke.sqrt() * (1.0 - stroke / 16.0)).min(0.9 * hi);
+        newton_signed(0.0, hi, true, seed, 1e-15, |k| {
             let s = free_d(D::var(k, 0))[0];
             (s.v - stroke, s.d[0])
         })
@@ -1226,10 +1328,15 @@ impl Path {
 
     /// Solves line contact at `stroke` for `k`.
     fn line_k(&self, stroke: f64) -> Option<f64> {
-        let (ks, _) = self.line_onset?;
-        let hi = self.limit_data().1?;
+        let (ks, ds) = self.line_onset?;
+        let (limit, hi) = self.limit_data();
+        let hi = hi?;
         let gap = self.gap;
-        newton_bracketed(ks, hi, ks + 0.3 * (hi - ks), 1e-15, |k| {
+        // Signs known: the stroke rises with k from the onset to the limit, and the phase
+        // puts `stroke` between them. Seed by straight-line interpolation in stroke.
+        let t = ((stroke - ds) / (limit.stroke - ds)).clamp(0.0, 1.0);
+        let seed = ks + (hi - ks) * if t.is_finite() { t } else { 0.0 };
+        newton_signed(ks, hi, true, seed, 1e-15, |k| {
             let s = line_d(D::var(k, 0), gap).stroke;
             (s.v - stroke, s.d[0])
         })
@@ -1277,8 +1384,8 @@ impl Path {
         let solved = match phase {
             Phase::Free => self.free_k(stroke).map(|k| self.free_state(k, stroke)),
             Phase::PointContact => self
-                .point_at(stroke)
-                .map(|(k, p)| self.point_state(k, p, stroke)),
+                .point_at_q(stroke)
+                .map(|(k, p, q)| self.point_state_of(k, p, &q, stroke)),
             Phase::LineContact => self.line_k(stroke).map(|k| self.line_state(k, stroke)),
             Phase::BeyondLimit => None,
         };
@@ -1302,8 +1409,7 @@ impl Path {
         }
     }
 
-    fn point_state(&self, k: f64, phi0: f64, stroke: f64) -> StripState {
-        let q = point_d(D::c(k), D::c(phi0));
+    fn point_state_of(&self, k: f64, phi0: f64, q: &PointQ, stroke: f64) -> StripState {
         StripState {
             phase: Phase::PointContact,
             stroke,
@@ -1351,15 +1457,24 @@ impl Path {
         // Free phase first: the combination rises with k from zero.
         let (wk_c, wp_c) = (wk * self.scale_curvature, wp * self.scale_force);
         let eval_free = |k: f64| {
-            let [_, axial, _, kappa, _] = free_d(D::c(k));
-            wk_c * kappa.v + wp_c * axial.v - value
+            let [_, axial, _, kappa, _] = free_d(D::var(k, 0));
+            let m = wk_c * kappa + wp_c * axial;
+            (m.v - value, m.d[0])
         };
         let k_end = self
             .first_contact
             .map(|(k, _)| k)
             .unwrap_or(k_chord_closed());
-        if eval_free(k_end) >= 0.0 {
-            let k = brent(0.0, k_end, eval_free)?;
+        let at_end = eval_free(k_end).0;
+        if at_end >= 0.0 {
+            // Straight-line seed between the unloaded strip (kappa 0, axial 4 pi^2) and k_end.
+            let at_rest = wp_c * 4.0 * PI * PI - value;
+            let seed = if at_rest < 0.0 {
+                k_end * at_rest / (at_rest - at_end)
+            } else {
+                0.0
+            };
+            let k = inverse_query(0.0, k_end, seed, value, eval_free)?;
             let stroke = free_d(D::c(k))[0].v;
             return (stroke <= self.limit().stroke).then_some(stroke);
         }
@@ -1421,13 +1536,18 @@ impl Path {
         let kl = self.limit_data().1?;
         let gap = self.gap;
         let eval_line = |k: f64| {
-            let q = line_d(D::c(k), gap);
-            (sk * q.kappa + sp * q.axial + sf * q.contact).v - value
+            let q = line_d(D::var(k, 0), gap);
+            let m = sk * q.kappa + sp * q.axial + sf * q.contact;
+            (m.v - value, m.d[0])
         };
-        if eval_line(kl) < 0.0 {
+        let at_limit = eval_line(kl).0;
+        if at_limit < 0.0 {
             return None;
         }
-        let k = brent(ks, kl, eval_line)?;
+        // Straight-line seed between the onset (below the value, checked above) and the limit.
+        let at_onset = m_end - value;
+        let seed = ks + (kl - ks) * at_onset / (at_onset - at_limit);
+        let k = inverse_query(ks, kl, seed, value, eval_line)?;
         Some(line_d(D::c(k), gap).stroke.v.min(self.limit().stroke))
     }
 
