@@ -156,14 +156,6 @@ impl D {
             d: [self.d[0] * dv, self.d[1] * dv],
         }
     }
-    fn sin(self) -> D {
-        let (s, c) = self.v.sin_cos();
-        self.chain(s, c)
-    }
-    fn cos(self) -> D {
-        let (s, c) = self.v.sin_cos();
-        self.chain(c, -s)
-    }
     fn sqrt(self) -> D {
         let r = self.v.sqrt();
         self.chain(r, 0.5 / r)
@@ -251,20 +243,17 @@ fn reach_d(k: D) -> D {
 
 /// Complete integrals `(K, E, D)` of a dual modulus, `D = (K - E) / k^2`.
 fn complete_d(k: D) -> (D, D, D) {
-    let (kk, ee, dc) = elliptic::complete3(k.v);
-    let ke = (kk, ee);
-    let (dk, de) = elliptic::complete_dk(k.v, ke);
-    let dd = elliptic::incomplete_d_dk(FRAC_PI_2, k.v, (ke.0, ke.1, dc));
-    (k.chain(ke.0, dk), k.chain(ke.1, de), k.chain(dc, dd))
+    let ked = elliptic::complete3(k.v);
+    let (dk, de) = elliptic::complete_dk(k.v, (ked.0, ked.1));
+    let dd = elliptic::complete_d_dk(k.v, ked);
+    (k.chain(ked.0, dk), k.chain(ked.1, de), k.chain(ked.2, dd))
 }
 
-/// Incomplete integrals `(F, E, D)` at `|phi| <= pi/2` of a dual phase and modulus.
-fn incomplete_d(phi: D, k: D) -> (D, D, D) {
-    let fed = elliptic::incomplete_fed(phi.v, k.v);
-    let (fk, ek) = elliptic::incomplete_dk(phi.v, k.v, (fed.0, fed.1));
-    let dk = elliptic::incomplete_d_dk(phi.v, k.v, fed);
-    let s = phi.v.sin();
-    let delta = (1.0 - k.v * k.v * s * s).sqrt();
+/// Incomplete integrals `(F, E, D)` at `|phi| <= pi/2` of a dual phase and modulus, with
+/// `sin phi` and `cos phi` as duals (one trigonometric evaluation for all of them).
+fn incomplete_d(phi: D, k: D) -> ((D, D, D), (D, D)) {
+    let set = elliptic::incomplete_set(phi.v, k.v);
+    let (s, delta) = (set.sin, set.delta);
     let mix = |v: f64, by_phi: f64, by_k: f64| D {
         v,
         d: [
@@ -272,10 +261,15 @@ fn incomplete_d(phi: D, k: D) -> (D, D, D) {
             phi.d[1] * by_phi + k.d[1] * by_k,
         ],
     };
+    let (f, e, d) = set.fed;
+    let (fk, ek, dk) = set.fed_dk;
     (
-        mix(fed.0, 1.0 / delta, fk),
-        mix(fed.1, delta, ek),
-        mix(fed.2, s * s / delta, dk),
+        (
+            mix(f, 1.0 / delta, fk),
+            mix(e, delta, ek),
+            mix(d, s * s / delta, dk),
+        ),
+        (phi.chain(s, set.cos), phi.chain(set.cos, -s)),
     )
 }
 
@@ -333,14 +327,13 @@ struct PointQ {
 
 fn point_d(k: D, phi0: D) -> PointQ {
     let (kk, _, dc) = complete_d(k);
-    let (f0, _, d0) = incomplete_d(phi0, k);
+    let ((f0, _, d0), (sin0, cos0)) = incomplete_d(phi0, k);
     let span = kk - f0; // K - F(phi0)
     let k2 = k.sq();
     let lam = 4.0 * span;
     // (K - F0) - (E - E0) = k^2 (D - D0): xi = 1/2 - k^2 (D - D0) / (K - F0).
     let ddiff = dc - d0;
     let xi = D::c(0.5) - k2 * ddiff / span;
-    let (sin0, cos0) = (phi0.sin(), phi0.cos());
     let eta = k * cos0 / span;
     let s = D::c(0.0) - k * sin0; // sin(psi / 2)
     let c = (1.0 - s.sq()).sqrt();
@@ -407,6 +400,10 @@ fn line_d(k: D, gap: f64) -> LineQ {
 
 /// Smallest gap (over L) with a state: below it the strip is taken to touch the wall.
 pub const MIN_GAP: f64 = 1e-12;
+
+/// Below this gap (over L) the flat run buckles before line contact reaches its fold
+/// (the note gives 0.195; a test holds the margin).
+const BUCKLES_BEFORE_FOLD: f64 = 0.18;
 
 /// Iteration bound of every Newton solve here.
 const MAX_NEWTON: usize = 60;
@@ -610,13 +607,52 @@ pub fn k_line_fold() -> f64 {
 
 /// Largest gap a free strip can reach: `max over k of k / K(k)` (about 0.4 L).
 pub fn max_reachable_gap() -> f64 {
-    let k = k_highest_crest();
-    k / elliptic::ellip_k(k)
+    use std::sync::OnceLock;
+    static G: OnceLock<f64> = OnceLock::new();
+    *G.get_or_init(|| {
+        let k = k_highest_crest();
+        k / elliptic::ellip_k(k)
+    })
 }
 
 /// Largest gap at which line contact can begin: `max c sin(alpha) / (2 l)` at `l = L/2`.
 pub fn max_line_contact_gap() -> f64 {
-    0.5 * line_reach_d(D::c(k_line_fold())).0.v
+    use std::sync::OnceLock;
+    static G: OnceLock<f64> = OnceLock::new();
+    *G.get_or_init(|| 0.5 * line_reach_d(D::c(k_line_fold())).0.v)
+}
+
+/// A by-product of a Newton solve carried to its root: the value and slope of a second
+/// quantity at the last point the solve evaluated, extended linearly to the root. The
+/// solves stop once a step is below `sqrt(1e-15)` relative, so the neglected quadratic
+/// term is at rounding level; further away, `at` declines and the caller evaluates.
+#[derive(Clone, Copy, Debug)]
+struct Carried {
+    x: f64,
+    v: f64,
+    dv: f64,
+}
+
+impl Carried {
+    const NONE: Carried = Carried {
+        x: f64::NAN,
+        v: f64::NAN,
+        dv: f64::NAN,
+    };
+
+    fn record(&mut self, x: f64, q: D) {
+        *self = Carried {
+            x,
+            v: q.v,
+            dv: q.d[0],
+        };
+    }
+
+    fn at(self, x: f64) -> Option<f64> {
+        let h = x - self.x;
+        (h.abs() <= 1e-7 * x.abs() && self.v.is_finite() && self.dv.is_finite())
+            .then_some(self.v + self.dv * h)
+    }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -738,33 +774,44 @@ impl Path {
         if gap >= max_reachable_gap() {
             return Ok(path);
         }
-        // First contact: crest height k/K rises with k up to k_top.
-        // Seed from K = pi/2 (1 + k^2/4): k = (pi g / 2) (1 + (pi g/2)^2 / 4).
-        let seed = FRAC_PI_2 * gap * (1.0 + 0.25 * (FRAC_PI_2 * gap).powi(2));
-        // Signs known: crest 0 < g at k = 0 and the highest crest > g at k_top.
+        // First contact: crest height k/K rises with k up to k_top. Seed from the series
+        // k = x (1 + x^2/4 + 17 x^4/64), x = pi g / 2 (inverting k/K with K from DLMF 19.5.1).
+        let x = FRAC_PI_2 * gap;
+        let seed = x * (1.0 + x * x * (0.25 + 17.0 / 64.0 * x * x));
+        // Signs known: crest 0 < g at k = 0 and the highest crest > g at k_top. The stroke
+        // is carried along to the root.
+        let mut stroke = Carried::NONE;
         let k1 = newton_signed(0.0, k_top, true, seed, 1e-15, |k| {
-            let kk = D::var(k, 0);
-            let crest = kk / complete_ke_d(kk).0;
+            let [s, _, crest, _, _] = free_d(D::var(k, 0));
+            stroke.record(k, s);
             (crest.v - gap, crest.d[0])
         });
         let Some(k1) = k1 else {
             path.branch_lost = true;
             return Ok(path);
         };
-        let d1 = free_d(D::c(k1))[0].v;
+        let d1 = stroke.at(k1).unwrap_or_else(|| free_d(D::c(k1))[0].v);
         path.first_contact = Some((k1, d1));
         // Line-contact onset: c sin(alpha)/l = 2 g on the rising side of the fold.
         let k_fold = k_line_fold();
-        if 2.0 * gap < reach_d(D::c(k_fold)).v {
+        if gap < max_line_contact_gap() {
             // Signs known: reach 0 < 2g at k = 0 and the peak reach > 2g at the fold.
-            // Seed from reach = 2k (1 - 3k^2/2) + O(k^5).
-            let seed = gap * (1.0 + 1.5 * gap * gap);
+            // Seed from reach = 2k (1 - 3k^2/2 + k^4/4) + O(k^7), inverted.
+            let seed = gap * (1.0 + gap * gap * (1.5 + 6.5 * gap * gap));
+            // At the onset l = L/2, so the stroke is 2 k^2 (1 + D cos(alpha) / K).
+            let mut stroke = Carried::NONE;
             let ks = newton_signed(0.0, k_fold, true, seed, 1e-15, |k| {
-                let r = reach_d(D::var(k, 0));
+                let kd = D::var(k, 0);
+                let (r, kk, dc) = line_reach_d(kd);
+                let k2 = kd.sq();
+                let cos_a = 1.0 - 2.0 * k2;
+                stroke.record(k, 2.0 * (k2 * (D::c(1.0) + dc * cos_a / kk)));
                 (r.v - 2.0 * gap, r.d[0])
             });
             if let Some(ks) = ks {
-                let ds = line_d(D::c(ks), gap).stroke.v;
+                let ds = stroke
+                    .at(ks)
+                    .unwrap_or_else(|| line_d(D::c(ks), gap).stroke.v);
                 path.line_onset = Some((ks, ds));
             }
         }
@@ -842,17 +889,33 @@ impl Path {
         };
         // Usual case (g/L below about 0.19): the margin rises from the onset and is positive
         // at the fold, so the first crossing lies before the fold.
-        let at_fold = buckling(k_fold).0;
+        // Below g/L = 0.195 the flat run buckles before the fold (mechanics note, section
+        // 4; held by a test down a fine grid of gaps): no need to evaluate the fold.
+        let at_fold = if gap < BUCKLES_BEFORE_FOLD {
+            f64::INFINITY
+        } else {
+            buckling(k_fold).0
+        };
         if at_fold >= 0.0 {
             // Seed from the small-gap law: buckling at l = L/3, where k is about 1.5 ks.
             // Signs known: at the onset the flat run has no length (margin -4 pi^2).
             let seed = (1.5 * ks).min(0.5 * (ks + k_fold));
+            let mut carried = Carried::NONE;
             let kb = if at_fold == 0.0 {
                 k_fold
             } else {
-                newton_signed(ks, k_fold, true, seed, 1e-15, buckling).unwrap_or(k_fold)
+                newton_signed(ks, k_fold, true, seed, 1e-15, |k| {
+                    let q = line_d(D::var(k, 0), gap);
+                    carried.record(k, q.stroke);
+                    let flat = 1.0 - 2.0 * q.arc;
+                    let v = q.axial * flat.sq() - D::c(4.0 * PI * PI);
+                    (v.v, v.d[0])
+                })
+                .unwrap_or(k_fold)
             };
-            let stroke = line_d(D::c(kb), gap).stroke.v;
+            let stroke = carried
+                .at(kb)
+                .unwrap_or_else(|| line_d(D::c(kb), gap).stroke.v);
             if stroke < 1.0 {
                 let limit = Limit {
                     stroke,
@@ -1144,7 +1207,7 @@ impl Path {
             PointGoal::Stroke(_) => 1.0 / (gap * gap),
             PointGoal::Linear { value, .. } => 1.0 / value.abs().max(1e-300),
         };
-        let norm = |r1: D, r2: D| (r1.v * s1).powi(2) + (r2.v * s2).powi(2);
+        let _ = (s1, s2);
         let inside =
             |k: f64, phi0: f64| k > 0.0 && k < 1.0 && (-FRAC_PI_2 - 0.6..=0.6).contains(&phi0);
         let (mut k, mut phi0) = guess;
@@ -1161,19 +1224,34 @@ impl Path {
             if !det.is_finite() || det == 0.0 {
                 return None;
             }
-            let dk = -(r1.v * r2.d[1] - r2.v * r1.d[1]) / det;
-            let dp = -(r2.v * r1.d[0] - r1.v * r2.d[0]) / det;
+            // Newton correction for residuals (a, b) with this Jacobian.
+            let (j1, j2) = (r1.d, r2.d);
+            let correction = |a: f64, b: f64| {
+                (
+                    -(a * j2[1] - b * j1[1]) / det,
+                    -(b * j1[0] - a * j2[0]) / det,
+                )
+            };
+            let (dk, dp) = correction(r1.v, r2.v);
             if dk.abs() < 1e-15 * (1.0 + k) && dp.abs() < 1e-14 {
                 return Some((k, phi0, q));
             }
-            let base = norm(r1, r2);
+            // Size of a correction: k relative to itself, phi0 in radians.
+            let k_scale = k;
+            let size = |dk: f64, dp: f64| (dk / k_scale).hypot(dp);
+            let full = size(dk, dp);
+            // Damped Newton with the natural monotonicity test (Deuflhard, Newton Methods
+            // for Nonlinear Problems, 2004, section 3.3): a trial step is taken when the
+            // simplified correction there, with this Jacobian, is smaller than this one.
+            // It does not depend on how the two residuals are scaled.
             let mut t = (0.3 / dp.abs()).min(0.5 * k / dk.abs()).min(1.0);
             let mut accepted = false;
             for _ in 0..30 {
                 let (kn, pn) = (k + t * dk, phi0 + t * dp);
                 if inside(kn, pn) {
                     let (n1, n2, nq) = residual(kn, pn);
-                    if norm(n1, n2) < base || base < 1e-28 {
+                    let (sk, sp) = correction(n1.v, n2.v);
+                    if size(sk, sp) <= (1.0 - 0.25 * t) * full || full < 1e-14 {
                         k = kn;
                         phi0 = pn;
                         r1 = n1;
@@ -1636,5 +1714,55 @@ fn beyond(stroke: f64) -> StripState {
         flat_length: f64::NAN,
         kappa_max: f64::NAN,
         energy: f64::NAN,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The shortcut in `line_limit`: below `BUCKLES_BEFORE_FOLD` the buckling margin is
+    /// already positive at the fold, on a fine grid of gaps (the mechanics note puts the
+    /// crossover at g/L = 0.195).
+    #[test]
+    fn flat_run_buckles_before_the_fold_below_the_shortcut_gap() {
+        let k_fold = k_line_fold();
+        let margin = |gap: f64| {
+            let q = line_d(D::c(k_fold), gap);
+            q.axial.v * (1.0 - 2.0 * q.arc.v).powi(2) - 4.0 * PI * PI
+        };
+        for i in 1..=2000 {
+            let gap = BUCKLES_BEFORE_FOLD * i as f64 / 2000.0;
+            assert!(margin(gap) > 0.0, "gap {gap}: margin {}", margin(gap));
+        }
+        // ... and the crossover itself lies between 0.19 and 0.2, as the note says.
+        assert!(margin(0.19) > 0.0 && margin(0.2) < 0.0);
+    }
+
+    /// Strokes carried to a Newton root agree with a fresh evaluation there.
+    #[test]
+    fn carried_strokes_match_fresh_evaluations() {
+        for &gap in &[1e-6, 1e-3, 0.02, 0.08, 0.15, 0.19, 0.25, 0.3] {
+            let path = Path::new(Ends::Clamped, gap).unwrap();
+            let (k1, d1) = path.first_contact.unwrap();
+            let fresh = free_d(D::c(k1))[0].v;
+            assert!(
+                (d1 - fresh).abs() <= 2e-15 * fresh,
+                "gap {gap}: {d1} vs {fresh}"
+            );
+            let (ks, ds) = path.line_onset.unwrap();
+            let fresh = line_d(D::c(ks), gap).stroke.v;
+            assert!(
+                (ds - fresh).abs() <= 2e-15 * fresh,
+                "gap {gap}: {ds} vs {fresh}"
+            );
+            let (limit, kl) = path.limit_data();
+            let fresh = line_d(D::c(kl.unwrap()), gap).stroke.v;
+            assert!(
+                (limit.stroke - fresh).abs() <= 2e-15 * fresh,
+                "gap {gap}: {} vs {fresh}",
+                limit.stroke
+            );
+        }
     }
 }

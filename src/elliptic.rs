@@ -213,6 +213,11 @@ pub fn complete_d(k: f64) -> f64 {
 /// (DLMF 19.2.6, 19.25.5, 19.25.9). `E` is formed as `F - k^2 D`.
 pub fn incomplete_fed(phi: f64, k: f64) -> (f64, f64, f64) {
     let (s, c) = phi.sin_cos();
+    fed_sc(s, c, k)
+}
+
+/// [`incomplete_fed`] from `sin phi` and `cos phi`.
+fn fed_sc(s: f64, c: f64, k: f64) -> (f64, f64, f64) {
     if s == 0.0 {
         return (0.0, 0.0, 0.0);
     }
@@ -228,14 +233,27 @@ pub fn incomplete_fed(phi: f64, k: f64) -> (f64, f64, f64) {
 /// given `(F, E, D)`; a series below `k = 1e-3` avoids the cancellation of the closed form.
 pub fn incomplete_d_dk(phi: f64, k: f64, fed: (f64, f64, f64)) -> f64 {
     let (s, c) = phi.sin_cos();
+    let delta = (1.0 - k * k * s * s).sqrt();
+    d_dk_sc(phi, s, c, delta, k, fed)
+}
+
+/// [`incomplete_d_dk`] from `phi`, its sine and cosine, and `delta = sqrt(1 - k^2 sin^2 phi)`.
+fn d_dk_sc(phi: f64, s: f64, c: f64, delta: f64, k: f64, fed: (f64, f64, f64)) -> f64 {
     if k.abs() < 1e-3 {
-        // D = int sin^2 (1 + k^2 sin^2 / 2 + ...): dD/dk = k int sin^4 = k (3 phi/8 - sin 2phi/4 + sin 4phi/32).
-        return k * (3.0 * phi / 8.0 - (2.0 * phi).sin() / 4.0 + (4.0 * phi).sin() / 32.0);
+        // D = int sin^2 (1 + k^2 sin^2 / 2 + ...): dD/dk = k int sin^4
+        //   = k (3 phi/8 - sin 2phi/4 + sin 4phi/32), with sin 2phi = 2sc, sin 4phi = 4sc(c^2 - s^2).
+        let sc = s * c;
+        return k * (3.0 * phi / 8.0 - 0.5 * sc + 0.125 * sc * (c * c - s * s));
     }
     let (_, e, d) = fed;
     let kp2 = co_square(k);
-    let delta = (1.0 - k * k * s * s).sqrt();
     (e - s * c / delta) / (k * kp2) - 2.0 * d / k
+}
+
+/// Derivative of the complete `D(k)` with respect to `k`, given `(K, E, D)`: the phase
+/// `pi/2` of [`incomplete_d_dk`] without its trigonometry.
+pub fn complete_d_dk(k: f64, ked: (f64, f64, f64)) -> f64 {
+    d_dk_sc(FRAC_PI_2, 1.0, 0.0, co_square(k).sqrt(), k, ked)
 }
 
 /// Derivatives of the complete integrals with respect to the modulus,
@@ -253,18 +271,55 @@ pub fn complete_dk(k: f64, ke: (f64, f64)) -> (f64, f64) {
 /// Derivatives of the incomplete integrals with respect to the modulus,
 /// `(dF/dk, dE/dk)` at fixed `phi` (DLMF 19.4.2 and 19.4.4 rearranged), given `(F, E)`.
 pub fn incomplete_dk(phi: f64, k: f64, fe: (f64, f64)) -> (f64, f64) {
-    let (f, e) = fe;
     let (s, c) = phi.sin_cos();
+    let delta = (1.0 - k * k * s * s).sqrt();
+    dk_sc(phi, s, c, delta, k, fe)
+}
+
+/// [`incomplete_dk`] from `phi`, its sine and cosine, and `delta`.
+fn dk_sc(phi: f64, s: f64, c: f64, delta: f64, k: f64, fe: (f64, f64)) -> (f64, f64) {
+    let (f, e) = fe;
     if k.abs() < 1e-5 {
         let w = phi - s * c;
         return (0.5 * k * w, -0.5 * k * w);
     }
     let kp2 = co_square(k);
-    let delta = (1.0 - k * k * s * s).sqrt();
     (
         e / (k * kp2) - f / k - k * s * c / (kp2 * delta),
         (e - f) / k,
     )
+}
+
+/// The incomplete integrals at one phase with everything a Newton step needs, from one
+/// evaluation of `sin phi` and `cos phi` (`|phi| <= pi/2`).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct IncompleteSet {
+    /// `sin phi`.
+    pub sin: f64,
+    /// `cos phi`.
+    pub cos: f64,
+    /// `delta = sqrt(1 - k^2 sin^2 phi)`, so that `dF/dphi = 1/delta`, `dE/dphi = delta`.
+    pub delta: f64,
+    /// `(F, E, D)`.
+    pub fed: (f64, f64, f64),
+    /// `(dF/dk, dE/dk, dD/dk)` at fixed `phi`.
+    pub fed_dk: (f64, f64, f64),
+}
+
+/// [`IncompleteSet`] at `(phi, k)`.
+pub fn incomplete_set(phi: f64, k: f64) -> IncompleteSet {
+    let (s, c) = phi.sin_cos();
+    let delta = (1.0 - k * k * s * s).sqrt();
+    let fed = fed_sc(s, c, k);
+    let (fk, ek) = dk_sc(phi, s, c, delta, k, (fed.0, fed.1));
+    let dk = d_dk_sc(phi, s, c, delta, k, fed);
+    IncompleteSet {
+        sin: s,
+        cos: c,
+        delta,
+        fed,
+        fed_dk: (fk, ek, dk),
+    }
 }
 
 #[cfg(test)]
@@ -359,6 +414,31 @@ mod tests {
             let h = 1e-6;
             let num = (incomplete_fed(0.7, k + h).2 - incomplete_fed(0.7, k - h).2) / (2.0 * h);
             assert!((incomplete_d_dk(0.7, k, incomplete_fed(0.7, k)) - num).abs() < 1e-8);
+        }
+    }
+
+    #[test]
+    fn one_phase_set_agrees_with_the_separate_functions() {
+        for &k in &[5e-4, 0.05, 0.4, 0.8, 0.97] {
+            for &phi in &[-1.5, -0.6, 0.0, 0.3, 1.2] {
+                let set = incomplete_set(phi, k);
+                let fed = incomplete_fed(phi, k);
+                assert_eq!(set.fed, fed);
+                let (fk, ek) = incomplete_dk(phi, k, (fed.0, fed.1));
+                assert_eq!(set.fed_dk, (fk, ek, incomplete_d_dk(phi, k, fed)));
+                assert_eq!((set.sin, set.cos), phi.sin_cos());
+            }
+            // The complete D'(k) is the incomplete one at pi/2 (cos pi/2 rounds to 6e-17).
+            let ked = complete3(k);
+            let at_quarter = incomplete_d_dk(FRAC_PI_2, k, ked);
+            let d = complete_d_dk(k, ked);
+            assert!(
+                (d - at_quarter).abs() <= 1e-14 * d.abs(),
+                "k {k}: {d} vs {at_quarter}"
+            );
+            let h = 1e-6;
+            let num = (complete3(k + h).2 - complete3(k - h).2) / (2.0 * h);
+            assert!((d - num).abs() < 1e-6 * d.abs(), "k {k}: {d} vs {num}");
         }
     }
 
