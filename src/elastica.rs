@@ -1165,12 +1165,15 @@ impl Path {
                             (0, f64::NEG_INFINITY),
                             |acc, (i, &v)| if v > acc.1 { (i, v) } else { acc },
                         );
-                if imax == N {
-                    return None;
-                }
+                // Refine around the largest sample; a peak just short of the limit shows as
+                // the last sample being largest, so refine there too and keep an interior
+                // maximum only.
                 let lo = ks_list[imax.saturating_sub(1)];
                 let hi = ks_list[(imax + 1).min(N)];
                 let k = golden_max(lo, hi, |k| pick(&line_d(D::c(k), gap)));
+                if k >= kl - 1e-9 * kl || pick(&line_d(D::c(k), gap)) <= vals[N] {
+                    return None;
+                }
                 Some(line_d(D::c(k), gap).stroke.v.max(ds))
             };
             Peaks {
@@ -1576,10 +1579,18 @@ impl Path {
             wp * self.scale_force,
             wf * self.scale_force,
         );
-        let point_end = self
-            .line_onset
-            .map(|(_, d)| d)
-            .unwrap_or(self.limit().stroke);
+        let point_end = match self.line_onset {
+            Some((_, ds)) => ds,
+            None => {
+                // Without line contact the contact force can peak before the limit (g/L
+                // above about 0.32): a contact value is then first reached before the peak.
+                let limit = self.limit().stroke;
+                match self.peaks().contact {
+                    Some(peak) if wf != 0.0 && peak < limit => peak,
+                    _ => limit,
+                }
+            }
+        };
         let m_end = match self.line_onset {
             Some((ks, ds)) => measure(&self.line_state(ks, ds)),
             None => measure(&self.state(point_end)),
@@ -1600,14 +1611,40 @@ impl Path {
             } else {
                 self.point_guess(guess_stroke, false)
             };
-            let solved = self
+            // A solution counts only on the branch: plate phase between 0 and -pi/2, stroke
+            // within the point phase (the measure can dip after first contact, and the
+            // two-equation solve can then land on the family's unphysical extension).
+            let on_branch = |(k, phi0): (f64, f64)| {
+                let stroke = point_d(D::c(k), D::c(phi0)).stroke.v;
+                let slack = 1e-12 * (1.0 + point_end);
+                let ok = (-FRAC_PI_2 - 1e-9..=1e-9).contains(&phi0)
+                    && stroke >= d1 - slack
+                    && stroke <= point_end + slack;
+                ok.then_some(stroke.clamp(d1, point_end))
+            };
+            let direct = self
                 .solve_point(goal, first_guess)
+                .and_then(on_branch)
                 .or_else(|| {
                     self.point_at(guess_stroke)
                         .and_then(|guess| self.solve_point(goal, guess))
-                })
-                .or_else(|| self.march_point(goal, guess_stroke))?;
-            let stroke = point_d(D::c(solved.0), D::c(solved.1)).stroke.v;
+                        .and_then(on_branch)
+                });
+            let stroke = match direct {
+                Some(stroke) => stroke,
+                // Fallback: the measure along the branch, by stroke, with roots' Brent
+                // method (one crossing: below the value at first contact, at or above it
+                // at the end of the phase).
+                None => {
+                    let along = |stroke: f64| measure(&self.state(stroke)) - value;
+                    let mut brent = BrentSettled {
+                        y_scale: value.abs().max(f64::MIN_POSITIVE),
+                    };
+                    roots::find_root_brent(d1, point_end, along, &mut brent)
+                        .ok()
+                        .filter(|s| s.is_finite())?
+                }
+            };
             return (stroke <= self.limit().stroke).then_some(stroke);
         }
         let (ks, _) = self.line_onset?;
@@ -1618,15 +1655,54 @@ impl Path {
             let m = sk * q.kappa + sp * q.axial + sf * q.contact;
             (m.v - value, m.d[0])
         };
+        let at_onset = m_end - value;
         let at_limit = eval_line(kl).0;
-        if at_limit < 0.0 {
+        let (lo, hi, at_lo, at_hi) = if at_limit >= 0.0 {
+            (ks, kl, at_onset, at_limit)
+        } else {
+            self.first_crossing_in_line(ks, kl, at_onset, |k| eval_line(k).0)?
+        };
+        // Straight-line seed between the bracket's ends (below and at or above the value).
+        let seed = lo + (hi - lo) * at_lo / (at_lo - at_hi);
+        let k = inverse_query(lo, hi, seed, value, eval_line)?;
+        Some(line_d(D::c(k), gap).stroke.v.min(self.limit().stroke))
+    }
+
+    /// A bracket `(lo, hi, f(lo), f(hi))` in line contact around the first modulus where `f`
+    /// reaches zero, when `f` falls short at the limit `kl`: a measure such as the contact
+    /// force can peak inside line contact (at large gaps) and fall back. Scans, and refines
+    /// the largest sample by golden section so that a narrow peak is not missed. `None`
+    /// when `f` stays below zero all the way.
+    fn first_crossing_in_line(
+        &self,
+        ks: f64,
+        kl: f64,
+        at_onset: f64,
+        f: impl Fn(f64) -> f64,
+    ) -> Option<(f64, f64, f64, f64)> {
+        const SAMPLES: usize = 24;
+        let mut prev = (ks, at_onset);
+        let mut best = prev;
+        for i in 1..SAMPLES {
+            let k = ks + (kl - ks) * i as f64 / SAMPLES as f64;
+            let v = f(k);
+            if v >= 0.0 {
+                return Some((prev.0, k, prev.1, v));
+            }
+            if v > best.1 {
+                best = (k, v);
+            }
+            prev = (k, v);
+        }
+        let step = (kl - ks) / SAMPLES as f64;
+        let (a, b) = ((best.0 - step).max(ks), (best.0 + step).min(kl));
+        let k_peak = golden_max(a, b, &f);
+        let at_peak = f(k_peak);
+        if at_peak < 0.0 {
             return None;
         }
-        // Straight-line seed between the onset (below the value, checked above) and the limit.
-        let at_onset = m_end - value;
-        let seed = ks + (kl - ks) * at_onset / (at_onset - at_limit);
-        let k = inverse_query(ks, kl, seed, value, eval_line)?;
-        Some(line_d(D::c(k), gap).stroke.v.min(self.limit().stroke))
+        let below = (a, f(a));
+        Some((below.0, k_peak, below.1, at_peak))
     }
 
     /// Points `(x, y)` along the whole strip (nondimensional; `x` from the first plate,

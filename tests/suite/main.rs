@@ -6,6 +6,7 @@ mod design_file;
 mod elastica_reference;
 mod elliptic_reference;
 mod hostile;
+mod inverse_queries;
 mod segment_model;
 mod sheet;
 mod small_gap;
