@@ -1815,6 +1815,20 @@ mod tests {
         assert!(margin(0.19) > 0.0 && margin(0.2) < 0.0);
     }
 
+    /// Newton-Raphson from a poor seed on `atan` overshoots out of the bracket (it diverges
+    /// from |x - root| > 1.39); the query must then fall back to Brent on the bracket.
+    #[test]
+    fn inverse_query_falls_back_to_brent_when_newton_leaves_the_bracket() {
+        let f = |x: f64| ((x - 0.25).atan(), 1.0 / (1.0 + (x - 0.25).powi(2)));
+        let root = inverse_query(-5.0, 5.0, -2.0, 1.0, f).unwrap();
+        assert!((root - 0.25).abs() < 1e-14, "{root}");
+        // From a good seed Newton itself settles, to rounding.
+        let root = inverse_query(-5.0, 5.0, 0.5, 1.0, f).unwrap();
+        assert!((root - 0.25).abs() < 1e-15, "{root}");
+        // No sign change: nothing.
+        assert!(inverse_query(1.0, 5.0, 2.0, 1.0, f).is_none());
+    }
+
     /// Strokes carried to a Newton root agree with a fresh evaluation there.
     #[test]
     fn carried_strokes_match_fresh_evaluations() {
