@@ -634,6 +634,8 @@ pub fn max_line_contact_gap() -> f64 {
 struct BranchTable {
     u: Vec<f64>,
     ratio: Vec<f64>,
+    /// Contact force over its value at line-contact onset (rises from 0 to 1 along `w`).
+    contact: Vec<f64>,
 }
 
 impl BranchTable {
@@ -644,6 +646,7 @@ impl BranchTable {
     fn build() -> BranchTable {
         let mut u = vec![0.0; Self::GAPS * Self::WS];
         let mut ratio = vec![1.0; Self::GAPS * Self::WS];
+        let mut contact = vec![f64::NAN; Self::GAPS * Self::WS];
         for i in 0..Self::GAPS {
             // The first row stands for the small-gap limit (g^2 = 1e-8 of the scale).
             let gap = (Self::G_MAX * i as f64 / (Self::GAPS - 1) as f64).max(1e-4);
@@ -654,6 +657,7 @@ impl BranchTable {
                 continue;
             };
             let row = i * Self::WS;
+            let f_onset = line_d(D::c(ks), gap).contact.v;
             let fitted = |t: f64| {
                 let u = 1.0 - (1.0 - t) * (1.0 - t);
                 let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
@@ -682,10 +686,77 @@ impl BranchTable {
                 };
                 u[row + j] = phi0 / -FRAC_PI_2;
                 ratio[row + j] = k / k1;
+                contact[row + j] = match j {
+                    0 => 0.0,
+                    _ if j == Self::WS - 1 => 1.0,
+                    _ => point_d(D::c(k), D::c(phi0)).contact.v / f_onset,
+                };
                 prev = [prev[1], (k, phi0)];
             }
         }
-        BranchTable { u, ratio }
+        BranchTable { u, ratio, contact }
+    }
+
+    /// Seed `(u, k / k1)` where the contact force is the fraction `r` of its value at
+    /// line-contact onset, `None` beyond the table: the contact column, interpolated to
+    /// the gap, is inverted for `w` (it rises along the branch), then [`BranchTable::seed`].
+    fn seed_for_contact(&self, gap: f64, r: f64) -> Option<(f64, f64)> {
+        if !(gap > 0.0 && gap <= Self::G_MAX && (0.0..=1.0).contains(&r)) {
+            return None;
+        }
+        let x = gap / Self::G_MAX * (Self::GAPS - 1) as f64;
+        let (i0, wx) = lagrange4(x, Self::GAPS);
+        // The contact column at this gap, node by node.
+        let column = |j: usize| -> f64 {
+            wx.iter()
+                .enumerate()
+                .map(|(a, wa)| wa * self.contact[(i0 + a) * Self::WS + j])
+                .sum()
+        };
+        // Nodes around r by bisection (0 at the first node, 1 at the last) ...
+        let (mut a, mut b) = (0, Self::WS - 1);
+        while b - a > 1 {
+            let m = (a + b) / 2;
+            if column(m) < r {
+                a = m;
+            } else {
+                b = m;
+            }
+        }
+        // ... then the local cubic through four nodes, inverted by regula falsi (Illinois).
+        let j0 = a.saturating_sub(1).min(Self::WS - 4);
+        let c: [f64; 4] = std::array::from_fn(|m| column(j0 + m));
+        if !c.iter().all(|v| v.is_finite()) {
+            return None;
+        }
+        let at = |y: f64| -> f64 {
+            let w = lagrange4_weights(y - j0 as f64);
+            (0..4).map(|m| w[m] * c[m]).sum::<f64>() - r
+        };
+        let (mut lo, mut hi) = (a as f64, b as f64);
+        let (mut f_lo, mut f_hi) = (at(lo), at(hi));
+        let mut y = lo;
+        for _ in 0..30 {
+            if f_hi == f_lo {
+                break;
+            }
+            y = hi - f_hi * (hi - lo) / (f_hi - f_lo);
+            let f = at(y);
+            if f.abs() <= 1e-13 || !f.is_finite() {
+                break;
+            }
+            if (f < 0.0) == (f_lo < 0.0) {
+                lo = y;
+                f_lo = f;
+                f_hi *= 0.5;
+            } else {
+                hi = y;
+                f_hi = f;
+                f_lo *= 0.5;
+            }
+        }
+        let w = y.clamp(a as f64, b as f64) / (Self::WS - 1) as f64;
+        self.seed(gap, w * w)
     }
 
     /// Seed `(u, k / k1)` at gap `gap` and stroke fraction `t`, `None` beyond the table.
@@ -712,15 +783,18 @@ impl BranchTable {
 /// First index and weights of 4-point Lagrange interpolation at `x` on the grid `0..n`.
 fn lagrange4(x: f64, n: usize) -> (usize, [f64; 4]) {
     let i0 = (x.floor() as isize - 1).clamp(0, n as isize - 4) as usize;
-    let mut w = [1.0; 4];
-    for (j, wj) in w.iter_mut().enumerate() {
-        for m in 0..4 {
-            if m != j {
-                *wj *= (x - (i0 + m) as f64) / (j as f64 - m as f64);
-            }
-        }
-    }
-    (i0, w)
+    (i0, lagrange4_weights(x - i0 as f64))
+}
+
+/// Weights of the cubic through the nodes 0, 1, 2, 3 at `x`.
+fn lagrange4_weights(x: f64) -> [f64; 4] {
+    let (a, b, c, d) = (x, x - 1.0, x - 2.0, x - 3.0);
+    [
+        -b * c * d / 6.0,
+        a * c * d / 2.0,
+        -a * b * d / 2.0,
+        a * b * c / 6.0,
+    ]
 }
 
 fn branch_table() -> &'static BranchTable {
@@ -1383,8 +1457,9 @@ impl Path {
         None
     }
 
-    /// Guess for `(k, phi0)` at a point-contact stroke: `phi0` from a shape fitted to the
-    /// branch between its ends, and `k` from a fitted dip between the end moduli
+    /// Guess for `(k, phi0)` at a point-contact stroke: from the branch table, or beyond it
+    /// `phi0` from a shape fitted to the branch between its ends, and `k` from a fitted dip
+    /// between the end moduli
     /// (`(k - ks)/(k1 - ks) = (1-u)^3 - 0.68 u (1-u)` with `u = phi0 / (-pi/2)`, fitted to
     /// solved branches from g/L = 0.05 to 0.2), or from the gap equation when `refine`.
     fn point_guess(&self, stroke: f64, refine: bool) -> (f64, f64) {
@@ -1419,12 +1494,15 @@ impl Path {
     }
 
     /// Guess for `(k, phi0)` where the contact force is the fraction `r` of its value at
-    /// line-contact onset: along solved branches `F / F_onset` is close to
-    /// `u (0.63 + 0.37 u)` with `u = phi0 / (-pi/2)`, inverted here.
+    /// line-contact onset: from the branch table, or beyond it from the fit
+    /// `F / F_onset = u (0.63 + 0.37 u)` with `u = phi0 / (-pi/2)`, inverted.
     fn point_guess_contact(&self, r: f64) -> Option<(f64, f64)> {
         let (k1, _) = self.first_contact?;
         let (ks, _) = self.line_onset?;
         let r = r.clamp(0.0, 1.0);
+        if let Some((u, ratio)) = branch_table().seed_for_contact(self.gap, r) {
+            return Some((k1 * ratio, -FRAC_PI_2 * u));
+        }
         let u = ((0.3969 + 1.48 * r).sqrt() - 0.63) / 0.74;
         let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
         Some((ks + (k1 - ks) * f, -FRAC_PI_2 * u))
@@ -1726,8 +1804,8 @@ impl Path {
             // A solution counts only on the branch: plate phase between 0 and -pi/2, stroke
             // within the point phase (the measure can dip after first contact, and the
             // two-equation solve can then land on the family's unphysical extension).
-            let on_branch = |(k, phi0): (f64, f64)| {
-                let stroke = point_d(D::c(k), D::c(phi0)).stroke.v;
+            let on_branch = |(_, phi0, q): (f64, f64, PointQ)| {
+                let stroke = q.stroke.v;
                 let slack = 1e-12 * (1.0 + point_end);
                 let ok = (-FRAC_PI_2 - 1e-9..=1e-9).contains(&phi0)
                     && stroke >= d1 - slack
@@ -1735,11 +1813,11 @@ impl Path {
                 ok.then_some(stroke.clamp(d1, point_end))
             };
             let direct = self
-                .solve_point(goal, first_guess)
+                .solve_point_q(goal, first_guess)
                 .and_then(on_branch)
                 .or_else(|| {
                     self.point_at(guess_stroke)
-                        .and_then(|guess| self.solve_point(goal, guess))
+                        .and_then(|guess| self.solve_point_q(goal, guess))
                         .and_then(on_branch)
                 });
             let stroke = match direct {
@@ -1962,6 +2040,27 @@ mod tests {
         assert!(
             worst_u < 1.5e-4 && worst_k < 1.5e-4,
             "u {worst_u:e}, k {worst_k:e}"
+        );
+        // Seeds by contact-force fraction, against the solved state at that force.
+        let (mut worst_u, mut worst_k) = (0.0_f64, 0.0_f64);
+        for i in 0..23 {
+            let gap = 0.004 + 0.29 * i as f64 / 22.0;
+            let path = Path::new(Ends::Clamped, gap).unwrap();
+            let (k1, _) = path.first_contact.unwrap();
+            let (ks, _) = path.line_onset.unwrap();
+            let f_onset = line_d(D::c(ks), gap).contact.v;
+            for j in 1..20 {
+                let r = j as f64 / 20.0;
+                let stroke = path.stroke_for_contact(r * f_onset).unwrap();
+                let s = path.state(stroke);
+                let (u, ratio) = branch_table().seed_for_contact(gap, r).unwrap();
+                worst_u = worst_u.max((u - s.phi0 / -FRAC_PI_2).abs());
+                worst_k = worst_k.max((ratio * k1 / s.k - 1.0).abs());
+            }
+        }
+        assert!(
+            worst_u < 1.5e-4 && worst_k < 1.5e-4,
+            "by contact: u {worst_u:e}, k {worst_k:e}"
         );
         assert!(branch_table().seed(0.31, 0.5).is_none());
     }
