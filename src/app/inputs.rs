@@ -14,6 +14,7 @@ use crate::design::{self, Actuator, Design, Ends, MaterialChoice, PipeRef, Stiff
 use crate::{friction, material, pipe};
 
 /// One numeric row: what it edits and how its slider behaves.
+#[derive(Clone, Copy)]
 struct Row<'a> {
     /// Field path in the design file (for the limit table) or a key of the app's own.
     key: &'static str,
@@ -56,6 +57,76 @@ impl<'a> Row<'a> {
     }
 }
 
+/// Where a row's number lives in the design; `None` when the design has no such number
+/// (another actuator kind, a material from the table, a bore given as a pipe size).
+type Field = fn(&mut Design) -> Option<&mut f64>;
+
+/// The custom material's numbers: modulus, Poisson's ratio, tensile, yield and endurance
+/// strength.
+type CustomNumbers<'d> = (
+    &'d mut f64,
+    &'d mut f64,
+    &'d mut f64,
+    &'d mut f64,
+    &'d mut f64,
+);
+
+fn custom_numbers(d: &mut Design) -> Option<CustomNumbers<'_>> {
+    match &mut d.strip.material {
+        MaterialChoice::Custom {
+            youngs_modulus_gpa,
+            poisson_ratio,
+            tensile_strength_mpa,
+            yield_strength_mpa,
+            endurance_limit_mpa,
+            ..
+        } => Some((
+            youngs_modulus_gpa,
+            poisson_ratio,
+            tensile_strength_mpa,
+            yield_strength_mpa,
+            endurance_limit_mpa,
+        )),
+        MaterialChoice::Grade(_) => None,
+    }
+}
+
+/// The direct pull's numbers: maximum force and maximum stroke.
+fn direct(d: &mut Design) -> Option<(&mut f64, &mut f64)> {
+    match &mut d.actuator {
+        Actuator::Direct {
+            max_force_n,
+            max_stroke_mm,
+        } => Some((max_force_n, max_stroke_mm)),
+        _ => None,
+    }
+}
+
+/// The spool's numbers: radius, maximum torque and maximum angle.
+fn spool(d: &mut Design) -> Option<(&mut f64, &mut f64, &mut f64)> {
+    match &mut d.actuator {
+        Actuator::Spool {
+            radius_mm,
+            max_torque_nm,
+            max_angle_deg,
+        } => Some((radius_mm, max_torque_nm, max_angle_deg)),
+        _ => None,
+    }
+}
+
+/// The lead screw's numbers: lead, efficiency, maximum torque and maximum turns.
+fn lead_screw(d: &mut Design) -> Option<(&mut f64, &mut f64, &mut f64, &mut f64)> {
+    match &mut d.actuator {
+        Actuator::LeadScrew {
+            lead_mm,
+            efficiency,
+            max_torque_nm,
+            max_turns,
+        } => Some((lead_mm, efficiency, max_torque_nm, max_turns)),
+        _ => None,
+    }
+}
+
 /// Typed text in a field, kept while it differs from the design (being typed, or refused).
 #[derive(Clone, Debug)]
 struct Typed {
@@ -90,6 +161,35 @@ pub fn fmt_value(v: f64) -> String {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
         s
+    }
+}
+
+/// Width of the label column of the numeric rows, points.
+const LABEL_WIDTH: f32 = 118.0;
+
+/// A range bound: plainly, or as a power of ten once it is large.
+fn fmt_bound(v: f64) -> String {
+    if v.abs() >= 1e6 {
+        format!("{v:e}")
+    } else {
+        fmt_value(v)
+    }
+}
+
+/// The plausible range of a field for this design, in words that say which ends are
+/// allowed: "0.02 to 5 mm", "more than 0 and less than 1e9 N".
+fn allowed(l: &design::FieldLimit, d: &Design) -> String {
+    let (lo, hi) = (fmt_bound(l.min), fmt_bound(l.max_for(d)));
+    let range = match (l.min_excluded, l.max_excluded) {
+        (false, false) => format!("{lo} to {hi}"),
+        (true, false) => format!("more than {lo}, up to {hi}"),
+        (false, true) => format!("from {lo}, less than {hi}"),
+        (true, true) => format!("more than {lo} and less than {hi}"),
+    };
+    if l.unit.is_empty() {
+        range
+    } else {
+        format!("{range} {}", l.unit)
     }
 }
 
@@ -152,16 +252,21 @@ impl InputsPanel {
     ) {
         let limit = design::limit(row.key);
         let tip = match limit {
-            Some(l) => format!(
-                "{}\nAllowed: {} to {} {}",
-                row.tip,
-                fmt_value(l.min),
-                fmt_value(l.max_for(d)),
-                l.unit
-            ),
+            Some(l) => format!("{}\nAllowed: {}", row.tip, allowed(l, d)),
             None => row.tip.to_string(),
         };
-        let label = ui.label(row.label).on_hover_text(&tip);
+        // One label width in every section, so the sliders and fields line up down the panel.
+        let label = ui
+            .allocate_ui_with_layout(
+                egui::vec2(LABEL_WIDTH, ui.spacing().interact_size.y),
+                egui::Layout::left_to_right(egui::Align::Center),
+                |ui| {
+                    ui.set_min_width(LABEL_WIDTH);
+                    ui.label(row.label)
+                },
+            )
+            .inner
+            .on_hover_text(&tip);
         // Slider.
         let mut v = value;
         let mut slider = egui::Slider::new(&mut v, row.lo..=row.hi)
@@ -220,14 +325,7 @@ impl InputsPanel {
                 }
                 Err(_) => {
                     let allowed = limit
-                        .map(|l| {
-                            format!(
-                                "; allowed {} to {} {}",
-                                fmt_value(l.min),
-                                fmt_value(l.max_for(d)),
-                                l.unit
-                            )
-                        })
+                        .map(|l| format!("; allowed {}", allowed(l, d)))
                         .unwrap_or_default();
                     self.errors.insert(
                         row.key,
@@ -241,7 +339,11 @@ impl InputsPanel {
             out.push(Command::EndGesture);
             self.active = None;
         }
-        ui.label(row.unit);
+        if row.unit.is_empty() {
+            ui.label("–").on_hover_text("A pure number, without unit.");
+        } else {
+            ui.label(row.unit);
+        }
         ui.end_row();
         if let Some(err) = self.errors.get(row.key) {
             ui.label("");
@@ -251,6 +353,21 @@ impl InputsPanel {
                     .small(),
             );
             ui.end_row();
+        }
+    }
+
+    /// Rows of plain numbers: each row whose field the design has, in order.
+    fn rows(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>, rows: &[(Row<'_>, Field)]) {
+        let mut probe = d.clone();
+        for &(row, field) in rows {
+            let Some(value) = field(&mut probe).map(|v| *v) else {
+                continue;
+            };
+            self.row(ui, d, row, value, out, move |d, v| {
+                if let Some(f) = field(d) {
+                    *f = v;
+                }
+            });
         }
     }
 
@@ -316,7 +433,7 @@ impl InputsPanel {
                 Row::new(
                     "strip.count",
                     "Strips",
-                    "",
+                    "strips",
                     2.0,
                     64.0,
                     "Number of identical strips around the hub; they share the load equally.",
@@ -326,39 +443,13 @@ impl InputsPanel {
                 out,
                 |d, v| d.strip.count = v.clamp(0.0, f64::from(u32::MAX)) as u32,
             );
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "strip.free_length_mm",
-                    "Free length",
-                    "mm",
-                    5.0,
-                    1000.0,
-                    "Strip length between the end-plate clamps or hinges.",
-                )
-                .log(),
-                s.free_length_mm,
-                out,
-                |d, v| d.strip.free_length_mm = v,
-            );
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "strip.width_mm",
-                    "Width",
-                    "mm",
-                    0.2,
-                    100.0,
-                    "Strip width, tangential to the hub.",
-                )
-                .log(),
-                s.width_mm,
-                out,
-                |d, v| d.strip.width_mm = v,
-            );
-            self.row(ui, d, Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 3.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), s.thickness_mm, out, |d, v| d.strip.thickness_mm = v);
+            #[rustfmt::skip]
+            let rows: &[(Row<'_>, Field)] = &[
+                (Row::new("strip.free_length_mm", "Free length", "mm", 5.0, 1000.0, "Strip length between the end-plate clamps or hinges.").log(), |d| Some(&mut d.strip.free_length_mm)),
+                (Row::new("strip.width_mm", "Width", "mm", 0.2, 100.0, "Strip width, tangential to the hub.").log(), |d| Some(&mut d.strip.width_mm)),
+                (Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 3.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), |d| Some(&mut d.strip.thickness_mm)),
+            ];
+            self.rows(ui, d, out, rows);
         });
         // Material.
         ui.horizontal(|ui| {
@@ -442,14 +533,7 @@ impl InputsPanel {
                     ));
                 }
             }
-            MaterialChoice::Custom {
-                name,
-                youngs_modulus_gpa,
-                poisson_ratio,
-                tensile_strength_mpa,
-                yield_strength_mpa,
-                endurance_limit_mpa,
-            } => {
+            MaterialChoice::Custom { name, .. } => {
                 ui.horizontal(|ui| {
                     let label = ui.label("Name");
                     let mut n = name.clone();
@@ -474,107 +558,16 @@ impl InputsPanel {
                 if let Some(e) = self.errors.get("strip.material.name") {
                     ui.label(RichText::new(e).color(error_color(ui)).small());
                 }
-                fn custom(
-                    d: &mut Design,
-                    f: impl FnOnce(&mut f64, &mut f64, &mut f64, &mut f64, &mut f64),
-                ) {
-                    if let MaterialChoice::Custom {
-                        youngs_modulus_gpa,
-                        poisson_ratio,
-                        tensile_strength_mpa,
-                        yield_strength_mpa,
-                        endurance_limit_mpa,
-                        ..
-                    } = &mut d.strip.material
-                    {
-                        f(
-                            youngs_modulus_gpa,
-                            poisson_ratio,
-                            tensile_strength_mpa,
-                            yield_strength_mpa,
-                            endurance_limit_mpa,
-                        );
-                    }
-                }
                 grid(ui, "custom-material", |ui| {
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "strip.material.youngs_modulus_gpa",
-                            "Young's modulus",
-                            "GPa",
-                            10.0,
-                            500.0,
-                            "Elastic modulus of the strip material.",
-                        ),
-                        *youngs_modulus_gpa,
-                        out,
-                        |d, v| custom(d, |e, _, _, _, _| *e = v),
-                    );
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "strip.material.poisson_ratio",
-                            "Poisson's ratio",
-                            "",
-                            0.0,
-                            0.5,
-                            "Used by the plate stiffness E/(1-nu^2).",
-                        ),
-                        *poisson_ratio,
-                        out,
-                        |d, v| custom(d, |_, n, _, _, _| *n = v),
-                    );
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "strip.material.tensile_strength_mpa",
-                            "Tensile strength",
-                            "MPa",
-                            1.0,
-                            5000.0,
-                            "Ultimate tensile strength; 0.75 of it is the static allowable.",
-                        )
-                        .log(),
-                        *tensile_strength_mpa,
-                        out,
-                        |d, v| custom(d, |_, _, t, _, _| *t = v),
-                    );
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "strip.material.yield_strength_mpa",
-                            "Yield strength",
-                            "MPa",
-                            1.0,
-                            5000.0,
-                            "Yield strength; must not exceed the tensile strength.",
-                        )
-                        .log(),
-                        *yield_strength_mpa,
-                        out,
-                        |d, v| custom(d, |_, _, _, y, _| *y = v),
-                    );
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "strip.material.endurance_limit_mpa",
-                            "Endurance strength",
-                            "MPa",
-                            1.0,
-                            5000.0,
-                            "Fully reversed endurance strength at 10^6 cycles and beyond.",
-                        )
-                        .log(),
-                        *endurance_limit_mpa,
-                        out,
-                        |d, v| custom(d, |_, _, _, _, e| *e = v),
-                    );
+                    #[rustfmt::skip]
+                    let rows: &[(Row<'_>, Field)] = &[
+                        (Row::new("strip.material.youngs_modulus_gpa", "Young's modulus", "GPa", 10.0, 500.0, "Elastic modulus of the strip material."), |d| custom_numbers(d).map(|m| m.0)),
+                        (Row::new("strip.material.poisson_ratio", "Poisson's ratio", "", 0.0, 0.5, "Used by the plate stiffness E/(1-nu^2)."), |d| custom_numbers(d).map(|m| m.1)),
+                        (Row::new("strip.material.tensile_strength_mpa", "Tensile strength", "MPa", 1.0, 5000.0, "Ultimate tensile strength; 0.75 of it is the static allowable.").log(), |d| custom_numbers(d).map(|m| m.2)),
+                        (Row::new("strip.material.yield_strength_mpa", "Yield strength", "MPa", 1.0, 5000.0, "Yield strength; must not exceed the tensile strength.").log(), |d| custom_numbers(d).map(|m| m.3)),
+                        (Row::new("strip.material.endurance_limit_mpa", "Endurance strength", "MPa", 1.0, 5000.0, "Fully reversed endurance strength at 10^6 cycles and beyond.").log(), |d| custom_numbers(d).map(|m| m.4)),
+                    ];
+                    self.rows(ui, d, out, rows);
                 });
             }
         }
@@ -637,35 +630,34 @@ impl InputsPanel {
 
     fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
         grid(ui, "hub", |ui| {
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "mount_radius_mm",
-                    "Mount radius",
-                    "mm",
-                    0.5,
-                    1000.0,
-                    "Radius of the strip centreline at the end plates.",
-                )
-                .log(),
-                d.mount_radius_mm,
-                out,
-                |d, v| d.mount_radius_mm = v,
-            );
-            self.row(ui, d, Row::new("end_plate_diameter_mm", "End-plate diameter", "mm", 0.0, 2000.0, "Outside diameter of the end plates; 0 when they are smaller than the strip ring.").log(), d.end_plate_diameter_mm, out, |d, v| d.end_plate_diameter_mm = v);
+            #[rustfmt::skip]
+            let rows: &[(Row<'_>, Field)] = &[
+                (Row::new("mount_radius_mm", "Mount radius", "mm", 0.5, 1000.0, "Radius of the strip centreline at the end plates.").log(), |d| Some(&mut d.mount_radius_mm)),
+                (Row::new("end_plate_diameter_mm", "End-plate diameter", "mm", 0.0, 2000.0, "Outside diameter of the end plates; 0 when they are smaller than the strip ring.").log(), |d| Some(&mut d.end_plate_diameter_mm)),
+            ];
+            self.rows(ui, d, out, rows);
         });
         let as_pipe = d.bore.pipe.is_some();
         ui.horizontal(|ui| {
             ui.label("Bore given as").on_hover_text("A diameter you type, or a pipe's inside diameter (OD - 2 x nominal wall, ASME B36.10M).");
-            if ui.radio(!as_pipe, "Diameter").clicked() && as_pipe {
+            if ui
+                .radio(!as_pipe, "Diameter")
+                .on_hover_text("Type the nominal bore diameter in mm.")
+                .clicked()
+                && as_pipe
+            {
                 let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
                 Self::choice(out, d, |n| {
                     n.bore.pipe = None;
                     n.bore.diameter_mm = nominal;
                 });
             }
-            if ui.radio(as_pipe, "Pipe size").clicked() && !as_pipe {
+            if ui
+                .radio(as_pipe, "Pipe size")
+                .on_hover_text("Pick an NPS and schedule; the nearest pipe to the typed bore is offered first.")
+                .clicked()
+                && !as_pipe
+            {
                 // Nearest pipe by inside diameter.
                 let want = d.bore.diameter_mm;
                 let nearest = pipe::table().iter().min_by(|a, b| (a.inside_diameter_mm() - want).abs().total_cmp(&(b.inside_diameter_mm() - want).abs()));
@@ -743,28 +735,15 @@ impl InputsPanel {
             }
         }
         let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
+        let tol_hi = (0.25 * nominal).min(10.0);
         grid(ui, "bore", |ui| {
-            if !as_pipe {
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "bore.diameter_mm",
-                        "Bore diameter",
-                        "mm",
-                        2.0,
-                        2000.0,
-                        "Nominal inside diameter the segment grips.",
-                    )
-                    .log(),
-                    d.bore.diameter_mm,
-                    out,
-                    |d, v| d.bore.diameter_mm = v,
-                );
-            }
-            let tol_hi = (0.25 * nominal).min(10.0);
-            self.row(ui, d, Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore."), d.bore.minus_mm, out, |d, v| d.bore.minus_mm = v);
-            self.row(ui, d, Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore."), d.bore.plus_mm, out, |d, v| d.bore.plus_mm = v);
+            #[rustfmt::skip]
+            let rows: &[(Row<'_>, Field)] = &[
+                (Row::new("bore.diameter_mm", "Bore diameter", "mm", 2.0, 2000.0, "Nominal inside diameter the segment grips.").log(), |d| d.bore.pipe.is_none().then_some(&mut d.bore.diameter_mm)),
+                (Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore."), |d| Some(&mut d.bore.minus_mm)),
+                (Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore."), |d| Some(&mut d.bore.plus_mm)),
+            ];
+            self.rows(ui, d, out, rows);
         });
     }
 
@@ -832,205 +811,20 @@ impl InputsPanel {
                 }
             }
         });
-        grid(ui, "actuator", |ui| match &d.actuator {
-            Actuator::Direct {
-                max_force_n,
-                max_stroke_mm,
-            } => {
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_force_n",
-                        "Max pull",
-                        "N",
-                        1.0,
-                        1e5,
-                        "Largest pull the actuator delivers on the plates.",
-                    )
-                    .log(),
-                    *max_force_n,
-                    out,
-                    |d, v| {
-                        if let Actuator::Direct { max_force_n, .. } = &mut d.actuator {
-                            *max_force_n = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_stroke_mm",
-                        "Max travel",
-                        "mm",
-                        0.1,
-                        500.0,
-                        "Longest travel the actuator delivers.",
-                    )
-                    .log(),
-                    *max_stroke_mm,
-                    out,
-                    |d, v| {
-                        if let Actuator::Direct { max_stroke_mm, .. } = &mut d.actuator {
-                            *max_stroke_mm = v
-                        }
-                    },
-                );
-            }
-            Actuator::Spool {
-                radius_mm,
-                max_torque_nm,
-                max_angle_deg,
-            } => {
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.radius_mm",
-                        "Spool radius",
-                        "mm",
-                        0.5,
-                        100.0,
-                        "Radius at the cord.",
-                    )
-                    .log(),
-                    *radius_mm,
-                    out,
-                    |d, v| {
-                        if let Actuator::Spool { radius_mm, .. } = &mut d.actuator {
-                            *radius_mm = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_torque_nm",
-                        "Max torque",
-                        "N m",
-                        1e-3,
-                        100.0,
-                        "Largest torque at the spool.",
-                    )
-                    .log(),
-                    *max_torque_nm,
-                    out,
-                    |d, v| {
-                        if let Actuator::Spool { max_torque_nm, .. } = &mut d.actuator {
-                            *max_torque_nm = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_angle_deg",
-                        "Max rotation",
-                        "deg",
-                        1.0,
-                        7200.0,
-                        "Largest spool rotation.",
-                    )
-                    .log(),
-                    *max_angle_deg,
-                    out,
-                    |d, v| {
-                        if let Actuator::Spool { max_angle_deg, .. } = &mut d.actuator {
-                            *max_angle_deg = v
-                        }
-                    },
-                );
-            }
-            Actuator::LeadScrew {
-                lead_mm,
-                efficiency,
-                max_torque_nm,
-                max_turns,
-            } => {
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.lead_mm",
-                        "Lead",
-                        "mm",
-                        0.1,
-                        20.0,
-                        "Advance per screw turn.",
-                    )
-                    .log(),
-                    *lead_mm,
-                    out,
-                    |d, v| {
-                        if let Actuator::LeadScrew { lead_mm, .. } = &mut d.actuator {
-                            *lead_mm = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.efficiency",
-                        "Efficiency",
-                        "",
-                        0.05,
-                        1.0,
-                        "Screw efficiency: torque = pull x lead / (2 pi x efficiency).",
-                    ),
-                    *efficiency,
-                    out,
-                    |d, v| {
-                        if let Actuator::LeadScrew { efficiency, .. } = &mut d.actuator {
-                            *efficiency = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_torque_nm",
-                        "Max torque",
-                        "N m",
-                        1e-3,
-                        100.0,
-                        "Largest torque at the screw.",
-                    )
-                    .log(),
-                    *max_torque_nm,
-                    out,
-                    |d, v| {
-                        if let Actuator::LeadScrew { max_torque_nm, .. } = &mut d.actuator {
-                            *max_torque_nm = v
-                        }
-                    },
-                );
-                self.row(
-                    ui,
-                    d,
-                    Row::new(
-                        "actuator.max_turns",
-                        "Max turns",
-                        "turns",
-                        0.1,
-                        200.0,
-                        "Largest number of screw turns.",
-                    )
-                    .log(),
-                    *max_turns,
-                    out,
-                    |d, v| {
-                        if let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator {
-                            *max_turns = v
-                        }
-                    },
-                );
-            }
-        });
+        // Only the rows of the kind chosen show.
+        #[rustfmt::skip]
+        let rows: &[(Row<'_>, Field)] = &[
+            (Row::new("actuator.max_force_n", "Max pull", "N", 1.0, 1e5, "Largest pull the actuator delivers on the plates.").log(), |d| direct(d).map(|a| a.0)),
+            (Row::new("actuator.max_stroke_mm", "Max travel", "mm", 0.1, 500.0, "Longest travel the actuator delivers.").log(), |d| direct(d).map(|a| a.1)),
+            (Row::new("actuator.radius_mm", "Spool radius", "mm", 0.5, 100.0, "Radius at the cord.").log(), |d| spool(d).map(|a| a.0)),
+            (Row::new("actuator.max_torque_nm", "Max torque", "N m", 1e-3, 100.0, "Largest torque at the spool.").log(), |d| spool(d).map(|a| a.1)),
+            (Row::new("actuator.max_angle_deg", "Max rotation", "deg", 1.0, 7200.0, "Largest spool rotation.").log(), |d| spool(d).map(|a| a.2)),
+            (Row::new("actuator.lead_mm", "Lead", "mm", 0.1, 20.0, "Advance per screw turn.").log(), |d| lead_screw(d).map(|a| a.0)),
+            (Row::new("actuator.efficiency", "Efficiency", "", 0.05, 1.0, "Screw efficiency: torque = pull x lead / (2 pi x efficiency)."), |d| lead_screw(d).map(|a| a.1)),
+            (Row::new("actuator.max_torque_nm", "Max torque", "N m", 1e-3, 100.0, "Largest torque at the screw.").log(), |d| lead_screw(d).map(|a| a.2)),
+            (Row::new("actuator.max_turns", "Max turns", "turns", 0.1, 200.0, "Largest number of screw turns.").log(), |d| lead_screw(d).map(|a| a.3)),
+        ];
+        grid(ui, "actuator", |ui| self.rows(ui, d, out, rows));
         if let Some(e) = self.errors.get("actuator") {
             ui.label(RichText::new(e).color(error_color(ui)).small());
         }
@@ -1044,59 +838,20 @@ impl InputsPanel {
 
     fn duty_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
         grid(ui, "duty", |ui| {
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "duty.holding_force_n",
-                    "Load to hold",
-                    "N",
-                    0.0,
-                    1e5,
-                    "Axial force the segment must hold in the bore.",
-                )
-                .log(),
-                d.duty.holding_force_n,
-                out,
-                |d, v| d.duty.holding_force_n = v,
-            );
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "duty.safety_factor",
-                    "Safety factor",
-                    "",
-                    1.0,
-                    10.0,
-                    "Factor on the load to hold; the holding check asks for load x factor.",
-                ),
-                d.duty.safety_factor,
-                out,
-                |d, v| d.duty.safety_factor = v,
-            );
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "friction",
-                    "Wall friction",
-                    "",
-                    0.01,
-                    1.5,
-                    "Static friction coefficient, strip on wall. Measure it when you can.",
-                ),
-                d.friction,
-                out,
-                |d, v| d.friction = v,
-            );
+            #[rustfmt::skip]
+            let rows: &[(Row<'_>, Field)] = &[
+                (Row::new("duty.holding_force_n", "Load to hold", "N", 0.0, 1e5, "Axial force the segment must hold in the bore.").log(), |d| Some(&mut d.duty.holding_force_n)),
+                (Row::new("duty.safety_factor", "Safety factor", "", 1.0, 10.0, "Factor on the load to hold; the holding check asks for load x factor."), |d| Some(&mut d.duty.safety_factor)),
+                (Row::new("friction", "Wall friction", "", 0.01, 1.5, "Static friction coefficient, strip on wall. Measure it when you can."), |d| Some(&mut d.friction)),
+            ];
+            self.rows(ui, d, out, rows);
             self.row(
                 ui,
                 d,
                 Row::new(
                     "duty.cycles",
                     "Cycles",
-                    "",
+                    "cycles",
                     1.0,
                     1e9,
                     "Grip-release cycles over the life; sets the fatigue strength.",
@@ -1169,6 +924,8 @@ impl InputsPanel {
             );
             match d.actuator {
                 Actuator::Spool { radius_mm, .. } => {
+                    let hi = (l / radius_mm).to_degrees();
+                    let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
                     self.row(
                         ui,
                         d,
@@ -1177,8 +934,8 @@ impl InputsPanel {
                             "As spool angle",
                             "deg",
                             0.0,
-                            (l / radius_mm).to_degrees(),
-                            "The operating stroke as spool rotation: stroke / radius.",
+                            hi,
+                            &tip,
                         ),
                         (d.operating_stroke_mm / radius_mm).to_degrees(),
                         out,
@@ -1186,6 +943,8 @@ impl InputsPanel {
                     );
                 }
                 Actuator::LeadScrew { lead_mm, .. } => {
+                    let hi = l / lead_mm;
+                    let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
                     self.row(
                         ui,
                         d,
@@ -1194,8 +953,8 @@ impl InputsPanel {
                             "As screw turns",
                             "turns",
                             0.0,
-                            l / lead_mm,
-                            "The operating stroke as screw turns: stroke / lead.",
+                            hi,
+                            &tip,
                         ),
                         d.operating_stroke_mm / lead_mm,
                         out,
@@ -1206,6 +965,15 @@ impl InputsPanel {
             }
         });
     }
+}
+
+/// Tooltip of the operating stroke in the actuator's own unit; its range is the operating
+/// stroke's (0 to the free length) in that unit.
+fn at_actuator_tip(what: &str, hi: f64, unit: &str) -> String {
+    format!(
+        "The operating stroke as {what}.\nAllowed: 0 to {} {unit} (the free length)",
+        fmt_value(hi)
+    )
 }
 
 fn section(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
@@ -1227,5 +995,33 @@ pub fn error_color(ui: &Ui) -> Color32 {
         Color32::from_rgb(255, 120, 110)
     } else {
         Color32::from_rgb(180, 20, 20)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn allowed_ranges_say_which_ends_are_allowed() {
+        let d = Design::default();
+        let limit = |key| design::limit(key).unwrap_or_else(|| panic!("no limit for {key}"));
+        // The design file's plausible ranges (design::limits): a closed range, an open
+        // actuator rating, and an efficiency above zero up to one.
+        assert_eq!(allowed(limit("strip.thickness_mm"), &d), "0.02 to 5 mm");
+        assert_eq!(
+            allowed(limit("actuator.max_force_n"), &d),
+            "more than 0 and less than 1e9 N"
+        );
+        assert_eq!(
+            allowed(limit("actuator.efficiency"), &d),
+            "more than 0, up to 1"
+        );
+        // The bore tolerance's upper end follows the design: a quarter of the nominal bore.
+        let nominal = d.bore.nominal_mm().unwrap_or(f64::NAN);
+        assert_eq!(
+            allowed(limit("bore.plus_mm"), &d),
+            format!("0 to {} mm", fmt_value(0.25 * nominal))
+        );
     }
 }

@@ -5,7 +5,9 @@
 //! analysis; nothing here solves.
 
 use egui::{Color32, Pos2, RichText, Stroke, Ui, Vec2};
-use egui_plot::{FilledArea, HLine, Legend, Line, LineStyle, Plot, PlotPoints, Span, VLine};
+use egui_plot::{
+    AxisHints, FilledArea, HLine, Legend, Line, LineStyle, Plot, PlotPoints, Span, VLine,
+};
 
 use super::GripApp;
 use super::export::SvgSeries;
@@ -69,67 +71,54 @@ const C_LIMIT: Color32 = Color32::from_rgb(120, 120, 120);
 const C_ACT: Color32 = Color32::from_rgb(230, 140, 20);
 const C_STEEL: Color32 = Color32::from_rgb(70, 110, 170);
 
+/// A curve's legend name, colour and value at a row (a missing value breaks the curve).
+type CurveSpec<T> = (&'static str, Color32, fn(&T) -> Option<f64>);
+
+/// A curve for each spec, sampled at `x` over `rows`.
+fn curves_of<T>(rows: &[T], x: fn(&T) -> f64, specs: &[CurveSpec<T>]) -> Vec<Curve> {
+    specs
+        .iter()
+        .map(|&(name, color, y)| {
+            Curve::from_samples(name, color, rows.iter().map(|r| (x(r), y(r))))
+        })
+        .collect()
+}
+
 /// Curves of the stroke-against-bore plot.
 pub fn window_curves(a: &Analysis) -> Vec<Curve> {
-    let w = &a.window;
-    vec![
-        Curve::from_samples(
-            "first contact",
-            C_CONTACT,
-            w.iter().map(|r| (r.bore_mm, r.first_contact_stroke_mm)),
-        ),
-        Curve::from_samples(
-            "holds load x SF",
-            C_HOLD,
-            w.iter().map(|r| (r.bore_mm, r.holding_stroke_mm)),
-        ),
-        Curve::from_samples(
-            "stress limit",
-            C_STRESS,
-            w.iter().map(|r| (r.bore_mm, r.stress_limit_stroke_mm)),
-        ),
-        Curve::from_samples(
-            "line contact begins",
-            C_LINE,
-            w.iter().map(|r| (r.bore_mm, r.line_contact_stroke_mm)),
-        ),
-        Curve::from_samples(
-            "model limit",
-            C_LIMIT,
-            w.iter().map(|r| (r.bore_mm, r.limit_stroke_mm)),
-        ),
-    ]
+    curves_of(
+        &a.window,
+        |r| r.bore_mm,
+        &[
+            ("first contact", C_CONTACT, |r| r.first_contact_stroke_mm),
+            ("holds load x SF", C_HOLD, |r| r.holding_stroke_mm),
+            ("stress limit", C_STRESS, |r| r.stress_limit_stroke_mm),
+            ("line contact begins", C_LINE, |r| r.line_contact_stroke_mm),
+            ("model limit", C_LIMIT, |r| r.limit_stroke_mm),
+        ],
+    )
 }
 
 /// Curves of the force plot.
 pub fn force_curves(a: &Analysis) -> Vec<Curve> {
-    let c = &a.curve;
-    vec![
-        Curve::from_samples(
-            "radial force",
-            C_CONTACT,
-            c.iter().map(|s| (s.stroke_mm, s.radial_force_n)),
-        ),
-        Curve::from_samples(
-            "holding force",
-            C_HOLD,
-            c.iter().map(|s| (s.stroke_mm, s.holding_force_n)),
-        ),
-        Curve::from_samples(
-            "actuator pull",
-            C_ACT,
-            c.iter().map(|s| (s.stroke_mm, s.actuator_force_n)),
-        ),
-    ]
+    curves_of(
+        &a.curve,
+        |s| s.stroke_mm,
+        &[
+            ("radial force", C_CONTACT, |s| s.radial_force_n),
+            ("holding force", C_HOLD, |s| s.holding_force_n),
+            ("actuator pull", C_ACT, |s| s.actuator_force_n),
+        ],
+    )
 }
 
 /// Curves of the stress plot.
 pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
-    vec![Curve::from_samples(
-        "peak stress",
-        C_STRESS,
-        a.curve.iter().map(|s| (s.stroke_mm, s.max_stress_mpa)),
-    )]
+    curves_of(
+        &a.curve,
+        |s| s.stroke_mm,
+        &[("peak stress", C_STRESS, |s| s.max_stress_mpa)],
+    )
 }
 
 fn fmt_margin(m: Option<f64>, unit: MarginUnit) -> String {
@@ -228,46 +217,70 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.label("No analysis to show.");
         return;
     };
+    let seg = &a.segment;
     let avail = ui.available_size();
     let cell = Vec2::new((avail.x - 12.0) / 2.0, (avail.y - 40.0) / 2.0);
+    let plot_h = cell.y - 20.0;
+    let window = window_curves(a);
+    let forces = force_curves(a);
+    let need = seg.design.duty.holding_force_n * seg.design.duty.safety_factor;
+    let travel = Marker {
+        name: "actuator max travel",
+        value: seg.max_stroke_mm(),
+        unit: "mm",
+        top: top_of(&window),
+    };
+    let rating = Marker {
+        name: "actuator rating as pull",
+        value: seg.max_pull_n(),
+        unit: "N",
+        top: top_of(&forces).max(need),
+    };
+    let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
-        ui.vertical(|ui| {
-            ui.set_width(cell.x);
-            ui.strong("Stroke against bore").on_hover_text("For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.");
-            window_plot(ui, a, cell.y - 20.0);
-            // Heading, axes and plot: what the PNG export cuts out.
-            app.plot_rects[0] = Some(ui.min_rect());
-        });
-        ui.vertical(|ui| {
-            ui.set_width(cell.x);
-            ui.strong(format!("Forces against stroke at the nominal bore, {:.2} mm", a.segment.bore_nominal_mm)).on_hover_text("Shaded: the free, point-contact and line-contact phases.");
-            force_plot(ui, a, cell.y - 20.0);
-            // Heading, axes and plot: what the PNG export cuts out.
-            app.plot_rects[1] = Some(ui.min_rect());
-        });
+        plot_cell(
+            ui,
+            cell.x,
+            window_rect,
+            "Stroke against bore",
+            "For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.",
+            travel.note(),
+            |ui| window_plot(ui, a, &window, &travel, plot_h),
+        );
+        plot_cell(
+            ui,
+            cell.x,
+            force_rect,
+            &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
+            "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
+            rating.note(),
+            |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
+        );
     });
     ui.horizontal(|ui| {
-        ui.vertical(|ui| {
-            ui.set_width(cell.x);
-            ui.strong("Peak stress against stroke (nominal bore)").on_hover_text("Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables.");
-            stress_plot(ui, a, cell.y - 20.0);
-            // Heading, axes and plot: what the PNG export cuts out.
-            app.plot_rects[2] = Some(ui.min_rect());
-        });
+        plot_cell(
+            ui,
+            cell.x,
+            stress_rect,
+            &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
+            None,
+            |ui| stress_plot(ui, a, plot_h),
+        );
         ui.vertical(|ui| {
             ui.set_width(cell.x);
             let (stroke, shape, note) = match &app.fallback_shape {
                 Some((s, shape)) => (*s, shape.as_slice(), format!(" (operating stroke is past the limit; drawn at {s:.3} mm)")),
-                None => (a.segment.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
+                None => (seg.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
             };
             ui.strong(format!("To scale at {stroke:.3} mm stroke{note}")).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
-            let h = cell.y - 20.0;
+            let h = plot_h;
             let w = ui.available_width();
             // A long strip reads better with the end view below it, a short one beside it.
-            let d = &a.segment.design;
-            let long = d.strip.free_length_mm * 1.15 > 1.4 * a.segment.bore_nominal_mm;
+            let d = &seg.design;
+            let long = d.strip.free_length_mm * 1.15 > 1.4 * seg.bore_nominal_mm;
             if long {
-                let side_h = (h * 0.66).min(w * 1.1 * a.segment.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
+                let side_h = (h * 0.66).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
                 side_view(ui, a, shape, Vec2::new(w, side_h));
                 end_view(ui, a, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
             } else {
@@ -280,12 +293,234 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     });
 }
 
-fn legend() -> Legend {
-    Legend::default()
-        .position(egui_plot::Corner::LeftTop)
-        .background_alpha(0.6)
-        .text_style(egui::TextStyle::Small)
-        .follow_insertion_order(true)
+/// One plot cell: the heading (its explanation on hover) with, right-aligned, a note
+/// naming what lies above the plotted range, then the plot. Records the cell's rectangle
+/// (heading, axes and plot), which the PNG export cuts out.
+fn plot_cell(
+    ui: &mut Ui,
+    width: f32,
+    rect: &mut Option<egui::Rect>,
+    title: &str,
+    tip: &str,
+    note: Option<String>,
+    plot: impl FnOnce(&mut Ui),
+) {
+    ui.vertical(|ui| {
+        ui.set_width(width);
+        ui.horizontal(|ui| {
+            ui.strong(title).on_hover_text(tip);
+            if let Some(note) = note {
+                ui.with_layout(egui::Layout::right_to_left(egui::Align::Min), |ui| {
+                    ui.add(egui::Label::new(RichText::new(&note).small().color(C_ACT)).truncate())
+                        .on_hover_text(note);
+                });
+            }
+        });
+        plot(ui);
+        *rect = Some(ui.min_rect());
+    });
+}
+
+/// A rating drawn as a dashed line across a plot, unless it lies far above the curves
+/// (it would squeeze them flat); then the cell's heading names it instead.
+struct Marker {
+    name: &'static str,
+    value: f64,
+    unit: &'static str,
+    /// Highest value the plot shows without the marker.
+    top: f64,
+}
+
+impl Marker {
+    fn off_scale(&self) -> bool {
+        self.top > 0.0 && self.value > 1.4 * self.top
+    }
+
+    fn note(&self) -> Option<String> {
+        self.off_scale().then(|| {
+            format!(
+                "{} {:.2} {}: above the plotted range",
+                self.name, self.value, self.unit
+            )
+        })
+    }
+
+    fn add_to(&self, p: &mut egui_plot::PlotUi<'_>) {
+        if !self.off_scale() {
+            p.add(
+                HLine::new(self.name, self.value)
+                    .color(C_ACT)
+                    .style(LineStyle::dashed_loose()),
+            );
+        }
+    }
+}
+
+/// A shaded band across a plot. Its name is written in the band only where it fits, so
+/// a narrow band is never labelled with a cut-off word.
+struct Band {
+    name: &'static str,
+    range: (f64, f64),
+    fill: Color32,
+}
+
+impl Band {
+    fn add_to(&self, p: &mut egui_plot::PlotUi<'_>) {
+        // Unnamed: the plot would otherwise print the name cut to the band's width.
+        p.add(Span::new("", self.range.0..=self.range.1).fill(self.fill));
+    }
+}
+
+/// Space between a band label and the band's edges, points.
+const BAND_LABEL_PAD: f32 = 4.0;
+
+/// Writes each band's name at the top of the band, right-aligned, where it fits between
+/// the band's edges and stays clear of the legend in the top-left corner.
+fn band_labels(ui: &Ui, t: &egui_plot::PlotTransform, bands: &[Band], legend: &[&str]) {
+    let frame = *t.frame();
+    let painter = ui.painter().with_clip_rect(frame);
+    let font = egui::TextStyle::Small.resolve(ui.style());
+    let color = ui.visuals().text_color().gamma_multiply(0.8);
+    let width = |s: &str| {
+        painter
+            .layout_no_wrap(s.to_string(), font.clone(), color)
+            .size()
+            .x
+    };
+    // The legend's swatch and padding take about two line heights beside the text.
+    let legend_w = legend.iter().map(|s| width(s)).fold(0.0, f32::max) + 2.5 * font.size;
+    for b in bands {
+        let left = t.position_from_point_x(b.range.0).max(frame.left());
+        let right = t.position_from_point_x(b.range.1).min(frame.right());
+        let galley = painter.layout_no_wrap(b.name.to_string(), font.clone(), color);
+        let x = right - BAND_LABEL_PAD - galley.size().x;
+        if x < left + BAND_LABEL_PAD || x < frame.left() + legend_w + BAND_LABEL_PAD {
+            continue;
+        }
+        painter.galley(Pos2::new(x, frame.top() + BAND_LABEL_PAD), galley, color);
+    }
+}
+
+/// Grid spacing below which the plots draw no grid line, points.
+const GRID_MIN_PX: f32 = 8.0;
+/// Spacing of tick labels, points: hidden below the first, faded up to the second.
+const X_LABEL_PX: egui::Rangef = egui::Rangef {
+    min: 28.0,
+    max: 34.0,
+};
+const Y_LABEL_PX: egui::Rangef = egui::Rangef {
+    min: 20.0,
+    max: 30.0,
+};
+
+/// The smallest of 1, 2, 5 times a power of ten that is at least `min`, with its leading
+/// digit.
+fn nice_step(min: f64) -> (f64, f64) {
+    let p = 10f64.powf(min.log10().floor());
+    [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .map(|m| if m == 10.0 { (m * p, 1.0) } else { (m * p, m) })
+        .find(|(s, _)| *s >= min)
+        .unwrap_or((10.0 * p, 1.0))
+}
+
+/// Grid lines on a 1-2-5 series with the labelled lines at least `label_px` points apart
+/// (the plot's own powers of ten leave a narrow range with a single labelled tick).
+fn grid_125(label_px: f32) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+    egui_plot::uniform_grid_spacer(move |input| {
+        let min = input.base_step_size * f64::from(label_px / GRID_MIN_PX);
+        let (label, lead) = if min.is_finite() && min > 0.0 {
+            nice_step(min)
+        } else {
+            let span = (input.bounds.1 - input.bounds.0).abs();
+            (
+                if span.is_finite() && span > 0.0 {
+                    span
+                } else {
+                    1.0
+                },
+                1.0,
+            )
+        };
+        let fine = label / if lead == 2.0 { 4.0 } else { 5.0 };
+        // Labelled lines are all of one weight, so their labels share one number of decimals.
+        [fine, label, label]
+    })
+}
+
+/// A tick label with as many decimals as its step needs.
+fn tick_label(mark: egui_plot::GridMark, _range: &std::ops::RangeInclusive<f64>) -> String {
+    let decimals = (-mark.step_size.log10() - 1e-9).ceil().clamp(0.0, 6.0) as usize;
+    format!("{:.decimals$}", mark.value)
+}
+
+/// A plot with the app's legend, grid and axis labels.
+fn plot_frame<'a>(id: &str, x_label: &str, y_label: &str, height: f32) -> Plot<'a> {
+    Plot::new(id)
+        .height(height)
+        .legend(
+            Legend::default()
+                .position(egui_plot::Corner::LeftTop)
+                .background_alpha(0.6)
+                .text_style(egui::TextStyle::Small)
+                .follow_insertion_order(true),
+        )
+        .custom_x_axes(vec![
+            AxisHints::new_x()
+                .label(x_label)
+                .formatter(tick_label)
+                .label_spacing(X_LABEL_PX),
+        ])
+        .custom_y_axes(vec![
+            AxisHints::new_y()
+                .label(y_label)
+                .formatter(tick_label)
+                .label_spacing(Y_LABEL_PX),
+        ])
+        .grid_spacing(egui::Rangef::new(GRID_MIN_PX, 300.0))
+        .x_grid_spacer(grid_125(X_LABEL_PX.max))
+        .y_grid_spacer(grid_125(Y_LABEL_PX.max))
+}
+
+/// The item name and the point under the pointer.
+fn hovered<'h>(hover: &egui_plot::HoverPosition<'h>) -> (&'h str, egui_plot::PlotPoint) {
+    match hover {
+        egui_plot::HoverPosition::NearDataPoint {
+            plot_name,
+            position,
+            ..
+        } => (plot_name, *position),
+        egui_plot::HoverPosition::Elsewhere { position } => ("", *position),
+    }
+}
+
+/// Hover text of the plots against stroke: the item, the stroke, the value, the phase at
+/// that stroke and, when asked, the actuator's own reading there.
+fn stroke_hover(
+    curve: &[SegmentState],
+    hover: &egui_plot::HoverPosition<'_>,
+    value: String,
+    actuator: bool,
+) -> String {
+    let (name, p) = hovered(hover);
+    let near = curve.iter().min_by(|x, y| {
+        (x.stroke_mm - p.x)
+            .abs()
+            .total_cmp(&(y.stroke_mm - p.x).abs())
+    });
+    let phase = near.map_or(String::new(), |s| {
+        format!("\n{}", s.phase.replace('-', " "))
+    });
+    let act = near
+        .and_then(|s| s.actuator.filter(|_| actuator))
+        .map(|r| {
+            format!(
+                "\nactuator {:.3} {} at {:.3} {}",
+                r.effort, r.effort_unit, r.position, r.position_unit
+            )
+        })
+        .unwrap_or_default();
+    format!("{name}\nstroke {:.3} mm\n{value}{phase}{act}", p.x)
 }
 
 /// Colour of the operating-stroke marker: the text colour, so it reads on both themes.
@@ -293,32 +528,33 @@ fn marker(ui: &Ui) -> Color32 {
     ui.visuals().text_color()
 }
 
-fn window_plot(ui: &mut Ui, a: &Analysis, height: f32) {
+fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, height: f32) {
     let seg = &a.segment;
-    let curves = window_curves(a);
     let hold = &a.window;
     let mark = marker(ui);
-    Plot::new("window-plot")
-        .height(height)
-        .legend(legend())
-        .x_axis_label("bore diameter, mm")
-        .y_axis_label("stroke, mm")
-        .label_formatter(|hover| {
-            let (name, p) = match hover {
-                egui_plot::HoverPosition::NearDataPoint {
-                    plot_name,
-                    position,
-                    ..
-                } => (*plot_name, *position),
-                egui_plot::HoverPosition::Elsewhere { position } => ("", *position),
+    let tolerance = (seg.bore_smallest_mm, seg.bore_largest_mm);
+    let bands = [Band {
+        name: "bore tolerance",
+        range: tolerance,
+        fill: C_STEEL.gamma_multiply(0.18),
+    }];
+    let shown = plot_frame("window-plot", "bore diameter, mm", "stroke, mm", height)
+        .label_formatter(move |hover| {
+            let (name, p) = hovered(hover);
+            let within = if (tolerance.0..=tolerance.1).contains(&p.x) {
+                "\nwithin the bore tolerance"
+            } else {
+                ""
             };
-            Some(format!("{name}\nbore {:.3} mm\nstroke {:.3} mm", p.x, p.y))
+            Some(format!(
+                "{name}\nbore {:.3} mm\nstroke {:.3} mm{within}",
+                p.x, p.y
+            ))
         })
         .show(ui, |p| {
-            p.add(
-                Span::new("bore tolerance", seg.bore_smallest_mm..=seg.bore_largest_mm)
-                    .fill(C_STEEL.gamma_multiply(0.18)),
-            );
+            for b in &bands {
+                b.add_to(p);
+            }
             // Usable window: holding reached, below stress limit, model limit and actuator travel.
             let max_stroke = seg.max_stroke_mm();
             let mut xs = Vec::new();
@@ -353,17 +589,10 @@ fn window_plot(ui: &mut Ui, a: &Analysis, height: f32) {
                 }
             }
             flush(&mut xs, &mut lo, &mut hi, p);
-            for c in &curves {
+            for c in curves {
                 c.add_to(p);
             }
-            marker_or_note(
-                p,
-                "actuator max travel",
-                max_stroke,
-                [right_of(&curves), top_of(&curves)],
-                C_ACT,
-                "mm",
-            );
+            travel.add_to(p);
             p.add(
                 HLine::new("operating stroke", seg.design.operating_stroke_mm)
                     .color(mark)
@@ -372,6 +601,14 @@ fn window_plot(ui: &mut Ui, a: &Analysis, height: f32) {
             );
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });
+    let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
+    legend.extend([
+        "usable window",
+        travel.name,
+        "operating stroke",
+        "nominal bore",
+    ]);
+    band_labels(ui, &shown.transform, &bands, &legend);
 }
 
 /// Highest value over the curves.
@@ -383,61 +620,41 @@ fn top_of(curves: &[Curve]) -> f64 {
         .fold(0.0, f64::max)
 }
 
-/// Rightmost x over the curves.
-fn right_of(curves: &[Curve]) -> f64 {
-    let x = curves
-        .iter()
-        .flat_map(|c| c.runs.iter().flatten())
-        .map(|p| p[0])
-        .fold(f64::NEG_INFINITY, f64::max);
-    if x.is_finite() { x } else { 0.0 }
-}
-
-/// A dashed horizontal marker at `value`, or, when it lies far above the curves (it
-/// would flatten them), a note at the top edge saying where it is.
-fn marker_or_note(
-    p: &mut egui_plot::PlotUi<'_>,
-    name: &str,
-    value: f64,
-    [right, top]: [f64; 2],
-    color: Color32,
-    unit: &str,
-) {
-    if value <= 1.4 * top || top <= 0.0 {
-        p.add(
-            HLine::new(name, value)
-                .color(color)
-                .style(LineStyle::dashed_loose()),
-        );
-    } else {
-        let at = egui_plot::PlotPoint::new(right, top * 1.08);
-        p.add(
-            egui_plot::Text::new(
-                name,
-                at,
-                RichText::new(format!("{name} {value:.2} {unit}: above the plot"))
-                    .color(color)
-                    .small(),
-            )
-            .anchor(egui::Align2::RIGHT_BOTTOM),
-        );
-    }
-}
-
-fn phase_spans(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, mark: Color32) {
+/// The free, point-contact and line-contact phases along the force-stroke curve.
+fn phase_bands(a: &Analysis) -> Vec<Band> {
     let (Some(first), Some(last)) = (a.curve.first(), a.curve.last()) else {
-        return;
+        return Vec::new();
     };
     let end = last.stroke_mm;
     let fc = first.first_contact_stroke_mm.unwrap_or(end).min(end);
     let lc = first.line_contact_stroke_mm.unwrap_or(end).min(end);
     let grey = Color32::from_gray(128);
-    p.add(Span::new("free", 0.0..=fc).fill(grey.gamma_multiply(0.06)));
+    let mut bands = vec![Band {
+        name: "free",
+        range: (0.0, fc),
+        fill: grey.gamma_multiply(0.06),
+    }];
     if lc > fc {
-        p.add(Span::new("point contact", fc..=lc).fill(C_CONTACT.gamma_multiply(0.10)));
+        bands.push(Band {
+            name: "point contact",
+            range: (fc, lc),
+            fill: C_CONTACT.gamma_multiply(0.10),
+        });
     }
     if end > lc {
-        p.add(Span::new("line contact", lc..=end).fill(C_LINE.gamma_multiply(0.12)));
+        bands.push(Band {
+            name: "line contact",
+            range: (lc, end),
+            fill: C_LINE.gamma_multiply(0.12),
+        });
+    }
+    bands
+}
+
+/// The phase bands and the operating stroke, behind a plot against stroke.
+fn phase_backdrop(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, bands: &[Band], mark: Color32) {
+    for b in bands {
+        b.add_to(p);
     }
     p.add(
         VLine::new("operating stroke", a.segment.design.operating_stroke_mm)
@@ -446,86 +663,53 @@ fn phase_spans(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, mark: Color32) {
     );
 }
 
-fn force_plot(ui: &mut Ui, a: &Analysis, height: f32) {
-    let seg = &a.segment;
-    let curves = force_curves(a);
+fn force_plot(
+    ui: &mut Ui,
+    a: &Analysis,
+    curves: &[Curve],
+    rating: &Marker,
+    need: f64,
+    height: f32,
+) {
     let curve = &a.curve;
     let mark = marker(ui);
-    Plot::new("force-plot")
-        .height(height)
-        .legend(legend())
-        .x_axis_label("stroke, mm")
-        .y_axis_label("force, N")
+    let bands = phase_bands(a);
+    let shown = plot_frame("force-plot", "stroke, mm", "force, N", height)
         .label_formatter(move |hover| {
-            let (name, p) = match hover {
-                egui_plot::HoverPosition::NearDataPoint {
-                    plot_name,
-                    position,
-                    ..
-                } => (*plot_name, *position),
-                egui_plot::HoverPosition::Elsewhere { position } => ("", *position),
-            };
-            let near = curve.iter().min_by(|x, y| {
-                (x.stroke_mm - p.x)
-                    .abs()
-                    .total_cmp(&(y.stroke_mm - p.x).abs())
-            });
-            let act = near
-                .and_then(|s| s.actuator)
-                .map(|r| {
-                    format!(
-                        "\nactuator {:.3} {} at {:.3} {}",
-                        r.effort, r.effort_unit, r.position, r.position_unit
-                    )
-                })
-                .unwrap_or_default();
-            Some(format!("{name}\nstroke {:.3} mm\n{:.2} N{act}", p.x, p.y))
+            let (_, p) = hovered(hover);
+            Some(stroke_hover(curve, hover, format!("{:.2} N", p.y), true))
         })
         .show(ui, |p| {
-            phase_spans(p, a, mark);
-            for c in &curves {
+            phase_backdrop(p, a, &bands, mark);
+            for c in curves {
                 c.add_to(p);
             }
-            let need = seg.design.duty.holding_force_n * seg.design.duty.safety_factor;
             p.add(
                 HLine::new("load x safety factor", need)
                     .color(C_HOLD)
                     .style(LineStyle::dashed_loose()),
             );
-            marker_or_note(
-                p,
-                "actuator rating as pull",
-                seg.max_pull_n(),
-                [right_of(&curves), top_of(&curves).max(need)],
-                C_ACT,
-                "N",
-            );
+            rating.add_to(p);
         });
+    let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
+    legend.extend(["operating stroke", "load x safety factor", rating.name]);
+    band_labels(ui, &shown.transform, &bands, &legend);
 }
 
 fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
     let seg = &a.segment;
     let curves = stress_curves(a);
+    let curve = &a.curve;
     let mark = marker(ui);
-    Plot::new("stress-plot")
-        .height(height)
-        .legend(legend())
-        .x_axis_label("stroke, mm")
-        .y_axis_label("stress, MPa")
-        .label_formatter(|hover| {
-            let (name, p) = match hover {
-                egui_plot::HoverPosition::NearDataPoint {
-                    plot_name,
-                    position,
-                    ..
-                } => (*plot_name, *position),
-                egui_plot::HoverPosition::Elsewhere { position } => ("", *position),
-            };
-            Some(format!("{name}\nstroke {:.3} mm\n{:.1} MPa", p.x, p.y))
+    let bands = phase_bands(a);
+    let shown = plot_frame("stress-plot", "stroke, mm", "stress, MPa", height)
+        .label_formatter(move |hover| {
+            let (_, p) = hovered(hover);
+            Some(stroke_hover(curve, hover, format!("{:.1} MPa", p.y), false))
         })
         .include_y(0.0)
         .show(ui, |p| {
-            phase_spans(p, a, mark);
+            phase_backdrop(p, a, &bands, mark);
             for c in &curves {
                 c.add_to(p);
             }
@@ -540,6 +724,9 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
                     .style(LineStyle::dashed_loose()),
             );
         });
+    let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
+    legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
+    band_labels(ui, &shown.transform, &bands, &legend);
 }
 
 /// Maps model coordinates (mm) to the screen with one scale for both axes.
@@ -657,7 +844,10 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     painter.text(
         rect.left_bottom(),
         egui::Align2::LEFT_BOTTOM,
-        format!("{:.2} px/mm; red: on the wall", scale.px_per_mm),
+        format!(
+            "drawn at {:.2} px/mm; red: flat run on the wall",
+            scale.px_per_mm
+        ),
         egui::FontId::proportional(10.0),
         fg.gamma_multiply(0.7),
     );
@@ -725,8 +915,36 @@ fn end_view(ui: &mut Ui, a: &Analysis, size: Vec2) {
     painter.text(
         rect.center_bottom(),
         egui::Align2::CENTER_BOTTOM,
-        format!("{n} strips {b} x {} mm", d.strip.thickness_mm),
+        format!("{n} strips, {b} x {} mm", d.strip.thickness_mm),
         egui::FontId::proportional(10.0),
         fg.gamma_multiply(0.7),
     );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn grid_steps_follow_one_two_five() {
+        // The 1-2-5 series of round steps (common practice for chart axes).
+        assert_eq!(nice_step(0.7), (1.0, 1.0));
+        assert_eq!(nice_step(1.0), (1.0, 1.0));
+        assert_eq!(nice_step(1.2), (2.0, 2.0));
+        assert_eq!(nice_step(3.0), (5.0, 5.0));
+        assert_eq!(nice_step(6.0), (10.0, 1.0));
+        let (s, lead) = nice_step(0.042);
+        assert!((s - 0.05).abs() < 1e-15 && lead == 5.0, "{s} {lead}");
+    }
+
+    #[test]
+    fn tick_labels_carry_the_decimals_of_their_step() {
+        let tick =
+            |value, step_size| tick_label(egui_plot::GridMark { value, step_size }, &(0.0..=1.0));
+        assert_eq!(tick(99.5, 0.5), "99.5");
+        assert_eq!(tick(100.0, 0.5), "100.0");
+        assert_eq!(tick(2000.0, 200.0), "2000");
+        assert_eq!(tick(0.25, 0.05), "0.25");
+        assert_eq!(tick(3.0, 1.0), "3");
+    }
 }
