@@ -71,6 +71,9 @@ pub struct Analysis {
     pub window_mm: (f64, f64),
     /// Strip centreline at the operating stroke in the nominal bore, `(x, r)` in mm.
     pub shape_mm: Vec<[f64; 2]>,
+    /// Geometry cautions ([`checks::geometry_cautions`]): where the strips at the operating
+    /// stroke swing behind a plate or cross themselves. Usually empty.
+    pub cautions: Vec<String>,
 }
 
 /// The bore window around the design's tolerance band: wide enough to show the band and
@@ -87,6 +90,7 @@ pub fn window_range_mm(seg: &Segment) -> (f64, f64) {
 pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError> {
     let segment = Segment::new(design)?;
     let checks = checks::run(&segment);
+    let cautions = checks::geometry_cautions(&segment);
     let limiting = checks::limiting(&checks);
     let op = design.operating_stroke_mm;
     let bores = BoreCase::ALL
@@ -131,5 +135,6 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
         window,
         window_mm,
         shape_mm,
+        cautions,
     })
 }

@@ -365,3 +365,27 @@ pub fn limiting(checks: &[Check]) -> Option<usize> {
 pub fn all_pass(checks: &[Check]) -> bool {
     checks.iter().all(|c| c.pass)
 }
+
+/// Geometry cautions beside the checks: at each of the smallest, nominal and largest bore,
+/// whether the strips at the operating stroke leave the room between the plates (swing
+/// behind an end plate or cross themselves), which the model does not prevent. Empty when
+/// they do not. Not a check of the contract: the checks judge the mechanics note's model;
+/// these say where its states stop being physical.
+pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
+    let op = seg.design.operating_stroke_mm;
+    [
+        ("smallest", seg.bore_smallest_mm),
+        ("nominal", seg.bore_nominal_mm),
+        ("largest", seg.bore_largest_mm),
+    ]
+    .iter()
+    .filter_map(|&(label, bore)| {
+        let path = seg.at_bore(bore).ok()?;
+        let (onset, kind) = path.overlap_mm(op)?;
+        Some(format!(
+            "at the {label} bore ({bore:.3} mm) and the operating stroke ({op:.3} mm) {}, from {onset:.3} mm of stroke on: states there are not physical",
+            kind.describe()
+        ))
+    })
+    .collect()
+}

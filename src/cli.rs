@@ -593,6 +593,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let list = checks::run(&seg);
     let pass = checks::all_pass(&list);
     let limiting = checks::limiting(&list).map(|i| list[i].id);
+    let cautions = checks::geometry_cautions(&seg);
     if a.json {
         let items: Vec<serde_json::Value> = list.iter().map(check_json).collect();
         let doc = serde_json::json!({
@@ -603,11 +604,16 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "stiffness": seg.stiffness_used.name(),
             "stiffness_reason": seg.stiffness_reason,
             "checks": items,
+            "geometry_cautions": cautions,
         });
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
     } else {
-        write!(out, "{}", check_table(&design, &seg, &list, limiting))?;
+        write!(
+            out,
+            "{}",
+            check_table(&design, &seg, &list, limiting, &cautions)
+        )?;
     }
     Ok(if pass {
         Status::Done
@@ -629,7 +635,13 @@ fn check_json(c: &Check) -> serde_json::Value {
     })
 }
 
-fn check_table(design: &Design, seg: &Segment, list: &[Check], limiting: Option<&str>) -> String {
+fn check_table(
+    design: &Design,
+    seg: &Segment,
+    list: &[Check],
+    limiting: Option<&str>,
+    cautions: &[String],
+) -> String {
     let mut t = String::new();
     if !design.title.is_empty() {
         let _ = writeln!(t, "{}", design.title);
@@ -661,6 +673,9 @@ fn check_table(design: &Design, seg: &Segment, list: &[Check], limiting: Option<
         let _ = writeln!(t, "all {} checks pass", list.len());
     } else {
         let _ = writeln!(t, "{failed} of {} checks fail", list.len());
+    }
+    for c in cautions {
+        let _ = writeln!(t, "geometry caution: {c}");
     }
     let _ = writeln!(t, "{CAUTION}");
     t

@@ -90,6 +90,39 @@ impl LimitReason {
     }
 }
 
+/// Where the strip's centreline leaves the room between the end plates. The model lets
+/// the strip pass through the plates and through itself (the mechanics note has no such
+/// contact), so a state showing one of these is not physical: a caution, not a limit.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Overlap {
+    /// Part of the strip swings behind the plane of an end plate.
+    BehindPlate,
+    /// The two halves of the strip cross each other at the mid-plane.
+    HalvesCross,
+}
+
+impl Overlap {
+    /// One-line explanation for tables, the app and the sheet.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Overlap::BehindPlate => {
+                "part of each strip swings behind the plane of an end plate (the model lets it pass through the plate)"
+            }
+            Overlap::HalvesCross => {
+                "the two halves of each strip cross at the mid-plane (the model lets the strip pass through itself)"
+            }
+        }
+    }
+
+    /// Short machine name for CSV and JSON.
+    pub fn name(self) -> &'static str {
+        match self {
+            Overlap::BehindPlate => "behind-plate",
+            Overlap::HalvesCross => "halves-cross",
+        }
+    }
+}
+
 /// Why a path could not be set up at all.
 #[derive(Clone, Copy, Debug, PartialEq, thiserror::Error)]
 pub enum PathError {
@@ -404,6 +437,10 @@ pub const MIN_GAP: f64 = 1e-12;
 /// Below this gap (over L) the flat run buckles before line contact reaches its fold
 /// (the note gives 0.195; a test holds the margin).
 const BUCKLES_BEFORE_FOLD: f64 = 0.18;
+
+/// Below this gap (over L) the strip never swings behind a plate nor crosses itself before
+/// the model's limit (a test holds it on a grid; the first cases appear at 0.195).
+const NO_OVERLAP_BELOW: f64 = 0.18;
 
 /// Iteration bound of every Newton solve here.
 const MAX_NEWTON: usize = 60;
@@ -1895,6 +1932,53 @@ impl Path {
         Some((below.0, k_peak, below.1, at_peak))
     }
 
+    /// Whether the strip at `stroke` leaves the room between the plates ([`Overlap`]),
+    /// judged on its centreline at 64 points a span with a tolerance of 1e-9 L. Below
+    /// g/L = 0.19 the model stops (flat-run buckling) before either happens, which a test
+    /// holds on a grid of gaps and strokes, so those paths are not drawn at all.
+    pub fn overlap_at(&self, stroke: f64) -> Option<Overlap> {
+        if self.gap < NO_OVERLAP_BELOW || self.phase_at(stroke) == Phase::BeyondLimit {
+            return None;
+        }
+        self.overlap_of(stroke, 64)
+    }
+
+    fn overlap_of(&self, stroke: f64, n: usize) -> Option<Overlap> {
+        let points = self.shape(stroke, n);
+        let half_chord = 0.5 * (1.0 - stroke);
+        let first_half = &points[..points.len() / 2];
+        let tol = 1e-9;
+        if first_half.iter().any(|p| p[0] > half_chord + tol) {
+            Some(Overlap::HalvesCross)
+        } else if first_half.iter().any(|p| p[0] < -tol) {
+            Some(Overlap::BehindPlate)
+        } else {
+            None
+        }
+    }
+
+    /// The least stroke up to `stroke` from which the strip overlaps as at `stroke`
+    /// (bisection to 1e-9 L), with the kind; `None` when it does not overlap at `stroke`.
+    pub fn overlap_onset(&self, stroke: f64) -> Option<(f64, Overlap)> {
+        let kind = self.overlap_at(stroke)?;
+        let (mut lo, mut hi) = (
+            self.first_contact_stroke().unwrap_or(0.0).min(stroke),
+            stroke,
+        );
+        for _ in 0..60 {
+            if hi - lo <= 1e-9 {
+                break;
+            }
+            let mid = 0.5 * (lo + hi);
+            if self.overlap_of(mid, 64) == Some(kind) {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        Some((hi, kind))
+    }
+
     /// Points `(x, y)` along the whole strip (nondimensional; `x` from the first plate,
     /// `y` outward from the rest line), `n` per span, for drawing the side view.
     pub fn shape(&self, stroke: f64, n: usize) -> Vec<[f64; 2]> {
@@ -2063,6 +2147,50 @@ mod tests {
             "by contact: u {worst_u:e}, k {worst_k:e}"
         );
         assert!(branch_table().seed(0.31, 0.5).is_none());
+    }
+
+    /// The overlap shortcut: below `NO_OVERLAP_BELOW` no state up to the limit swings
+    /// behind a plate or crosses itself, for either end condition.
+    #[test]
+    fn no_overlap_below_the_shortcut_gap() {
+        for ends in [Ends::Clamped, Ends::Hinged] {
+            for i in 1..=40 {
+                let gap = 0.19 * i as f64 / 40.0;
+                let path = Path::new(ends, gap).unwrap();
+                let limit = path.limit().stroke;
+                for j in 0..=40 {
+                    let stroke = limit * j as f64 / 40.0;
+                    assert_eq!(
+                        path.overlap_of(stroke, 64),
+                        None,
+                        "{ends:?} g/L {gap} stroke {stroke}"
+                    );
+                }
+            }
+        }
+    }
+
+    /// Large gaps do overlap before the limit: clamped strips swing behind the plate and
+    /// later cross at the mid-plane, hinged ones swing behind the hinge plane early. The
+    /// bounds are this solver's; the independent mpmath solution (tests/reference) saw
+    /// the same for clamped strips at g/L >= 0.2: behind the plate from about
+    /// delta/L = 0.5, halves crossing near 0.8.
+    #[test]
+    fn large_gaps_overlap_before_the_limit() {
+        let clamped = Path::new(Ends::Clamped, 0.25).unwrap();
+        let (onset, kind) = clamped.overlap_onset(0.95).unwrap();
+        assert_eq!(kind, Overlap::HalvesCross);
+        assert!(onset > 0.6 && onset < 0.9, "{onset}");
+        // Behind the plate comes first, from about delta/L = 0.64.
+        let (behind, kind) = clamped.overlap_onset(0.7).unwrap();
+        assert_eq!(kind, Overlap::BehindPlate);
+        assert!(behind > 0.55 && behind < 0.7, "{behind}");
+        let hinged = Path::new(Ends::Hinged, 0.25).unwrap();
+        let (onset, kind) = hinged.overlap_onset(0.5).unwrap();
+        assert_eq!(kind, Overlap::BehindPlate);
+        assert!(onset > 0.25 && onset < 0.4, "{onset}");
+        // Just before the onset there is none.
+        assert_eq!(hinged.overlap_at(onset - 1e-6), None);
     }
 
     /// Strokes carried to a Newton root agree with a fresh evaluation there.

@@ -11,7 +11,7 @@ use std::f64::consts::PI;
 use serde::Serialize;
 
 use crate::design::{Actuator, Design, DesignError, Ends, MaterialChoice, Stiffness};
-use crate::elastica::{self, LimitReason, Path, PathError, Phase, StripState};
+use crate::elastica::{self, LimitReason, Overlap, Path, PathError, Phase, StripState};
 use crate::material::{self, Material};
 
 /// Why a segment or a state could not be formed.
@@ -691,6 +691,15 @@ impl BorePath<'_> {
         (0..points)
             .map(|i| self.state(end * (i as f64 / (points - 1) as f64)))
             .collect()
+    }
+
+    /// Where the strip, at `stroke_mm`, leaves the room between the plates: the least
+    /// stroke (mm) from which it does so, and how. `None` when it does not.
+    pub fn overlap_mm(&self, stroke_mm: f64) -> Option<(f64, Overlap)> {
+        let l = self.l_mm();
+        self.path
+            .overlap_onset(stroke_mm / l)
+            .map(|(onset, kind)| (onset * l, kind))
     }
 
     /// The strip centreline at a stroke: `(axial position, radius)` pairs in mm from the

@@ -489,6 +489,8 @@ fn check_exit_status_follows_the_verdict() {
         assert!(c["reason"].as_str().is_some_and(|r| !r.is_empty()), "{c}");
     }
 
+    assert_eq!(v["geometry_cautions"].as_array().map(Vec::len), Some(0));
+
     // Holding far more than the strips can: fails `hold`, exit 1, still a report.
     let mut heavy = Design::default();
     heavy.duty.holding_force_n = 5000.0;
@@ -652,4 +654,32 @@ fn sample_designs_behave_as_their_headers_say() {
         "{passing} passing, {failing} failing samples in {}",
         dir.display()
     );
+}
+
+#[test]
+fn check_prints_geometry_cautions_for_strips_that_leave_the_plates() {
+    // The invented large-gap hinged segment of segment_model (g/L 0.23) at delta/L 0.45.
+    let mut d = Design::default();
+    d.strip.free_length_mm = 60.0;
+    d.strip.width_mm = 8.0;
+    d.strip.thickness_mm = 0.2;
+    d.strip.ends = bowgrip::design::Ends::Hinged;
+    d.mount_radius_mm = 36.0;
+    d.end_plate_diameter_mm = 70.0;
+    d.bore.diameter_mm = 100.0;
+    d.operating_stroke_mm = 27.0;
+    let tmp = Scratch::new();
+    let f = tmp.design("wide.ron", &d);
+    let r = run(&["check", s(&f)]);
+    assert!(
+        r.stdout
+            .lines()
+            .any(|l| l.starts_with("geometry caution:") && l.contains("behind the plane")),
+        "{}",
+        r.stdout
+    );
+    let r = run(&["check", s(&f), "--json"]);
+    let v = json(&r.stdout);
+    let cautions = v["geometry_cautions"].as_array().expect("cautions array");
+    assert!(!cautions.is_empty(), "{v}");
 }

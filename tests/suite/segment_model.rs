@@ -275,3 +275,47 @@ proptest! {
         prop_assert_eq!(a.checks.len(), 8);
     }
 }
+
+#[test]
+fn geometry_cautions_name_strips_that_leave_the_plates() {
+    // An invented large-gap segment: 60 mm hinged strips, 36 mm mount radius, a 100 mm
+    // bore. Gap by the edge-contact formula: sqrt(50^2 - 4^2) - 0.1 - 36 = 13.74 mm,
+    // g/L = 0.229, where the hinged strip swings behind its hinge plane from about
+    // delta/L = 0.3 (this solver; see the elastica unit tests).
+    let mut d = Design::default();
+    d.strip.free_length_mm = 60.0;
+    d.strip.width_mm = 8.0;
+    d.strip.thickness_mm = 0.2;
+    d.strip.ends = Ends::Hinged;
+    d.mount_radius_mm = 36.0;
+    d.end_plate_diameter_mm = 70.0;
+    d.bore.diameter_mm = 100.0;
+    d.bore.minus_mm = 0.0;
+    d.bore.plus_mm = 0.0;
+    d.operating_stroke_mm = 12.0; // delta/L = 0.2: no overlap yet
+    let seg = Segment::new(&d).expect("valid");
+    assert!(rel(seg.gap_mm(100.0) / 60.0, 0.229) < 0.01);
+    assert!(checks::geometry_cautions(&seg).is_empty());
+    d.operating_stroke_mm = 27.0; // delta/L = 0.45
+    let seg = Segment::new(&d).expect("valid");
+    let cautions = checks::geometry_cautions(&seg);
+    assert_eq!(cautions.len(), 3, "{cautions:?}"); // all three bores are the same here
+    assert!(
+        cautions[0].contains("behind the plane of an end plate"),
+        "{}",
+        cautions[0]
+    );
+    let path = seg.at_bore(100.0).unwrap();
+    let (onset, _) = path.overlap_mm(27.0).unwrap();
+    assert!(onset > 15.0 && onset < 27.0, "{onset}");
+    assert_eq!(path.overlap_mm(onset - 1e-3), None);
+    // The analysis carries them for the app and the sheet.
+    assert_eq!(analysis::analyse(&d).unwrap().cautions, cautions);
+    // The default design (g/L 0.08) has none.
+    assert!(
+        analysis::analyse(&Design::default())
+            .unwrap()
+            .cautions
+            .is_empty()
+    );
+}
