@@ -188,9 +188,7 @@ impl Block {
         weight: Weight,
         text: impl Into<String>,
     ) {
-        let text = text.into();
-        let w = text_width(&text, size, weight);
-        self.text(x_right - w, y, size, weight, text);
+        self.text_anchored(x_right, 1.0, y, size, weight, INK, text);
     }
 
     /// Text centred on `x`.
@@ -203,9 +201,25 @@ impl Block {
         color: Rgb,
         text: impl Into<String>,
     ) {
+        self.text_anchored(x, 0.5, y, size, weight, color, text);
+    }
+
+    /// Text placed so that the point `anchor` of the way along it (0 its start, 0.5 its
+    /// middle, 1 its end) is at `x`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn text_anchored(
+        &mut self,
+        x: f32,
+        anchor: f32,
+        y: f32,
+        size: f32,
+        weight: Weight,
+        color: Rgb,
+        text: impl Into<String>,
+    ) {
         let text = text.into();
         let w = text_width(&text, size, weight);
-        self.text_in(x - 0.5 * w, y, size, weight, color, text);
+        self.text_in(x - anchor * w, y, size, weight, color, text);
     }
 
     /// Wrapped text starting with its first baseline at `y`; returns the y below the last line.
@@ -303,6 +317,16 @@ fn path(points: &[[f32; 2]], closed: bool) -> Option<krilla::geom::Path> {
     pb.finish()
 }
 
+/// Sets the surface to fill with `color` and stroke nothing (text and areas).
+fn fill_only(surface: &mut Surface, color: Rgb) {
+    surface.set_stroke(None);
+    surface.set_fill(Some(Fill {
+        paint: paint(color),
+        opacity: NormalizedF32::ONE,
+        rule: FillRule::NonZero,
+    }));
+}
+
 /// Writes placed marks onto a page surface.
 pub fn emit(surface: &mut Surface, marks: &[Mark]) -> anyhow::Result<()> {
     let mut clips: Vec<bool> = Vec::new();
@@ -320,12 +344,7 @@ pub fn emit(surface: &mut Surface, marks: &[Mark]) -> anyhow::Result<()> {
                     continue;
                 }
                 let f = face(*weight)?;
-                surface.set_stroke(None);
-                surface.set_fill(Some(Fill {
-                    paint: paint(*color),
-                    opacity: NormalizedF32::ONE,
-                    rule: FillRule::NonZero,
-                }));
+                fill_only(surface, *color);
                 surface.draw_glyphs(
                     Point::from_xy(*x, *y),
                     &f.glyphs(text),
@@ -364,12 +383,7 @@ pub fn emit(surface: &mut Surface, marks: &[Mark]) -> anyhow::Result<()> {
                 let Some(p) = path(points, true) else {
                     continue;
                 };
-                surface.set_stroke(None);
-                surface.set_fill(Some(Fill {
-                    paint: paint(*color),
-                    opacity: NormalizedF32::ONE,
-                    rule: FillRule::NonZero,
-                }));
+                fill_only(surface, *color);
                 surface.draw_path(&p);
             }
             Mark::Clip([x0, y0, x1, y1]) => {

@@ -117,6 +117,62 @@ pub struct SheetLayout {
     placed: Vec<Vec<Mark>>,
 }
 
+impl SheetLayout {
+    /// The box `[left, top, right, bottom]` (points from the page's top left) of every
+    /// line and filled area on the sheet, with its page number from 1; a mark under a
+    /// clip is cut to the clip, as it prints.
+    pub fn drawing_extents(&self) -> Vec<(usize, [f32; 4])> {
+        let mut out = Vec::new();
+        for (i, marks) in self.placed.iter().enumerate() {
+            let mut clips: Vec<[f32; 4]> = Vec::new();
+            for m in marks {
+                let points = match m {
+                    Mark::Line { points, .. } | Mark::Area { points, .. } => points,
+                    Mark::Clip(r) => {
+                        let r = clips.last().map_or(*r, |c| {
+                            [
+                                r[0].max(c[0]),
+                                r[1].max(c[1]),
+                                r[2].min(c[2]),
+                                r[3].min(c[3]),
+                            ]
+                        });
+                        clips.push(r);
+                        continue;
+                    }
+                    Mark::Unclip => {
+                        clips.pop();
+                        continue;
+                    }
+                    Mark::Text { .. } => continue,
+                };
+                let mut b = points.iter().fold(
+                    [
+                        f32::INFINITY,
+                        f32::INFINITY,
+                        f32::NEG_INFINITY,
+                        f32::NEG_INFINITY,
+                    ],
+                    |b, [x, y]| [b[0].min(*x), b[1].min(*y), b[2].max(*x), b[3].max(*y)],
+                );
+                if let Some(c) = clips.last() {
+                    b = [
+                        b[0].max(c[0]),
+                        b[1].max(c[1]),
+                        b[2].min(c[2]),
+                        b[3].min(c[3]),
+                    ];
+                    if b[0] > b[2] || b[1] > b[3] {
+                        continue; // wholly clipped away
+                    }
+                }
+                out.push((i + 1, b));
+            }
+        }
+        out
+    }
+}
+
 /// Everything the sections print that is not in the analysis itself.
 pub(crate) struct SheetMeta {
     file_label: String,
@@ -284,12 +340,10 @@ fn paginate(
                 Weight::Bold,
                 format!("Sheet {} of {count}", i + 1),
             );
-            let file = fit(
-                &format!("{}  ·  SHA-256 {}", meta.file_label, meta.hash16),
-                cw - 150.0,
-                7.5,
-                Weight::Regular,
-            );
+            // The hash always prints; a long path loses its leading folders.
+            let hash = format!("  ·  SHA-256 {}", meta.hash16);
+            let room = cw - 150.0 - draw::text_width(&hash, 7.5, Weight::Regular);
+            let file = fit_start(&meta.file_label, room, 7.5, Weight::Regular) + &hash;
             frame.text_in(0.0, 20.0, 7.5, Weight::Regular, GREY, file);
             let d = format!("bowgrip {}  ·  {}", meta.version, meta.date);
             let dw = draw::text_width(&d, 7.5, Weight::Regular);
@@ -366,14 +420,34 @@ fn paginate(
     }
 }
 
-/// `text` shortened with an ellipsis to fit `width`.
+/// `text` shortened with an ellipsis at its end to fit `width`.
 pub(crate) fn fit(text: &str, width: f32, size: f32, weight: Weight) -> String {
+    shorten(text, width, size, weight, false)
+}
+
+/// `text` shortened with an ellipsis at its start to fit `width`: for paths, whose end
+/// (the file name) matters most.
+pub(crate) fn fit_start(text: &str, width: f32, size: f32, weight: Weight) -> String {
+    shorten(text, width, size, weight, true)
+}
+
+/// The longest part of `text` that fits `width` with an ellipsis where the rest was cut:
+/// at the start when `cut_start`, else at the end.
+fn shorten(text: &str, width: f32, size: f32, weight: Weight, cut_start: bool) -> String {
     if draw::text_width(text, size, weight) <= width {
         return text.to_string();
     }
-    let mut s: String = text.to_string();
-    while !s.is_empty() && draw::text_width(&format!("{s}…"), size, weight) > width {
-        s.pop();
-    }
-    format!("{s}…")
+    let chars: Vec<char> = text.chars().collect();
+    let with_ellipsis = |keep: usize| {
+        if cut_start {
+            format!("…{}", String::from_iter(&chars[chars.len() - keep..]))
+        } else {
+            format!("{}…", String::from_iter(&chars[..keep]))
+        }
+    };
+    (0..chars.len())
+        .rev()
+        .map(with_ellipsis)
+        .find(|s| draw::text_width(s, size, weight) <= width)
+        .unwrap_or_else(|| with_ellipsis(0))
 }

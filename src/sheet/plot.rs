@@ -60,6 +60,17 @@ pub enum Item {
     },
 }
 
+impl Item {
+    /// A data series; `None` y values break the line.
+    pub fn series(label: impl Into<String>, pen: Pen, points: Vec<(f64, Option<f64>)>) -> Item {
+        Item::Series {
+            label: label.into(),
+            pen,
+            points,
+        }
+    }
+}
+
 /// A plot to lay out.
 #[derive(Clone, Debug)]
 pub struct Plot {

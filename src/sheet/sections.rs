@@ -5,11 +5,11 @@
 
 use std::f64::consts::PI;
 
-use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, text_width, wrap};
+use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, wrap};
 use super::font::Weight;
 use super::format::{self as f, NONE};
 use super::plot::{Item, Pen, Plot};
-use super::{Section, SheetMeta, fit};
+use super::{Section, SheetMeta, fit, fit_start};
 use crate::analysis::{Analysis, BoreCase, BoreResult};
 use crate::checks::{self, MarginUnit};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
@@ -141,12 +141,12 @@ fn table(header: &[&str], cols: &[Col], rows: &[Row], size: f32) -> Block {
             let color = colors.get(i).copied().flatten().unwrap_or(INK);
             for (j, l) in ls.iter().enumerate() {
                 let base = *y + pad + size * 0.9 + j as f32 * lead;
-                if c.right {
-                    let w = text_width(l, size, weight);
-                    b.text_in(x + c.width - pad - w, base, size, weight, color, l.clone());
+                let (at, anchor) = if c.right {
+                    (x + c.width - pad, 1.0)
                 } else {
-                    b.text_in(x + pad, base, size, weight, color, l.clone());
-                }
+                    (x + pad, 0.0)
+                };
+                b.text_anchored(at, anchor, base, size, weight, color, l.clone());
             }
             x += c.width;
         }
@@ -221,12 +221,13 @@ fn title_block(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     ];
     for (l1, v1, l2, v2) in fields {
         b.text_in(6.0, y + 9.0, 6.5, Weight::Regular, GREY, l1);
+        // A long path loses its leading folders, never the file name.
         b.text(
             6.0,
             y + 20.0,
             9.0,
             Weight::Bold,
-            fit(&v1, half - 12.0, 9.0, Weight::Bold),
+            fit_start(&v1, half - 12.0, 9.0, Weight::Bold),
         );
         b.text_in(half + 6.0, y + 9.0, 6.5, Weight::Regular, GREY, l2);
         b.text(
@@ -854,7 +855,8 @@ fn check_table(a: &Analysis, width: f32) -> Section {
         let at = match (c.bore_mm, c.stroke_mm) {
             (Some(b), Some(s)) => format!("bore {} stroke {}", f::mm(b), f::mm(s)),
             (Some(b), None) => format!("bore {}", f::mm(b)),
-            (None, Some(s)) => format!("stroke {}", f::mm(s)),
+            // Only the hub check has no bore: it is plane geometry at rest.
+            (None, Some(s)) => format!("on the hub, stroke {}", f::mm(s)),
             (None, None) => NONE.to_string(),
         };
         let limiting = a.limiting == Some(i);
@@ -1021,31 +1023,31 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
                 pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
                 y: op,
             },
-            Item::Series {
-                label: "first contact".to_string(),
-                pen: Pen::solid(INK, 1.2),
-                points: series(|r| r.first_contact_stroke_mm),
-            },
-            Item::Series {
-                label: "holding (required x SF)".to_string(),
-                pen: Pen::solid(GREEN, 1.2),
-                points: series(|r| r.holding_stroke_mm),
-            },
-            Item::Series {
-                label: "stress limit (factor 1)".to_string(),
-                pen: Pen::solid(RED, 1.2),
-                points: series(|r| r.stress_limit_stroke_mm),
-            },
-            Item::Series {
-                label: "line-contact onset".to_string(),
-                pen: Pen::dashed(BLUE, 1.1, &[4.0, 1.5]),
-                points: series(|r| r.line_contact_stroke_mm),
-            },
-            Item::Series {
-                label: format!("model limit{}", above(limit_top)),
-                pen: Pen::dashed(PURPLE, 1.1, &[6.0, 1.5, 1.5, 1.5]),
-                points: series(|r| r.limit_stroke_mm),
-            },
+            Item::series(
+                "first contact",
+                Pen::solid(INK, 1.2),
+                series(|r| r.first_contact_stroke_mm),
+            ),
+            Item::series(
+                "holding (required x SF)",
+                Pen::solid(GREEN, 1.2),
+                series(|r| r.holding_stroke_mm),
+            ),
+            Item::series(
+                "stress limit (factor 1)",
+                Pen::solid(RED, 1.2),
+                series(|r| r.stress_limit_stroke_mm),
+            ),
+            Item::series(
+                "line-contact onset",
+                Pen::dashed(BLUE, 1.1, &[4.0, 1.5]),
+                series(|r| r.line_contact_stroke_mm),
+            ),
+            Item::series(
+                format!("model limit{}", above(limit_top)),
+                Pen::dashed(PURPLE, 1.1, &[6.0, 1.5, 1.5, 1.5]),
+                series(|r| r.limit_stroke_mm),
+            ),
         ],
     };
     let mut b = plot.layout(width, 190.0);
@@ -1060,6 +1062,15 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
     );
     b.height = y - 6.0;
     section("Stroke against bore", width, vec![b])
+}
+
+/// The operating stroke across a plot against stroke.
+fn stroke_marker(op: f64) -> Item {
+    Item::VLine {
+        label: format!("operating stroke {}", f::mm(op)),
+        pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+        x: op,
+    }
 }
 
 fn curve_plots(a: &Analysis, width: f32) -> Section {
@@ -1115,11 +1126,7 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
     };
     let first = a.curve.first().and_then(|s| s.first_contact_stroke_mm);
     let mut items = vec![
-        Item::VLine {
-            label: format!("operating stroke {}", f::mm(op)),
-            pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-            x: op,
-        },
+        stroke_marker(op),
         Item::HLine {
             label: format!("required holding {}", f::newton(required)),
             pen: Pen::dashed(GREEN, 1.0, &[5.0, 2.5]),
@@ -1130,26 +1137,26 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
             pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
             y: pull,
         },
-        Item::Series {
-            label: "actuator pull N P".to_string(),
-            pen: Pen::solid(ORANGE, 1.2),
-            points: pts(|s| s.actuator_force_n),
-        },
-        Item::Series {
-            label: "radial force N F".to_string(),
-            pen: Pen::solid(BLUE, 1.2),
-            points: pts(|s| s.radial_force_n),
-        },
-        Item::Series {
-            label: "holding force μ N F".to_string(),
-            pen: Pen::solid(GREEN, 1.2),
-            points: pts(|s| s.holding_force_n),
-        },
-        Item::Series {
-            label: "contact force per strip F".to_string(),
-            pen: Pen::dashed(BLUE, 0.9, &[3.0, 1.5]),
-            points: pts(|s| s.contact_force_per_strip_n),
-        },
+        Item::series(
+            "actuator pull N P",
+            Pen::solid(ORANGE, 1.2),
+            pts(|s| s.actuator_force_n),
+        ),
+        Item::series(
+            "radial force N F",
+            Pen::solid(BLUE, 1.2),
+            pts(|s| s.radial_force_n),
+        ),
+        Item::series(
+            "holding force μ N F",
+            Pen::solid(GREEN, 1.2),
+            pts(|s| s.holding_force_n),
+        ),
+        Item::series(
+            "contact force per strip F",
+            Pen::dashed(BLUE, 0.9, &[3.0, 1.5]),
+            pts(|s| s.contact_force_per_strip_n),
+        ),
     ];
     if let Some(fc) = first {
         items.insert(
@@ -1202,11 +1209,7 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
         x_range: (0.0, x_end),
         y_range: (0.0, if smax.is_finite() { 1.1 * smax } else { 1.0 }),
         items: vec![
-            Item::VLine {
-                label: format!("operating stroke {}", f::mm(op)),
-                pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-                x: op,
-            },
+            stroke_marker(op),
             Item::HLine {
                 label: format!(
                     "static allowable 0.75 Su {}",
@@ -1223,11 +1226,11 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
                 pen: Pen::dashed(PURPLE, 1.0, &[2.0, 1.5]),
                 y: seg.fatigue_allowable_mpa,
             },
-            Item::Series {
-                label: "peak stress σ".to_string(),
-                pen: Pen::solid(INK, 1.2),
-                points: pts(|s| s.max_stress_mpa),
-            },
+            Item::series(
+                "peak stress σ",
+                Pen::solid(INK, 1.2),
+                pts(|s| s.max_stress_mpa),
+            ),
         ],
     };
     let mut b1 = forces.layout(width, 170.0);
@@ -1289,6 +1292,8 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     let big_r = 0.5 * bore_d;
     let l = s.free_length_mm as f32;
     let plate_t = (0.04 * l).max(1.0);
+    // The walls and the axis run past the plates by this much at either end.
+    let overhang = 0.12 * l;
     let side_w_mm = l + 2.0 * plate_t + 0.25 * l;
     let view_max_pt: f32 = 230.0;
     let side_box = 0.6 * width;
@@ -1319,12 +1324,13 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             f::mm(op)
         ),
     );
-    // Side view: x along the axis from the first end plate.
-    let x0 = 0.5 * (side_box - side_w_mm * scale_pt) + plate_t * scale_pt;
+    // Side view: x along the axis from the first end plate; the drawing, from the left
+    // overhang to the right one, is centred in its box.
+    let x0 = 0.5 * (side_box - side_w_mm * scale_pt) + (0.125 * l + plate_t) * scale_pt;
     let px = |x: f32| x0 + x * scale_pt;
     let py = |r: f32| cy - r * scale_pt;
     let chord = (l - op as f32).max(0.0);
-    let ext = (0.12 * l, chord + 0.12 * l);
+    let ext = (overhang, chord + overhang);
     // Axis (dash-dot), bore walls with hatching on the wall side.
     b.polyline(
         vec![[px(-ext.0 - plate_t), cy], [px(ext.1 + plate_t), cy]],

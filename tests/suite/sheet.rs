@@ -278,6 +278,14 @@ fn assert_inside(name: &str, laid: &SheetLayout) {
             t.baseline_pt
         );
     }
+    // Every line and filled area (rules, plot frames, the side and end views) lies inside
+    // the printable area as well.
+    for (page, [l, t, r, b]) in laid.drawing_extents() {
+        assert!(
+            l >= left - tol && t >= top - tol && r <= right + tol && b <= bottom + tol,
+            "{name}: drawing outside the printable area on page {page}: x {l}..{r}, y {t}..{b}"
+        );
+    }
     // No two lines of text on one baseline run into each other (table cells, legends,
     // tick labels, title-block fields).
     for (i, a) in laid.texts.iter().enumerate() {
@@ -348,6 +356,36 @@ fn every_section_and_line_fits_the_printable_area_on_both_papers() {
             }
         }
     }
+}
+
+#[test]
+fn a_long_file_path_keeps_its_file_name_and_hash() {
+    let (d, text) = sample("riser-climber-2in-sch40.ron");
+    let path = format!("/{}/riser-climber-2in-sch40.ron", "deep-folder/".repeat(12));
+    let laid = sheet::layout_dated(
+        &d,
+        &path,
+        text.as_bytes(),
+        Paper::A4,
+        "2026-01-01 00:00 UTC",
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    let hash = sheet::content_hash16(text.as_bytes());
+    // The title block and every running header name the file; a path too long for the
+    // field loses its leading folders (an ellipsis marks the cut), never the name or hash.
+    let naming: Vec<&str> = laid
+        .texts
+        .iter()
+        .filter(|t| t.text.contains("riser-climber-2in-sch40.ron"))
+        .map(|t| t.text.as_str())
+        .collect();
+    assert_eq!(naming.len(), laid.pages, "{naming:?}");
+    for t in &naming {
+        assert!(t.starts_with('…'), "{t}");
+    }
+    let headers = naming.iter().filter(|t| t.ends_with(&hash)).count();
+    assert_eq!(headers, laid.pages - 1, "{naming:?}");
+    assert_inside("long path", &laid);
 }
 
 #[test]
