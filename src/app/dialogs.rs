@@ -432,19 +432,20 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                 return;
             };
             let base = app.dialogs.export_base.trim().to_string();
+            let svg = |title: &str, x: &str, y: &str, curves: Vec<outputs::Curve>| {
+                let series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
+                export::svg_chart(title, x, y, &series)
+            };
             let jobs: [ExportJob<'_>; 5] = [
                 (
                     "Stroke-bore plot (SVG)",
                     "-window.svg",
                     Box::new(|| {
-                        export::svg_chart(
+                        svg(
                             "Stroke against bore",
                             "bore diameter, mm",
                             "stroke, mm",
-                            &outputs::window_curves(a)
-                                .iter()
-                                .map(outputs::Curve::to_svg)
-                                .collect::<Vec<_>>(),
+                            outputs::window_curves(a),
                         )
                     }),
                 ),
@@ -452,14 +453,11 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     "Force plot (SVG)",
                     "-forces.svg",
                     Box::new(|| {
-                        export::svg_chart(
+                        svg(
                             "Forces against stroke, nominal bore",
                             "stroke, mm",
                             "force, N",
-                            &outputs::force_curves(a)
-                                .iter()
-                                .map(outputs::Curve::to_svg)
-                                .collect::<Vec<_>>(),
+                            outputs::force_curves(a),
                         )
                     }),
                 ),
@@ -467,14 +465,11 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     "Stress plot (SVG)",
                     "-stress.svg",
                     Box::new(|| {
-                        export::svg_chart(
+                        svg(
                             "Peak stress against stroke, nominal bore",
                             "stroke, mm",
                             "stress, MPa",
-                            &outputs::stress_curves(a)
-                                .iter()
-                                .map(outputs::Curve::to_svg)
-                                .collect::<Vec<_>>(),
+                            outputs::stress_curves(a),
                         )
                     }),
                 ),
