@@ -358,3 +358,54 @@ fn recovery_copy_is_offered_after_a_crash() {
         Some(&edited)
     );
 }
+
+#[test]
+fn an_actuator_travel_far_above_the_curves_is_named_in_the_heading() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    let a = h
+        .state()
+        .analysis()
+        .unwrap_or_else(|| panic!("no analysis"));
+    // The demo's screw gives far more travel than any stroke in its window: a line there
+    // would squeeze the curves flat, so the plot's heading names it instead (the app
+    // draws the line only within 1.4 times the highest curve).
+    let top = a
+        .window
+        .iter()
+        .flat_map(|r| {
+            [
+                r.first_contact_stroke_mm,
+                r.holding_stroke_mm,
+                r.stress_limit_stroke_mm,
+                r.line_contact_stroke_mm,
+                r.limit_stroke_mm,
+            ]
+        })
+        .flatten()
+        .fold(0.0, f64::max);
+    let travel = a.segment.max_stroke_mm();
+    assert!(travel > 1.4 * top, "travel {travel} mm, curves to {top} mm");
+    let note = format!("actuator max travel {travel:.2} mm: above the plotted range");
+    assert!(h.query_by_label_contains(&note).is_some(), "no {note:?}");
+
+    // A travel within reach of the curves is drawn as a line, and the note goes.
+    let lead_mm = match &h.state().design().actuator {
+        design::Actuator::LeadScrew { lead_mm, .. } => *lead_mm,
+        other => panic!("the demo drives a lead screw, not {other:?}"),
+    };
+    let turns = (120.0 * top / lead_mm).round() / 100.0;
+    h.get_by_role_and_label(Role::TextInput, "Max turns")
+        .set_text_value_accesskit(&turns.to_string());
+    h.run();
+    assert!(
+        h.state()
+            .analysis()
+            .is_some_and(|a| a.segment.max_stroke_mm() < 1.4 * top)
+    );
+    assert!(
+        h.query_by_label_contains("above the plotted range")
+            .is_none()
+    );
+}
