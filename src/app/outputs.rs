@@ -123,9 +123,9 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
 
 fn fmt_margin(m: Option<f64>, unit: MarginUnit) -> String {
     match (m, unit) {
-        (None, _) => "no margin".to_string(),
-        (Some(m), MarginUnit::Mm) => format!("{m:+.3} mm"),
-        (Some(m), MarginUnit::Ratio) => format!("{m:+.3} ({:+.1} %)", 100.0 * m),
+        (None, _) => "no margin (no state to judge)".to_string(),
+        (Some(m), MarginUnit::Mm) => format!("margin {m:+.3} mm"),
+        (Some(m), MarginUnit::Ratio) => format!("margin {m:+.3} ({:+.1} %)", 100.0 * m),
     }
 }
 
@@ -161,7 +161,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                     (None, _) => "judged on the hub at rest".to_string(),
                 };
                 ui.label(RichText::new(head).color(col).strong()).on_hover_text(where_);
-                ui.label(format!("{}: margin {}", if c.pass { "pass" } else { "FAIL" }, fmt_margin(c.margin, c.unit)));
+                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, fmt_margin(c.margin, c.unit)));
                 ui.label(RichText::new(&c.reason).small());
             });
         }
@@ -176,8 +176,9 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         }
         ui.separator();
-        let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(0.0_f64, f64::max);
-        ui.label(RichText::new(format!("Caution: the strips store up to {energy:.3} J at the operating stroke and can snap or spring out when released or broken.")).color(C_ACT));
+        let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
+        let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
+        ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));
         if ui.button("Safety cautions").on_hover_text("Hazards of building and using bowed-strip segments.").clicked() {
             app.dialogs.show_cautions = true;
         }
@@ -253,7 +254,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             force_rect,
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
-            rating.note(),
+            rating.note().filter(|_| !a.curve.is_empty()),
             |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
         );
     });
@@ -663,6 +664,21 @@ fn phase_backdrop(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, bands: &[Band], m
     );
 }
 
+/// In place of a plot against stroke when the nominal bore has no curve: says why, in the
+/// plot's space.
+fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
+    let size = Vec2::new(ui.available_width(), height);
+    ui.allocate_ui_with_layout(size, egui::Layout::centered_and_justified(egui::Direction::TopDown), |ui| {
+        ui.label(
+            RichText::new(format!(
+                "No curve: the relaxed segment does not fit the nominal bore, {:.2} mm, so the model has no state there.",
+                a.segment.bore_nominal_mm
+            ))
+            .color(error_color(ui)),
+        );
+    });
+}
+
 fn force_plot(
     ui: &mut Ui,
     a: &Analysis,
@@ -671,6 +687,10 @@ fn force_plot(
     need: f64,
     height: f32,
 ) {
+    if a.curve.is_empty() {
+        no_curve_ui(ui, a, height);
+        return;
+    }
     let curve = &a.curve;
     let mark = marker(ui);
     let bands = phase_bands(a);
@@ -697,6 +717,10 @@ fn force_plot(
 }
 
 fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
+    if a.curve.is_empty() {
+        no_curve_ui(ui, a, height);
+        return;
+    }
     let seg = &a.segment;
     let curves = stress_curves(a);
     let curve = &a.curve;
@@ -807,13 +831,16 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
         painter.rect_filled(r, 1.0, C_STEEL.gamma_multiply(0.45));
     }
     if shape.len() < 2 {
-        painter.text(
-            rect.center(),
-            egui::Align2::CENTER_CENTER,
-            "no shape: beyond the model's limit",
-            egui::FontId::proportional(13.0),
-            fg,
-        );
+        let why = if a.curve.is_empty() {
+            "no shape: the relaxed strips do not fit this bore"
+        } else {
+            "no shape: beyond the model's limit"
+        };
+        let galley = painter.layout_no_wrap(why.to_string(), egui::FontId::proportional(13.0), fg);
+        let at = egui::Align2::CENTER_CENTER.anchor_size(rect.center(), galley.size());
+        // On the panel's colour, so the axis line does not run through the words.
+        painter.rect_filled(at.expand(3.0), 2.0, ui.visuals().panel_fill);
+        painter.galley(at.min, galley, fg);
         return;
     }
     // Strip and its mirror; the part on the wall (flat run) in bold.

@@ -409,3 +409,33 @@ fn an_actuator_travel_far_above_the_curves_is_named_in_the_heading() {
             .is_none()
     );
 }
+
+#[test]
+fn a_bore_the_relaxed_strips_do_not_fit_says_so_in_every_panel() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    // A bore just below the relaxed diameter over the strips: the gap is negative, the
+    // model has no state there (the project's contract: g <= 0 has no state).
+    let d = h.state().design().clone();
+    let corners = 2.0
+        * ((d.mount_radius_mm + 0.5 * d.strip.thickness_mm).powi(2)
+            + 0.25 * d.strip.width_mm.powi(2))
+        .sqrt();
+    let bore = (corners - 1.0).floor();
+    h.get_by_role_and_label(Role::TextInput, "Bore diameter")
+        .set_text_value_accesskit(&bore.to_string());
+    h.run();
+    assert_eq!(h.state().design().bore.diameter_mm, bore);
+    assert!(h.state().analysis().is_some_and(|a| a.curve.is_empty()));
+    // The force and stress cells say why they are empty instead of drawing empty axes.
+    let why = "No curve: the relaxed segment does not fit the nominal bore";
+    assert_eq!(h.query_all_by_label_contains(why).count(), 2);
+    // No stored energy is claimed for strips that have no state; the caution stays.
+    assert!(h.query_by_label_contains("store up to").is_none());
+    assert!(
+        h.query_by_label_contains("Caution: the strips store spring energy")
+            .is_some()
+    );
+    assert!(h.query_by_label_contains("margin no margin").is_none());
+}
