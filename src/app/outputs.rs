@@ -271,7 +271,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.vertical(|ui| {
             ui.set_width(cell.x);
             let (stroke, shape, note) = match &app.fallback_shape {
-                Some((s, shape)) => (*s, shape.as_slice(), format!(" (operating stroke is past the limit; drawn at {s:.3} mm)")),
+                Some((s, shape)) => (*s, shape.as_slice(), format!(" (the operating stroke, {:.3} mm, is past the model's limit)", seg.design.operating_stroke_mm)),
                 None => (seg.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
             };
             ui.strong(format!("To scale at {stroke:.3} mm stroke{note}")).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
@@ -283,11 +283,11 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             if long {
                 let side_h = (h * 0.66).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
                 side_view(ui, a, shape, Vec2::new(w, side_h));
-                end_view(ui, a, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
+                end_view(ui, a, shape, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
             } else {
                 ui.horizontal(|ui| {
                     side_view(ui, a, shape, Vec2::new(w * 0.62, h));
-                    end_view(ui, a, Vec2::new(w * 0.36, h));
+                    end_view(ui, a, shape, Vec2::new(w * 0.36, h));
                 });
             }
         });
@@ -880,7 +880,7 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     );
 }
 
-fn end_view(ui: &mut Ui, a: &Analysis, size: Vec2) {
+fn end_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     let (resp, painter) = ui.allocate_painter(size, egui::Sense::hover());
     let rect = resp.rect.shrink(8.0);
     let d = &a.segment.design;
@@ -907,12 +907,21 @@ fn end_view(ui: &mut Ui, a: &Analysis, size: Vec2) {
         plate_r as f32 * scale.px_per_mm,
         C_STEEL.gamma_multiply(0.35),
     );
+    // The crest of the state drawn beside: the operating state's, or, when the operating
+    // stroke is past the limit, that of the shape drawn in its place (its radius over the
+    // mount radius).
     let crest = a
         .bores
         .iter()
         .find(|b| b.case == BoreCase::Nominal)
         .and_then(|b| b.operating.as_ref().ok())
         .and_then(|s| s.crest_height_mm)
+        .or_else(|| {
+            shape
+                .iter()
+                .map(|p| p[1] - d.mount_radius_mm)
+                .reduce(f64::max)
+        })
         .unwrap_or(0.0);
     let n = d.strip.count;
     let (b, t) = (d.strip.width_mm, d.strip.thickness_mm.max(0.02));
