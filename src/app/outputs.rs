@@ -165,6 +165,15 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 ui.label(RichText::new(&c.reason).small());
             });
         }
+        if !a.cautions.is_empty() {
+            ui.separator();
+            ui.label(RichText::new("Geometry caution").color(error_color(ui)).strong()).on_hover_text(
+                "Not one of the checks: the model lets a strip pass through the end plates and through itself, so states past this point are not physical. Shorten the operating stroke or narrow the gap to the wall.",
+            );
+            for c in &a.cautions {
+                ui.label(RichText::new(c).color(error_color(ui)).small());
+            }
+        }
         ui.separator();
         ui.strong("At the operating stroke, nominal bore");
         if let Some(b) = a.bores.iter().find(|b| b.case == BoreCase::Nominal) {

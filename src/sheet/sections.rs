@@ -351,6 +351,17 @@ fn summary(a: &Analysis, width: f32) -> Section {
             ) + 2.0;
         }
     }
+    for c in &a.cautions {
+        y = b.paragraph(
+            0.0,
+            y,
+            width,
+            BODY,
+            Weight::Bold,
+            RED,
+            &format!("Geometry caution: {c}."),
+        ) + 2.0;
+    }
     let d = &a.segment.design;
     if let Some(s) = bore(a, BoreCase::Nominal).and_then(state_of)
         && let (Some(h), Some(p)) = (s.holding_force_n, s.actuator_force_n)
@@ -910,6 +921,21 @@ fn check_table(a: &Analysis, width: f32) -> Section {
             if all { "every check passes" } else { "at least one check fails" }
         ),
     );
+    let mut y = y;
+    if !a.cautions.is_empty() {
+        y = b.paragraph(
+            0.0,
+            y,
+            width,
+            SMALL,
+            Weight::Bold,
+            RED,
+            &format!(
+                "Geometry cautions (beside the checks, which judge the model as stated): the model lets a strip pass through the end plates and through itself. {}.",
+                a.cautions.iter().map(|c| cap(c)).collect::<Vec<_>>().join(". ")
+            ),
+        );
+    }
     b.height = y - 6.0;
     section("Checks", width, vec![b])
 }

@@ -49,6 +49,22 @@ fn designs() -> Vec<(String, Design)> {
         }),
     ));
     out.push((
+        "wide-gap".to_string(),
+        with(&|d| {
+            // Invented: hinged strips far from a wide bore (g/L 0.23), run to delta/L 0.45,
+            // where they swing behind the hinge plane: the geometry caution must show.
+            d.title = "Wide gap: strips swing behind the plates".to_string();
+            d.strip.free_length_mm = 60.0;
+            d.strip.width_mm = 8.0;
+            d.strip.thickness_mm = 0.2;
+            d.strip.ends = design::Ends::Hinged;
+            d.mount_radius_mm = 36.0;
+            d.end_plate_diameter_mm = 70.0;
+            d.bore.diameter_mm = 100.0;
+            d.operating_stroke_mm = 27.0;
+        }),
+    ));
+    out.push((
         "no-state".to_string(),
         with(&|d| {
             // Below the strips' corner diameter at every bore of the band: no state.
@@ -432,4 +448,32 @@ fn an_invalid_design_is_refused_with_the_reason() {
         msg.contains("bad.ron") && msg.contains("strip.thickness_mm"),
         "{msg}"
     );
+}
+
+#[test]
+fn geometry_cautions_reach_the_first_page_and_the_checks() {
+    let all = designs();
+    let wide = all
+        .iter()
+        .find(|(name, _)| name == "wide-gap")
+        .map(|(_, d)| d.clone())
+        .expect("design");
+    let a = analyse(&wide).expect("analyses");
+    assert!(
+        !a.cautions.is_empty(),
+        "the test design must raise a caution"
+    );
+    let pdf = sheet::render(&wide, "wide.ron", b"w", Paper::A4).expect("renders");
+    let (_, text) = pdf_text(&pdf);
+    assert!(
+        text.contains("Geometry caution: at the smallest bore"),
+        "{text}"
+    );
+    assert!(
+        text.contains("Geometry cautions (beside the checks"),
+        "{text}"
+    );
+    // The default design has none.
+    let pdf = sheet::render(&Design::default(), "d.ron", b"d", Paper::A4).expect("renders");
+    assert!(!pdf_text(&pdf).1.contains("Geometry caution"));
 }
