@@ -269,8 +269,10 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
         )
     } else {
         format!(
-            "peak {stress:.1} MPa, zero-to-peak, vs fatigue strength {:.1} MPa at {} cycles and tensile {:.0} MPa: Goodman factor {fos:.3}",
-            seg.fatigue_strength_mpa, seg.design.duty.cycles, seg.material.tensile_strength_mpa
+            "peak {stress:.1} MPa, zero-to-peak, vs fatigue strength {:.1} MPa at {} cycles and tensile {:.0} MPa: Goodman factor of safety {fos:.3}",
+            seg.fatigue_strength_mpa,
+            grouped_count(seg.design.duty.cycles),
+            seg.material.tensile_strength_mpa
         )
     };
     Check {
@@ -388,4 +390,18 @@ pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
         ))
     })
     .collect()
+}
+
+/// A whole count with its digits in groups of three, space-separated (`1 000 000`), as
+/// ISO 80000-1 writes large numbers.
+pub fn grouped_count(n: u64) -> String {
+    let digits = n.to_string();
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i).is_multiple_of(3) {
+            out.push(' ');
+        }
+        out.push(c);
+    }
+    out
 }

@@ -91,15 +91,7 @@ pub fn in_unit(v: f64, unit: &str) -> String {
 
 /// A whole count with thin grouping: `1 000 000`.
 pub fn count(n: u64) -> String {
-    let digits = n.to_string();
-    let mut out = String::new();
-    for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (digits.len() - i).is_multiple_of(3) {
-            out.push(' ');
-        }
-        out.push(c);
-    }
-    out
+    crate::checks::grouped_count(n)
 }
 
 /// Proleptic Gregorian date `(year, month, day)` of a day count since 1970-01-01.
