@@ -143,6 +143,10 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
         ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one, or mm.").small());
+        // The stored-energy caution sits at the top, where it is seen without scrolling.
+        let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
+        let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
+        ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));
         ui.separator();
         for (i, c) in a.checks.iter().enumerate() {
             let limiting = a.limiting == Some(i);
@@ -185,9 +189,6 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         }
         ui.separator();
-        let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
-        let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
-        ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));
         if ui.button("Safety cautions").on_hover_text("Hazards of building and using bowed-strip segments.").clicked() {
             app.dialogs.show_cautions = true;
         }
