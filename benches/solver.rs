@@ -6,9 +6,10 @@
 use std::hint::black_box;
 
 use bowgrip::analysis;
-use bowgrip::design::Design;
+use bowgrip::design::{Design, Ends};
+use bowgrip::elastica::Path;
 use bowgrip::segment::Segment;
-use criterion::{Criterion, criterion_group, criterion_main};
+use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 
 fn bench(c: &mut Criterion) {
     let design = Design::default();
@@ -35,6 +36,37 @@ fn bench(c: &mut Criterion) {
                 .map(|p| p.state(black_box(line_stroke)))
         })
     });
+    // The same cold operating point over a spread of paths, so that the figure is not one
+    // lucky case: 16 gaps from g/L = 0.01 to 0.30, both end conditions, mid-way through
+    // point contact (criterion reports the time for all 32; divide by 32 per point).
+    let spread: Vec<(Ends, f64, f64)> = (0..16)
+        .flat_map(|i| {
+            let gap = 0.01 + 0.29 * i as f64 / 15.0;
+            [Ends::Clamped, Ends::Hinged].map(|ends| {
+                let p = Path::new(ends, gap).expect("a positive gap");
+                let mid = 0.5
+                    * (p.first_contact_stroke().expect("reachable")
+                        + p.line_contact_stroke().expect("line contact"));
+                (ends, gap, mid)
+            })
+        })
+        .collect();
+    let mut group = c.benchmark_group("operating point spread");
+    group.throughput(Throughput::Elements(spread.len() as u64));
+    group.bench_function("32 cold point-contact states, g/L 0.01 to 0.30", |b| {
+        b.iter(|| {
+            spread
+                .iter()
+                .map(|&(ends, gap, s)| {
+                    Path::new(ends, black_box(gap)).map(|p| {
+                        let st = p.state(black_box(s));
+                        st.contact + p.limit().stroke
+                    })
+                })
+                .fold(0.0, |acc, r| acc + r.unwrap_or(0.0))
+        })
+    });
+    group.finish();
     c.bench_function("400-point curve + 200-bore window", |b| {
         let (lo, hi) = analysis::window_range_mm(&seg);
         b.iter(|| {

@@ -428,6 +428,18 @@ fn line_d(k: D, gap: f64) -> LineQ {
     }
 }
 
+/// The flat-run buckling margin `P (L - 2l)^2 - 4 pi^2` (clamped form) in line contact at
+/// modulus `k`, in plain arithmetic for scans that want only its sign.
+fn line_buckling_margin(k: f64, gap: f64) -> f64 {
+    let (kk, _, dc) = elliptic::complete3(k);
+    let k2 = k * k;
+    let reach = (1.0 - 2.0 * k2 * dc / kk) * 2.0 * k * ((1.0 - k) * (1.0 + k)).sqrt();
+    let arc = gap / reach;
+    let lam = 4.0 * kk / arc;
+    let flat = 1.0 - 2.0 * arc;
+    lam * lam * (1.0 - 2.0 * k2) * flat * flat - 4.0 * PI * PI
+}
+
 // ---------------------------------------------------------------------------------------
 // Scalar root finding with iteration bounds.
 
@@ -840,6 +852,122 @@ fn branch_table() -> &'static BranchTable {
     TABLE.get_or_init(BranchTable::build)
 }
 
+/// The reach `c sin(alpha) / l` where the axial force of line contact vanishes
+/// (`k = 1/sqrt 2`); a constant of the elastica family.
+fn reach_at_axial_zero() -> f64 {
+    use std::sync::OnceLock;
+    static R: OnceLock<f64> = OnceLock::new();
+    *R.get_or_init(|| reach_d(D::c(std::f64::consts::FRAC_1_SQRT_2)).v)
+}
+
+/// Seed for the first-contact modulus from the series `k = x (1 + x^2/4 + 17 x^4/64)`,
+/// `x = pi g / 2` (inverting `k / K(k) = g` with `K` from DLMF 19.5.1).
+fn first_contact_series(gap: f64) -> f64 {
+    let x = FRAC_PI_2 * gap;
+    x * (1.0 + x * x * (0.25 + 17.0 / 64.0 * x * x))
+}
+
+/// Seed for the line-onset modulus from `reach = 2k (1 - 3k^2/2 + k^4/4) + O(k^7)`, inverted.
+fn line_onset_series(gap: f64) -> f64 {
+    gap * (1.0 + gap * gap * (1.5 + 6.5 * gap * gap))
+}
+
+/// First contact at `gap`: the free crest height `k / K` reaches the gap. Signs known:
+/// the crest is 0 < g at k = 0 and the highest crest > g at its modulus. Returns the
+/// modulus and the stroke there (carried along to the root).
+fn solve_first_contact(gap: f64, seed: f64) -> Option<(f64, f64)> {
+    let mut stroke = Carried::NONE;
+    let k1 = newton_signed(0.0, k_highest_crest(), true, seed, 1e-15, |k| {
+        let [s, _, crest, _, _] = free_d(D::var(k, 0));
+        stroke.record(k, s);
+        (crest.v - gap, crest.d[0])
+    })?;
+    let d1 = stroke.at(k1).unwrap_or_else(|| free_d(D::c(k1))[0].v);
+    Some((k1, d1))
+}
+
+/// Line-contact onset at `gap`: `c sin(alpha) / l = 2 g` on the rising side of the fold.
+/// Signs known: the reach is 0 < 2g at k = 0 and peaks above 2g at the fold (for gaps
+/// below [`max_line_contact_gap`]). Returns the modulus and the stroke there: at the onset
+/// `l = L/2`, so the stroke is `2 k^2 (1 + D cos(alpha) / K)`.
+fn solve_line_onset(gap: f64, seed: f64) -> Option<(f64, f64)> {
+    let mut stroke = Carried::NONE;
+    let ks = newton_signed(0.0, k_line_fold(), true, seed, 1e-15, |k| {
+        let kd = D::var(k, 0);
+        let (r, kk, dc) = line_reach_d(kd);
+        let k2 = kd.sq();
+        let cos_a = 1.0 - 2.0 * k2;
+        stroke.record(k, 2.0 * (k2 * (D::c(1.0) + dc * cos_a / kk)));
+        (r.v - 2.0 * gap, r.d[0])
+    })?;
+    let ds = stroke
+        .at(ks)
+        .unwrap_or_else(|| line_d(D::c(ks), gap).stroke.v);
+    Some((ks, ds))
+}
+
+/// First-contact and line-onset moduli against the gap, solved once per process at 65
+/// gaps each and interpolated (4-point Lagrange) as Newton seeds: within about 1e-9, so
+/// that one evaluation usually settles a path's set-up, where the series seeds lose
+/// digits at large gaps. The ranges stop short of the folds (the highest crest near
+/// g/L 0.40, the line-contact fold at 0.32), where the moduli turn with a square root.
+struct ModulusTable {
+    first_contact: Vec<f64>,
+    line_onset: Vec<f64>,
+}
+
+impl ModulusTable {
+    const POINTS: usize = 65;
+    const FIRST_CONTACT_MAX: f64 = 0.36;
+    const LINE_ONSET_MAX: f64 = 0.30;
+
+    fn build() -> ModulusTable {
+        let column =
+            |g_max: f64, series: fn(f64) -> f64, solve: fn(f64, f64) -> Option<(f64, f64)>| {
+                (0..Self::POINTS)
+                    .map(|i| {
+                        let gap = g_max * i as f64 / (Self::POINTS - 1) as f64;
+                        if i == 0 {
+                            return 0.0;
+                        }
+                        solve(gap, series(gap)).map_or(f64::NAN, |(k, _)| k)
+                    })
+                    .collect()
+            };
+        ModulusTable {
+            first_contact: column(
+                Self::FIRST_CONTACT_MAX,
+                first_contact_series,
+                solve_first_contact,
+            ),
+            line_onset: column(Self::LINE_ONSET_MAX, line_onset_series, solve_line_onset),
+        }
+    }
+
+    fn at(values: &[f64], g_max: f64, gap: f64) -> Option<f64> {
+        if !(gap > 0.0 && gap <= g_max) {
+            return None;
+        }
+        let (i0, w) = lagrange4(gap / g_max * (Self::POINTS - 1) as f64, Self::POINTS);
+        let k: f64 = (0..4).map(|m| w[m] * values[i0 + m]).sum();
+        k.is_finite().then_some(k)
+    }
+
+    fn first_contact(&self, gap: f64) -> Option<f64> {
+        Self::at(&self.first_contact, Self::FIRST_CONTACT_MAX, gap)
+    }
+
+    fn line_onset(&self, gap: f64) -> Option<f64> {
+        Self::at(&self.line_onset, Self::LINE_ONSET_MAX, gap)
+    }
+}
+
+fn modulus_table() -> &'static ModulusTable {
+    use std::sync::OnceLock;
+    static TABLE: OnceLock<ModulusTable> = OnceLock::new();
+    TABLE.get_or_init(ModulusTable::build)
+}
+
 /// A by-product of a Newton solve carried to its root: the value and slope of a second
 /// quantity at the last point the solve evaluated, extended linearly to the root. The
 /// solves stop once a step is below `sqrt(1e-15)` relative, so the neglected quadratic
@@ -988,50 +1116,23 @@ impl Path {
             limit_cache: std::cell::OnceCell::new(),
             peaks_cache: std::cell::OnceCell::new(),
         };
-        let k_top = k_highest_crest();
         if gap >= max_reachable_gap() {
             return Ok(path);
         }
-        // First contact: crest height k/K rises with k up to k_top. Seed from the series
-        // k = x (1 + x^2/4 + 17 x^4/64), x = pi g / 2 (inverting k/K with K from DLMF 19.5.1).
-        let x = FRAC_PI_2 * gap;
-        let seed = x * (1.0 + x * x * (0.25 + 17.0 / 64.0 * x * x));
-        // Signs known: crest 0 < g at k = 0 and the highest crest > g at k_top. The stroke
-        // is carried along to the root.
-        let mut stroke = Carried::NONE;
-        let k1 = newton_signed(0.0, k_top, true, seed, 1e-15, |k| {
-            let [s, _, crest, _, _] = free_d(D::var(k, 0));
-            stroke.record(k, s);
-            (crest.v - gap, crest.d[0])
-        });
-        let Some(k1) = k1 else {
+        let seeds = modulus_table();
+        let seed = seeds
+            .first_contact(gap)
+            .unwrap_or_else(|| first_contact_series(gap));
+        let Some((k1, d1)) = solve_first_contact(gap, seed) else {
             path.branch_lost = true;
             return Ok(path);
         };
-        let d1 = stroke.at(k1).unwrap_or_else(|| free_d(D::c(k1))[0].v);
         path.first_contact = Some((k1, d1));
-        // Line-contact onset: c sin(alpha)/l = 2 g on the rising side of the fold.
-        let k_fold = k_line_fold();
         if gap < max_line_contact_gap() {
-            // Signs known: reach 0 < 2g at k = 0 and the peak reach > 2g at the fold.
-            // Seed from reach = 2k (1 - 3k^2/2 + k^4/4) + O(k^7), inverted.
-            let seed = gap * (1.0 + gap * gap * (1.5 + 6.5 * gap * gap));
-            // At the onset l = L/2, so the stroke is 2 k^2 (1 + D cos(alpha) / K).
-            let mut stroke = Carried::NONE;
-            let ks = newton_signed(0.0, k_fold, true, seed, 1e-15, |k| {
-                let kd = D::var(k, 0);
-                let (r, kk, dc) = line_reach_d(kd);
-                let k2 = kd.sq();
-                let cos_a = 1.0 - 2.0 * k2;
-                stroke.record(k, 2.0 * (k2 * (D::c(1.0) + dc * cos_a / kk)));
-                (r.v - 2.0 * gap, r.d[0])
-            });
-            if let Some(ks) = ks {
-                let ds = stroke
-                    .at(ks)
-                    .unwrap_or_else(|| line_d(D::c(ks), gap).stroke.v);
-                path.line_onset = Some((ks, ds));
-            }
+            let seed = seeds
+                .line_onset(gap)
+                .unwrap_or_else(|| line_onset_series(gap));
+            path.line_onset = solve_line_onset(gap, seed);
         }
         Ok(path)
     }
@@ -1144,12 +1245,24 @@ impl Path {
             }
         }
         // The flat run closes again where the reach falls back to 2 g beyond the fold.
-        let k_close = newton_bracketed(k_fold, 0.999_999, 0.5 * (k_fold + 1.0), 1e-15, |k| {
-            let r = reach_d(D::var(k, 0));
-            (r.v - 2.0 * gap, r.d[0])
-        })
-        .unwrap_or(0.999_999);
-        let k_axial = std::f64::consts::FRAC_1_SQRT_2; // cos(alpha) = 1 - 2k^2 = 0
+        // Signs known: the reach peaks above 2 g at the fold (line contact began) and
+        // falls to 0 as k -> 1.
+        // The reach does not depend on the gap, so its values at the fold and where the
+        // axial force vanishes (cos(alpha) = 1 - 2k^2 = 0) are constants: when 2 g is below
+        // the latter, the axial force vanishes first and no solve is needed; otherwise
+        // the closing lies between the two, seeded by a straight line between them.
+        let k_axial = std::f64::consts::FRAC_1_SQRT_2;
+        let (r_fold, r_axial) = (2.0 * max_line_contact_gap(), reach_at_axial_zero());
+        let k_close = if 2.0 * gap <= r_axial {
+            1.0
+        } else {
+            let seed = k_fold + (k_axial - k_fold) * (r_fold - 2.0 * gap) / (r_fold - r_axial);
+            newton_signed(k_fold, k_axial, false, seed, 1e-15, |k| {
+                let r = reach_d(D::var(k, 0));
+                (r.v - 2.0 * gap, r.d[0])
+            })
+            .unwrap_or(k_axial)
+        };
         let k_end = k_close.min(k_axial);
         // The stroke rises with k, so the chord can only close at the end of the range.
         let chord_closes = chord(k_end).0 >= 0.0;
@@ -1159,14 +1272,18 @@ impl Path {
             None
         };
         let stop = k_chord.unwrap_or(k_end);
-        // Otherwise the margin need not be monotonic past the fold: sample, then refine.
+        // Otherwise the margin may still peak above zero before the fold: sample, then
+        // refine. Past the fold both the flat run and the axial force shrink, so the
+        // margin only falls there (a test holds this on a grid of gaps): the samples
+        // need not go past the fold. Plain arithmetic: only the sign is wanted.
         const SAMPLES: usize = 12;
+        let scan_end = stop.min(k_fold);
         let mut prev = ks;
         for i in 1..=SAMPLES {
             // Denser sampling near the onset, where the flat run grows fastest.
             let t = i as f64 / SAMPLES as f64;
-            let k = ks + (stop - ks) * t * t;
-            if buckling(k).0 >= 0.0 {
+            let k = ks + (scan_end - ks) * t * t;
+            if line_buckling_margin(k, gap) >= 0.0 {
                 let kb = newton_bracketed(prev, k, 0.5 * (prev + k), 1e-15, buckling).unwrap_or(k);
                 let stroke = line_d(D::c(kb), gap).stroke.v;
                 return (
@@ -2191,6 +2308,66 @@ mod tests {
         assert!(onset > 0.25 && onset < 0.4, "{onset}");
         // Just before the onset there is none.
         assert_eq!(hinged.overlap_at(onset - 1e-6), None);
+    }
+
+    /// What the limit scan relies on: from g/L = 0.195 (where the fold comes first) to the
+    /// largest gap with line contact, the buckling margin only falls past the fold, and
+    /// the plain-arithmetic margin agrees with the dual-number one.
+    #[test]
+    fn buckling_margin_falls_past_the_fold() {
+        let k_fold = k_line_fold();
+        for i in 0..=40 {
+            let gap = 0.19 + (max_line_contact_gap() - 0.1905) * i as f64 / 40.0;
+            let path = Path::new(Ends::Clamped, gap).unwrap();
+            let (_, kl) = path.limit_data();
+            let k_end = kl.unwrap().max(k_fold);
+            let mut last = f64::INFINITY;
+            for j in 0..=200 {
+                let k = k_fold + (k_end - k_fold) * j as f64 / 200.0;
+                let m = line_buckling_margin(k, gap);
+                assert!(
+                    m <= last + 1e-9,
+                    "g/L {gap}: margin rises past the fold at k {k}"
+                );
+                last = m;
+                let q = line_d(D::c(k), gap);
+                let dual = q.axial.v * (1.0 - 2.0 * q.arc.v).powi(2) - 4.0 * PI * PI;
+                assert!(
+                    (m - dual).abs() <= 1e-10 * (1.0 + dual.abs()),
+                    "{m} vs {dual}"
+                );
+            }
+        }
+    }
+
+    /// The modulus seeds lie within 1e-7 (relative) of the solved moduli between the
+    /// table's nodes up to g/L = 0.2, and within 2e-5 up to the table's ends, where the
+    /// moduli steepen towards their folds.
+    #[test]
+    fn modulus_table_seeds_are_close() {
+        let table = modulus_table();
+        let (mut worst1, mut worst_s) = (0.0_f64, 0.0_f64);
+        let (mut small1, mut small_s) = (0.0_f64, 0.0_f64);
+        for i in 1..400 {
+            let gap = 0.36 * i as f64 / 400.0 + 1e-4;
+            if let Some(seed) = table.first_contact(gap) {
+                let (k1, _) = solve_first_contact(gap, first_contact_series(gap)).unwrap();
+                worst1 = worst1.max((seed / k1 - 1.0).abs());
+                if gap <= 0.2 {
+                    small1 = small1.max((seed / k1 - 1.0).abs());
+                }
+            }
+            if let Some(seed) = table.line_onset(gap) {
+                let (ks, _) = solve_line_onset(gap, line_onset_series(gap)).unwrap();
+                worst_s = worst_s.max((seed / ks - 1.0).abs());
+                if gap <= 0.2 {
+                    small_s = small_s.max((seed / ks - 1.0).abs());
+                }
+            }
+        }
+        assert!(small1 < 1e-7 && small_s < 1e-7, "{small1:e} {small_s:e}");
+        assert!(worst1 < 2e-5 && worst_s < 2e-5, "{worst1:e} {worst_s:e}");
+        assert!(table.first_contact(0.37).is_none() && table.line_onset(0.31).is_none());
     }
 
     /// Strokes carried to a Newton root agree with a fresh evaluation there.
