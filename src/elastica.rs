@@ -1213,7 +1213,7 @@ impl Path {
         let at_fold = if gap < BUCKLES_BEFORE_FOLD {
             f64::INFINITY
         } else {
-            buckling(k_fold).0
+            line_buckling_margin(k_fold, gap)
         };
         if at_fold >= 0.0 {
             // Seed from the small-gap law: buckling at l = L/3, where k is about 1.5 ks.
@@ -1265,7 +1265,8 @@ impl Path {
         };
         let k_end = k_close.min(k_axial);
         // The stroke rises with k, so the chord can only close at the end of the range.
-        let chord_closes = chord(k_end).0 >= 0.0;
+        let chord_at_end = chord(k_end).0;
+        let chord_closes = chord_at_end >= 0.0;
         let k_chord = if chord_closes {
             newton_bracketed(ks, k_end, k_end, 1e-15, chord)
         } else {
@@ -1313,7 +1314,8 @@ impl Path {
         } else {
             LimitReason::AxialForceVanishes
         };
-        let stroke = line_d(D::c(k_end), gap).stroke.v;
+        // The chord condition at k_end was the stroke there, minus one.
+        let stroke = chord_at_end + 1.0;
         (
             Limit {
                 stroke,
