@@ -446,17 +446,7 @@ fn strips_that_swing_behind_the_plates_raise_a_geometry_caution() {
     let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
     h.run();
     assert!(h.query_by_label_contains("Geometry caution").is_none());
-    // Invented wide-gap hinged segment (g/L 0.23) run to delta/L 0.45: the strips swing
-    // behind the hinge plane from about delta/L 0.3 (elastica unit tests).
-    let mut d = h.state().design().clone();
-    d.strip.free_length_mm = 60.0;
-    d.strip.width_mm = 8.0;
-    d.strip.thickness_mm = 0.2;
-    d.strip.ends = design::Ends::Hinged;
-    d.mount_radius_mm = 36.0;
-    d.end_plate_diameter_mm = 70.0;
-    d.bore.diameter_mm = 100.0;
-    d.operating_stroke_mm = 27.0;
+    let d = crate::shared::wide_gap_design();
     let tmp = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
     let file = tmp.path().join("wide.ron");
     std::fs::write(&file, design::to_ron(&d)).unwrap_or_else(|e| panic!("{e}"));

@@ -658,16 +658,7 @@ fn sample_designs_behave_as_their_headers_say() {
 
 #[test]
 fn check_prints_geometry_cautions_for_strips_that_leave_the_plates() {
-    // The invented large-gap hinged segment of segment_model (g/L 0.23) at delta/L 0.45.
-    let mut d = Design::default();
-    d.strip.free_length_mm = 60.0;
-    d.strip.width_mm = 8.0;
-    d.strip.thickness_mm = 0.2;
-    d.strip.ends = bowgrip::design::Ends::Hinged;
-    d.mount_radius_mm = 36.0;
-    d.end_plate_diameter_mm = 70.0;
-    d.bore.diameter_mm = 100.0;
-    d.operating_stroke_mm = 27.0;
+    let d = crate::shared::wide_gap_design();
     let tmp = Scratch::new();
     let f = tmp.design("wide.ron", &d);
     let r = run(&["check", s(&f)]);

@@ -8,5 +8,6 @@ mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
 mod segment_model;
+mod shared;
 mod sheet;
 mod small_gap;

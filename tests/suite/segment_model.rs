@@ -278,18 +278,8 @@ proptest! {
 
 #[test]
 fn geometry_cautions_name_strips_that_leave_the_plates() {
-    // An invented large-gap segment: 60 mm hinged strips, 36 mm mount radius, a 100 mm
-    // bore. Gap by the edge-contact formula: sqrt(50^2 - 4^2) - 0.1 - 36 = 13.74 mm,
-    // g/L = 0.229, where the hinged strip swings behind its hinge plane from about
-    // delta/L = 0.3 (this solver; see the elastica unit tests).
-    let mut d = Design::default();
-    d.strip.free_length_mm = 60.0;
-    d.strip.width_mm = 8.0;
-    d.strip.thickness_mm = 0.2;
-    d.strip.ends = Ends::Hinged;
-    d.mount_radius_mm = 36.0;
-    d.end_plate_diameter_mm = 70.0;
-    d.bore.diameter_mm = 100.0;
+    // The invented wide-gap segment (g/L 0.229), one bore only.
+    let mut d = crate::shared::wide_gap_design();
     d.bore.minus_mm = 0.0;
     d.bore.plus_mm = 0.0;
     d.operating_stroke_mm = 12.0; // delta/L = 0.2: no overlap yet

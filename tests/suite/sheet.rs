@@ -48,22 +48,8 @@ fn designs() -> Vec<(String, Design)> {
             d.bore.diameter_mm = touching_bore_mm(d) + 0.6;
         }),
     ));
-    out.push((
-        "wide-gap".to_string(),
-        with(&|d| {
-            // Invented: hinged strips far from a wide bore (g/L 0.23), run to delta/L 0.45,
-            // where they swing behind the hinge plane: the geometry caution must show.
-            d.title = "Wide gap: strips swing behind the plates".to_string();
-            d.strip.free_length_mm = 60.0;
-            d.strip.width_mm = 8.0;
-            d.strip.thickness_mm = 0.2;
-            d.strip.ends = design::Ends::Hinged;
-            d.mount_radius_mm = 36.0;
-            d.end_plate_diameter_mm = 70.0;
-            d.bore.diameter_mm = 100.0;
-            d.operating_stroke_mm = 27.0;
-        }),
-    ));
+    // The geometry caution must show on the sheet.
+    out.push(("wide-gap".to_string(), crate::shared::wide_gap_design()));
     out.push((
         "no-state".to_string(),
         with(&|d| {
