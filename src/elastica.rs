@@ -707,11 +707,7 @@ impl BranchTable {
             };
             let row = i * Self::WS;
             let f_onset = line_d(D::c(ks), gap).contact.v;
-            let fitted = |t: f64| {
-                let u = 1.0 - (1.0 - t) * (1.0 - t);
-                let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
-                (ks + (k1 - ks) * f, -FRAC_PI_2 * u)
-            };
+            let fitted = |t: f64| fitted_point_seed(fitted_u_of_stroke(t), k1, ks);
             let mut prev: [(f64, f64); 2] = [(k1, 0.0), (k1, 0.0)];
             for j in 0..Self::WS {
                 let w = j as f64 / (Self::WS - 1) as f64;
@@ -827,6 +823,20 @@ impl BranchTable {
         }
         Some(out)
     }
+}
+
+/// The fitted point-contact branch, for seeds beyond the branch table: `u = phi0 / (-pi/2)`
+/// at the stroke fraction `t` from first contact to line onset is close to `1 - (1-t)^2`.
+fn fitted_u_of_stroke(t: f64) -> f64 {
+    1.0 - (1.0 - t) * (1.0 - t)
+}
+
+/// The fitted dip of the modulus along the point branch, `(k - ks)/(k1 - ks) =
+/// (1-u)^3 - 0.68 u (1-u)` (fitted to solved branches from g/L = 0.05 to 0.2), as the seed
+/// `(k, phi0)` at `u = phi0 / (-pi/2)` between the end moduli `k1` and `ks`.
+fn fitted_point_seed(u: f64, k1: f64, ks: f64) -> (f64, f64) {
+    let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
+    (ks + (k1 - ks) * f, -FRAC_PI_2 * u)
 }
 
 /// First index and weights of 4-point Lagrange interpolation at `x` on the grid `0..n`.
@@ -1541,13 +1551,6 @@ impl Path {
             };
             (r1, r2, q)
         };
-        // Scales that make both residuals order one: the gap, and the goal's own size.
-        let s1 = 1.0 / gap;
-        let s2 = match goal {
-            PointGoal::Stroke(_) => 1.0 / (gap * gap),
-            PointGoal::Linear { value, .. } => 1.0 / value.abs().max(1e-300),
-        };
-        let _ = (s1, s2);
         let inside =
             |k: f64, phi0: f64| k > 0.0 && k < 1.0 && (-FRAC_PI_2 - 0.6..=0.6).contains(&phi0);
         let (mut k, mut phi0) = guess;
@@ -1626,9 +1629,8 @@ impl Path {
                 match branch_table().seed(self.gap, t) {
                     Some((u, ratio)) => (-FRAC_PI_2 * u, k1 * ratio),
                     None => {
-                        let u = 1.0 - (1.0 - t) * (1.0 - t);
-                        let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
-                        (-FRAC_PI_2 * u, ks + (k1 - ks) * f)
+                        let (k, phi0) = fitted_point_seed(fitted_u_of_stroke(t), k1, ks);
+                        (phi0, k)
                     }
                 }
             }
@@ -1660,8 +1662,7 @@ impl Path {
             return Some((k1 * ratio, -FRAC_PI_2 * u));
         }
         let u = ((0.3969 + 1.48 * r).sqrt() - 0.63) / 0.74;
-        let f = (1.0 - u).powi(3) - 0.68 * u * (1.0 - u);
-        Some((ks + (k1 - ks) * f, -FRAC_PI_2 * u))
+        Some(fitted_point_seed(u, k1, ks))
     }
 
     /// Solves the point phase at `stroke`, by Newton from a guess and, failing that, by
