@@ -7,6 +7,7 @@
 
 pub mod analysis;
 pub mod app;
+pub mod bend;
 pub mod checks;
 pub mod cli;
 pub mod design;
@@ -16,4 +17,5 @@ pub mod friction;
 pub mod material;
 pub mod pipe;
 pub mod segment;
+pub mod sharing;
 pub mod sheet;

@@ -1,0 +1,37 @@
+//! Speed target (one core of the 2-core machine): one off-centre loaded state of a
+//! 12-strip segment (a weight on the hub, an out-of-round bore) <= 100 us, stretch 30 us.
+//! The design is an invented demo.
+
+use std::hint::black_box;
+
+use bowgrip::design::Design;
+use bowgrip::segment::Segment;
+use bowgrip::sharing::{Loading, MajorAxis};
+use criterion::{Criterion, criterion_group, criterion_main};
+
+fn bench(c: &mut Criterion) {
+    let mut design = Design::default();
+    design.strip.count = 12;
+    design.strip.width_mm = 8.0;
+    let seg = Segment::new(&design).expect("demo design is valid");
+    let bore = seg.bore_nominal_mm;
+    let loading = Loading {
+        radial_load_n: 40.0,
+        out_of_round_mm: 0.5,
+        major_axis: MajorAxis::Vertical,
+        ..Loading::default()
+    };
+    let loaded = seg.loaded_at_bore(bore, &loading).expect("demo fits");
+    let centred = seg.at_bore(bore).expect("demo fits");
+    let stroke = 0.5
+        * (centred.first_contact_stroke_mm().expect("reach")
+            + centred.limit_stroke_mm());
+    let st = loaded.state(stroke).expect("solves");
+    assert!(st.hub_offset_mm[0] < 0.0 && !st.on_support);
+    c.bench_function("loaded state, 12 strips, weight + oval bore", |b| {
+        b.iter(|| loaded.state(black_box(stroke)))
+    });
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,597 @@
+//! The hub-offset solve and the bore-level strokes. Symmetric cases (equal strips, a strip
+//! or a gap on the load line) keep the offset on the load line: a bracketed one-dimensional
+//! root of the vertical force balance, which rises with the offset because a gap that
+//! shrinks raises its force. Mirror pairs of strips share one strip solve. Unequal strips
+//! take both components: a damped Newton with a finite-difference Jacobian, and on the
+//! rest support a bracketed root of the tangential balance along the rim's reach. Every
+//! loop has a bound and every failure a [`SolveFailure`].
+
+use std::f64::consts::PI;
+
+use crate::elastica::{Path, PathError, Phase, StripState};
+
+use super::{BoreStrokes, LoadedBore, SharedState, SolveFailure, Totals};
+
+/// Iteration bound of the one-dimensional root.
+const MAX_ITER_1D: usize = 200;
+/// Iteration bound of the two-dimensional Newton.
+const MAX_ITER_2D: usize = 60;
+/// Scan points along the stroke for the bore-level strokes.
+const SCAN: usize = 24;
+/// Bisection steps refining a bore-level stroke.
+const BISECT: usize = 48;
+
+/// One evaluation of every strip at a hub offset.
+struct Eval {
+    /// Gap and strip state per strip, in clock order (states are `BeyondLimit` for strips
+    /// that touch or are past their limit).
+    strips: Vec<(f64, StripState)>,
+    /// `sum F_i u_i`, N.
+    force: [f64; 2],
+    /// Strips past their limit (or touching the wall at rest).
+    beyond: Vec<usize>,
+}
+
+impl Eval {
+    fn is_beyond(&self) -> bool {
+        !self.beyond.is_empty()
+    }
+}
+
+/// A strip state that is past the limit (or has no clearance).
+fn beyond_state(stroke: f64) -> StripState {
+    StripState {
+        phase: Phase::BeyondLimit,
+        stroke,
+        k: f64::NAN,
+        phi0: f64::NAN,
+        arc: f64::NAN,
+        axial: f64::NAN,
+        contact: f64::NAN,
+        crest_height: f64::NAN,
+        flat_length: f64::NAN,
+        kappa_max: f64::NAN,
+        energy: f64::NAN,
+    }
+}
+
+impl LoadedBore<'_> {
+    /// The strip model of class `class` at gap `gap_mm` and stroke `stroke_mm`.
+    fn strip_at(&self, class: usize, gap_mm: f64, stroke_mm: f64) -> Result<StripState, PathError> {
+        let l = self.classes[class].length_mm;
+        let path = Path::new(self.segment.design.strip.ends, gap_mm / l)?;
+        Ok(path.state(stroke_mm / l))
+    }
+
+    /// The strip's path at its gap at offset `d`.
+    fn path_at(&self, i: usize, d: [f64; 2]) -> Result<Path, PathError> {
+        let l = self.classes[self.places[i].class].length_mm;
+        Path::new(self.segment.design.strip.ends, self.gap_mm(i, d, false) / l)
+    }
+
+    /// Every strip at offset `d` (`folded`: symmetric case, mirror pairs solved once).
+    fn eval(&self, d: [f64; 2], stroke_mm: f64, folded: bool) -> Result<Eval, SolveFailure> {
+        let n = self.places.len();
+        let mut strips: Vec<(f64, StripState)> = Vec::with_capacity(n);
+        let mut force = [0.0, 0.0];
+        let mut beyond = Vec::new();
+        for i in 0..n {
+            let p = &self.places[i];
+            let gap = self.gap_mm(i, d, folded);
+            let reuse = folded
+                .then(|| {
+                    strips
+                        .iter()
+                        .zip(&self.places)
+                        .find(|((g, _), q)| g.to_bits() == gap.to_bits() && q.class == p.class)
+                        .map(|((_, s), _)| *s)
+                })
+                .flatten();
+            let state = match reuse {
+                Some(s) => s,
+                None => match self.strip_at(p.class, gap, stroke_mm) {
+                    Ok(s) => s,
+                    Err(PathError::NoClearance { .. }) => beyond_state(stroke_mm),
+                    Err(PathError::NotFinite) => {
+                        return Err(SolveFailure::NotFinite {
+                            strip: i,
+                            stroke_mm,
+                        });
+                    }
+                },
+            };
+            if state.phase == Phase::BeyondLimit {
+                beyond.push(i);
+            } else {
+                let f = state.contact * self.classes[p.class].force_unit_n;
+                if !f.is_finite() {
+                    return Err(SolveFailure::NotFinite {
+                        strip: i,
+                        stroke_mm,
+                    });
+                }
+                force[0] += f * p.u[0];
+                force[1] += f * p.u[1];
+            }
+            strips.push((gap, state));
+        }
+        Ok(Eval {
+            strips,
+            force,
+            beyond,
+        })
+    }
+
+    /// The vertical balance `sum F_i u_iy + W` at offset `(y, 0)`: +inf / -inf when a strip
+    /// above / below is past its limit (its force would be unbounded), NaN when a strip on
+    /// the horizontal is (no offset along the load line helps).
+    fn balance_y(&self, y: f64, stroke_mm: f64) -> Result<(f64, Eval), SolveFailure> {
+        let e = self.eval([y, 0.0], stroke_mm, true)?;
+        let w = self.loading.radial_load_n;
+        if e.is_beyond() {
+            let up = e.beyond.iter().all(|&i| self.places[i].u[0] > 1e-12);
+            let down = e.beyond.iter().all(|&i| self.places[i].u[0] < -1e-12);
+            let r = match (up, down) {
+                (true, false) => f64::INFINITY,
+                (false, true) => f64::NEG_INFINITY,
+                _ => f64::NAN,
+            };
+            return Ok((r, e));
+        }
+        Ok((e.force[0] + w, e))
+    }
+
+    fn beyond(&self, stroke_mm: f64, d: [f64; 2], evaluations: usize) -> SharedState {
+        SharedState {
+            stroke_mm,
+            hub_offset_mm: d,
+            on_support: false,
+            beyond_limit: true,
+            strips: Vec::new(),
+            totals: Totals {
+                actuator_force_n: 0.0,
+                radial_force_n: 0.0,
+                holding_force_n: 0.0,
+                max_stress_mpa: 0.0,
+                static_safety_factor: f64::INFINITY,
+                fatigue_safety_factor: f64::INFINITY,
+                mean_axial_force_per_strip_n: 0.0,
+                mean_contact_force_per_strip_n: 0.0,
+                support_reaction_n: [0.0, 0.0],
+                strips_in_contact: 0,
+                worst_strip: 0,
+                strain_energy_j: 0.0,
+            },
+            residual_n: [f64::NAN, f64::NAN],
+            evaluations,
+        }
+    }
+
+    /// The loaded state at a valid stroke.
+    pub(super) fn solve(&self, stroke_mm: f64) -> Result<SharedState, SolveFailure> {
+        if self.symmetric {
+            self.solve_1d(stroke_mm)
+        } else {
+            self.solve_2d(stroke_mm)
+        }
+    }
+
+    /// Force tolerance: a fraction of the load, or of the strips' forces with no load.
+    fn tolerance_n(&self, e: &Eval) -> f64 {
+        let w = self.loading.radial_load_n;
+        if w > 0.0 {
+            1e-11 * w
+        } else {
+            let sum: f64 = e
+                .strips
+                .iter()
+                .zip(&self.places)
+                .filter(|((_, s), _)| s.phase != Phase::BeyondLimit)
+                .map(|((_, s), p)| s.contact * self.classes[p.class].force_unit_n)
+                .sum();
+            1e-12 * sum + f64::MIN_POSITIVE
+        }
+    }
+
+    fn solve_1d(&self, stroke_mm: f64) -> Result<SharedState, SolveFailure> {
+        let c = self.clearance_y_mm;
+        let (y_lo, y_hi) = (-c, c);
+        let w = self.loading.radial_load_n;
+        let count = std::cell::Cell::new(0usize);
+        let eval = |y: f64| {
+            count.set(count.get() + 1);
+            self.balance_y(y, stroke_mm)
+        };
+        // Bracket ends: offset and balance once evaluated.
+        let mut lo: (f64, Option<f64>) = (y_lo, None);
+        let mut hi: (f64, Option<f64>) = (y_hi, None);
+        let mut prev: Option<(f64, f64)> = None;
+        let mut y = 0.0_f64.clamp(y_lo, y_hi);
+        let step_tol = 1e-15 * c.max(1e-300);
+        for _ in 0..MAX_ITER_1D {
+            let (r, e) = eval(y)?;
+            if r.is_nan() {
+                return Ok(self.beyond(stroke_mm, [y, 0.0], count.get()));
+            }
+            let all_free = !e.is_beyond() && e.strips.iter().all(|(_, s)| s.contact == 0.0);
+            if w == 0.0 && all_free {
+                // Nothing acts on the hub: it stays where it is put, centred.
+                return Ok(self.assemble_eval(stroke_mm, [y, 0.0], &e, [0.0, 0.0], count.get()));
+            }
+            if r.is_finite() && r.abs() <= self.tolerance_n(&e) {
+                return Ok(self.assemble_eval(stroke_mm, [y, 0.0], &e, [0.0, 0.0], count.get()));
+            }
+            // On the rest support, pushed against it.
+            if y == y_lo && r >= 0.0 && r.is_finite() {
+                return Ok(self.assemble_eval(stroke_mm, [y, 0.0], &e, [r, 0.0], count.get()));
+            }
+            if y == y_hi && r <= 0.0 && r.is_finite() {
+                return Ok(self.assemble_eval(stroke_mm, [y, 0.0], &e, [r, 0.0], count.get()));
+            }
+            if r > 0.0 {
+                hi = (y, Some(r));
+            } else {
+                lo = (y, Some(r));
+            }
+            // Next offset: secant (a finite-difference slope on the first step).
+            let slope = match prev {
+                Some((yp, rp)) if r.is_finite() && rp.is_finite() && y != yp => (r - rp) / (y - yp),
+                _ if r.is_finite() => {
+                    let h = 1e-7 * c.max(1e-6);
+                    let yh = if y + h <= y_hi { y + h } else { y - h };
+                    let (rh, _) = eval(yh)?;
+                    (rh - r) / (yh - y)
+                }
+                _ => f64::NAN,
+            };
+            if r.is_finite() {
+                prev = Some((y, r));
+            }
+            let newton = y - r / slope;
+            let inside = |x: f64| x > lo.0 && x < hi.0;
+            let next = if slope > 0.0 && newton.is_finite() && inside(newton) {
+                newton
+            } else if r > 0.0 && lo.1.is_none() {
+                y_lo
+            } else if r < 0.0 && hi.1.is_none() {
+                y_hi
+            } else {
+                match (lo.1, hi.1) {
+                    (Some(a), Some(b)) if a.is_finite() && b.is_finite() => {
+                        // False position, kept off the ends.
+                        let x = lo.0 - a * (hi.0 - lo.0) / (b - a);
+                        let span = hi.0 - lo.0;
+                        x.clamp(lo.0 + 0.05 * span, hi.0 - 0.05 * span)
+                    }
+                    _ => 0.5 * (lo.0 + hi.0),
+                }
+            };
+            if (next - y).abs() <= step_tol || (lo.1.is_some() && hi.1.is_some() && hi.0 - lo.0 <= step_tol) {
+                let (r, e) = eval(next)?;
+                if !r.is_finite() || e.is_beyond() {
+                    // The balance jumps across a strip's limit: no state here.
+                    return Ok(self.beyond(stroke_mm, [next, 0.0], count.get()));
+                }
+                return Ok(self.assemble_eval(stroke_mm, [next, 0.0], &e, [0.0, 0.0], count.get()));
+            }
+            y = next;
+        }
+        Err(SolveFailure::IterationLimit {
+            stroke_mm,
+            iterations: MAX_ITER_1D,
+        })
+    }
+
+    fn assemble_eval(
+        &self,
+        stroke_mm: f64,
+        d: [f64; 2],
+        e: &Eval,
+        support: [f64; 2],
+        evaluations: usize,
+    ) -> SharedState {
+        if e.is_beyond() {
+            return self.beyond(stroke_mm, d, evaluations);
+        }
+        self.assemble(stroke_mm, d, &e.strips, support, evaluations)
+    }
+
+    /// Residual `sum F_i u_i + W` (the support's share) at offset `d`; `None` past a limit.
+    fn residual_2d(&self, d: [f64; 2], stroke_mm: f64) -> Result<(Option<[f64; 2]>, Eval), SolveFailure> {
+        let e = self.eval(d, stroke_mm, false)?;
+        if e.is_beyond() {
+            return Ok((None, e));
+        }
+        let r = [e.force[0] + self.loading.radial_load_n, e.force[1]];
+        Ok((Some(r), e))
+    }
+
+    /// Whether the rim at offset `d` clears the wall.
+    fn rim_clears(&self, d: [f64; 2]) -> bool {
+        self.bore.contains(d) && self.bore.distance_inside(d) >= self.rim_radius_mm
+    }
+
+    fn solve_2d(&self, stroke_mm: f64) -> Result<SharedState, SolveFailure> {
+        let mut evaluations = 0;
+        let w = self.loading.radial_load_n;
+        let mut d = [0.0, 0.0];
+        let h = 1e-7 * self.bore_mm;
+        let norm = |r: [f64; 2]| r[0].hypot(r[1]);
+        let mut on_wall = false;
+        for _ in 0..MAX_ITER_2D {
+            evaluations += 1;
+            let (r, e) = self.residual_2d(d, stroke_mm)?;
+            let Some(r) = r else {
+                return Ok(self.beyond(stroke_mm, d, evaluations));
+            };
+            let all_free = e.strips.iter().all(|(_, s)| s.contact == 0.0);
+            if w == 0.0 && all_free {
+                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
+            }
+            if norm(r) <= self.tolerance_n(&e) {
+                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
+            }
+            // Jacobian by forward differences.
+            let mut jac = [[0.0; 2]; 2];
+            for (col, dir) in [[h, 0.0], [0.0, h]].into_iter().enumerate() {
+                evaluations += 1;
+                let dh = [d[0] + dir[0], d[1] + dir[1]];
+                let (rh, _) = self.residual_2d(dh, stroke_mm)?;
+                let Some(rh) = rh else {
+                    on_wall = !self.rim_clears(dh);
+                    break;
+                };
+                jac[0][col] = (rh[0] - r[0]) / h;
+                jac[1][col] = (rh[1] - r[1]) / h;
+            }
+            let det = jac[0][0] * jac[1][1] - jac[0][1] * jac[1][0];
+            if !(det.is_finite() && det.abs() > 0.0) {
+                on_wall = true;
+                break;
+            }
+            let step = [
+                -(jac[1][1] * r[0] - jac[0][1] * r[1]) / det,
+                -(-jac[1][0] * r[0] + jac[0][0] * r[1]) / det,
+            ];
+            let mut lambda = 1.0;
+            let mut accepted = false;
+            for _ in 0..40 {
+                let trial = [d[0] + lambda * step[0], d[1] + lambda * step[1]];
+                if !self.rim_clears(trial) {
+                    lambda *= 0.5;
+                    on_wall = true;
+                    continue;
+                }
+                evaluations += 1;
+                let (rt, _) = self.residual_2d(trial, stroke_mm)?;
+                if let Some(rt) = rt
+                    && norm(rt) < (1.0 - 0.25 * lambda) * norm(r)
+                {
+                    d = trial;
+                    accepted = true;
+                    on_wall = false;
+                    break;
+                }
+                lambda *= 0.5;
+            }
+            if !accepted {
+                if on_wall {
+                    break;
+                }
+                // Rounding floor: the best point found is the state.
+                evaluations += 1;
+                let (_, e) = self.residual_2d(d, stroke_mm)?;
+                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
+            }
+        }
+        if on_wall {
+            return self.solve_on_wall(stroke_mm, evaluations);
+        }
+        Err(SolveFailure::IterationLimit {
+            stroke_mm,
+            iterations: MAX_ITER_2D,
+        })
+    }
+
+    /// The hub resting on the wall: the rim's centre on the inner parallel curve at normal
+    /// angle `phi`; the tangential balance is zero and the support pushes off the wall.
+    fn solve_on_wall(&self, stroke_mm: f64, evaluations: usize) -> Result<SharedState, SolveFailure> {
+        let count = std::cell::Cell::new(evaluations);
+        let rim = self.rim_radius_mm;
+        let curvature = self.bore.min_curvature_radius();
+        if rim > curvature {
+            return Err(SolveFailure::RimTooLargeForOvality {
+                rim_mm: rim,
+                curvature_mm: curvature,
+            });
+        }
+        let tangential = |phi: f64| -> Result<(Option<(f64, [f64; 2])>, [f64; 2], Eval), SolveFailure> {
+            count.set(count.get() + 1);
+            let d = self.bore.inner_parallel(phi, rim);
+            let (r, e) = self.residual_2d(d, stroke_mm)?;
+            Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
+        };
+        // The load points down: the rest lies near the bottom (phi = pi). The tangential
+        // balance rises with phi there; bracket it by widening steps.
+        let mut lo = PI;
+        let mut hi = PI;
+        let mut found = false;
+        for k in 1..=16 {
+            let span = 0.05 * k as f64;
+            let (a, b) = (PI - span, PI + span);
+            let ta = tangential(a)?.0.map(|(t, _)| t);
+            let tb = tangential(b)?.0.map(|(t, _)| t);
+            if let (Some(ta), Some(tb)) = (ta, tb)
+                && ta <= 0.0
+                && tb >= 0.0
+            {
+                lo = a;
+                hi = b;
+                found = true;
+                break;
+            }
+        }
+        if !found {
+            return Err(SolveFailure::NoRestBalance { stroke_mm });
+        }
+        let w = self.loading.radial_load_n.max(f64::MIN_POSITIVE);
+        for _ in 0..MAX_ITER_1D {
+            let mid = 0.5 * (lo + hi);
+            let (t, d, e) = tangential(mid)?;
+            let Some((t, r)) = t else {
+                return Ok(self.beyond(stroke_mm, d, count.get()));
+            };
+            if t.abs() <= 1e-11 * w || hi - lo <= 1e-15 {
+                let (s, c) = mid.sin_cos();
+                let push = -(r[0] * c + r[1] * s);
+                if push < 0.0 {
+                    return Err(SolveFailure::NoRestBalance { stroke_mm });
+                }
+                let support = [-push * c, -push * s];
+                return Ok(self.assemble_eval(stroke_mm, d, &e, support, count.get()));
+            }
+            if t > 0.0 {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        Err(SolveFailure::IterationLimit {
+            stroke_mm,
+            iterations: MAX_ITER_1D,
+        })
+    }
+
+    /// The hub's position before any strip touches: on its rest under a load, else centred.
+    fn rest_offset(&self) -> [f64; 2] {
+        if self.loading.radial_load_n > 0.0 {
+            if self.symmetric {
+                [-self.clearance_y_mm, 0.0]
+            } else {
+                self.bore.inner_parallel(PI, self.rim_radius_mm)
+            }
+        } else {
+            [0.0, 0.0]
+        }
+    }
+
+    /// The first stroke in `[lo, hi]` where `pred` holds, as a bracket `(false, true)`
+    /// refined by bisection; `None` when it holds nowhere on the scan.
+    fn first_true(
+        &self,
+        lo: f64,
+        hi: f64,
+        mut pred: impl FnMut(f64) -> Result<bool, SolveFailure>,
+    ) -> Result<Option<(f64, f64)>, SolveFailure> {
+        if pred(lo)? {
+            return Ok(Some((lo, lo)));
+        }
+        let mut a = lo;
+        for j in 1..=SCAN {
+            let b = lo + (hi - lo) * j as f64 / SCAN as f64;
+            if pred(b)? {
+                let (mut x, mut y) = (a, b);
+                for _ in 0..BISECT {
+                    if y - x <= 1e-12 * hi.abs().max(1e-300) {
+                        break;
+                    }
+                    let m = 0.5 * (x + y);
+                    if pred(m)? {
+                        y = m;
+                    } else {
+                        x = m;
+                    }
+                }
+                return Ok(Some((x, y)));
+            }
+            a = b;
+        }
+        Ok(None)
+    }
+
+    pub(super) fn find_strokes(&self) -> Result<BoreStrokes, SolveFailure> {
+        let n = self.places.len();
+        let rest = self.rest_offset();
+        let first = (0..n)
+            .filter_map(|i| {
+                let l = self.classes[self.places[i].class].length_mm;
+                self.path_at(i, rest)
+                    .ok()?
+                    .first_contact_stroke()
+                    .map(|s| s * l)
+            })
+            .min_by(f64::total_cmp);
+        // The limit: scan up to well past the centred strips' limits, then the chord.
+        let longest = self
+            .classes
+            .iter()
+            .map(|k| k.length_mm)
+            .fold(f64::INFINITY, f64::min);
+        let centred_limit = (0..n)
+            .filter_map(|i| {
+                let l = self.classes[self.places[i].class].length_mm;
+                self.path_at(i, [0.0, 0.0]).ok().map(|p| p.limit().stroke * l)
+            })
+            .fold(0.0, f64::max);
+        let beyond = |s: f64| self.solve(s).map(|st| st.beyond_limit);
+        let top = 0.999 * longest;
+        let upper = (2.0 * centred_limit).min(top);
+        let start = first.unwrap_or(0.0);
+        let bracket = match self.first_true(start, upper, beyond)? {
+            Some(b) => Some(b),
+            None => self.first_true(upper, top, beyond)?,
+        };
+        let (limit_stroke_mm, limit_strip, limit_reason) = match bracket {
+            Some((valid, _)) => {
+                let st = self.solve(valid)?;
+                let d = st.hub_offset_mm;
+                // The strip closest to its own limit there.
+                let (strip, reason) = (0..n)
+                    .filter_map(|i| {
+                        let l = self.classes[self.places[i].class].length_mm;
+                        let lim = self.path_at(i, d).ok()?.limit();
+                        Some((i, lim.stroke * l - valid, lim.reason))
+                    })
+                    .min_by(|a, b| a.1.total_cmp(&b.1))
+                    .map(|(i, _, r)| (i, r))
+                    .unwrap_or((0, crate::elastica::LimitReason::ChordClosed));
+                (valid, strip, reason)
+            }
+            None => (top, 0, crate::elastica::LimitReason::ChordClosed),
+        };
+        let Some(first) = first else {
+            return Ok(BoreStrokes {
+                first_strip_contact_stroke_mm: None,
+                lift_off_stroke_mm: None,
+                last_strip_contact_stroke_mm: None,
+                limit_stroke_mm,
+                limit_strip,
+                limit_reason,
+            });
+        };
+        let upper = limit_stroke_mm.max(first);
+        let last = self
+            .first_true(first, upper, |s| {
+                self.solve(s).map(|st| {
+                    !st.beyond_limit && st.strips.iter().all(|r| r.phase != Phase::Free.name())
+                })
+            })?
+            .map(|(_, t)| t);
+        let lift_off = if self.loading.radial_load_n == 0.0 {
+            Some(first)
+        } else {
+            self.first_true(first, upper, |s| {
+                self.solve(s).map(|st| !st.beyond_limit && !st.on_support)
+            })?
+            .map(|(_, t)| t)
+        };
+        Ok(BoreStrokes {
+            first_strip_contact_stroke_mm: Some(first),
+            lift_off_stroke_mm: lift_off,
+            last_strip_contact_stroke_mm: last,
+            limit_stroke_mm,
+            limit_strip,
+            limit_reason,
+        })
+    }
+}

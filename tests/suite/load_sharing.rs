@@ -1,0 +1,471 @@
+//! Load sharing and bends: the centred regression on the samples, the linear ring of springs,
+//! the hub's force balance, the edge-contact gap in an ellipse, and the bend passage rule.
+
+use std::f64::consts::PI;
+use std::path::Path as FsPath;
+
+use bowgrip::bend::{self, Bend};
+use bowgrip::design::{self, Design};
+use bowgrip::elastica::Path;
+use bowgrip::segment::Segment;
+use bowgrip::sharing::{self, Clocking, Judge, Loading, MajorAxis, StripDeviation};
+
+fn sample(name: &str) -> Design {
+    let path = FsPath::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join(name);
+    design::load(&path).expect("sample loads")
+}
+
+const SAMPLES: [&str; 3] = [
+    "drain-crawler-anchor-100mm.ron",
+    "duct-anchor-150mm-stainless.ron",
+    "riser-climber-2in-sch40.ron",
+];
+
+fn close(a: f64, b: f64, rel: f64) -> bool {
+    (a - b).abs() <= rel * b.abs().max(1e-300)
+}
+
+#[test]
+fn no_load_round_equal_strips_is_the_centred_model() {
+    // Regression (mechanics note, "Load sharing": with W = 0, a round bore and identical
+    // strips d = 0 and every result equals the centred model exactly), on the three samples
+    // at the three bores, for strokes across the whole path: the general solver to 1e-12,
+    // the short-circuit exactly.
+    for name in SAMPLES {
+        let seg = Segment::new(&sample(name)).expect("sample is valid");
+        let n = f64::from(seg.design.strip.count);
+        for bore in [seg.bore_smallest_mm, seg.bore_nominal_mm, seg.bore_largest_mm] {
+            let centred = seg.at_bore(bore).expect("fits");
+            let loaded = seg
+                .loaded_at_bore(bore, &Loading::default())
+                .expect("fits");
+            assert!(loaded.is_centred());
+            let strokes = loaded.strokes().expect("strokes");
+            assert_eq!(
+                strokes.first_strip_contact_stroke_mm,
+                centred.first_contact_stroke_mm()
+            );
+            assert_eq!(strokes.limit_stroke_mm, centred.limit_stroke_mm());
+            let limit = centred.limit_stroke_mm();
+            for j in 0..=12 {
+                let stroke = limit * j as f64 / 12.0;
+                let want = centred.state(stroke);
+                assert_eq!(loaded.segment_state(stroke).expect("state"), want);
+                let general = loaded.solve_state(stroke).expect("solves");
+                assert_eq!(general.hub_offset_mm, [0.0, 0.0], "{name} {bore} {stroke}");
+                assert!(!general.beyond_limit);
+                let t = &general.totals;
+                let pairs = [
+                    (t.actuator_force_n, want.actuator_force_n),
+                    (t.radial_force_n, want.radial_force_n),
+                    (t.holding_force_n, want.holding_force_n),
+                    (t.max_stress_mpa, want.max_stress_mpa),
+                    (t.static_safety_factor, want.static_safety_factor),
+                    (t.fatigue_safety_factor, want.fatigue_safety_factor),
+                    (t.mean_axial_force_per_strip_n, want.axial_force_per_strip_n),
+                    (
+                        t.mean_contact_force_per_strip_n,
+                        want.contact_force_per_strip_n,
+                    ),
+                    (t.strain_energy_j, want.strain_energy_j),
+                ];
+                for (got, want) in pairs {
+                    let want = want.expect("a state within the limit");
+                    assert!(
+                        (got - want).abs() <= 1e-12 * want.abs().max(1e-9),
+                        "{name} {bore} {stroke}: {got} vs {want}"
+                    );
+                }
+                for s in &general.strips {
+                    assert!((s.gap_mm - want.gap_mm).abs() <= 1e-12 * want.gap_mm);
+                    assert_eq!(s.phase, want.phase);
+                    let f = want.contact_force_per_strip_n.expect("state");
+                    assert!((s.contact_force_n - f).abs() <= 1e-12 * f.max(1e-9));
+                    let p = want.axial_force_per_strip_n.expect("state");
+                    assert!((s.axial_force_n - p).abs() <= 1e-12 * p.abs().max(1e-9));
+                }
+                let _ = n;
+            }
+        }
+    }
+}
+
+/// An invented narrow-strip segment for the ring-of-springs check (a demo, not a product):
+/// `count` strips 5 mm wide on a 27 mm mount radius in a 70 mm bore.
+fn ring_design(count: u32) -> Design {
+    let mut d = Design::default();
+    d.strip.count = count;
+    d.strip.width_mm = 5.0;
+    d.strip.thickness_mm = 0.2;
+    d.mount_radius_mm = 27.0;
+    d.end_plate_diameter_mm = 56.0;
+    d.bore.diameter_mm = 70.0;
+    d
+}
+
+#[test]
+fn small_load_follows_the_linear_ring_of_springs() {
+    // Linear ring of springs (mechanics note, "Load sharing"; the load-distribution
+    // analysis of rolling bearings, Harris and Kotzalas, Rolling Bearing Analysis, from
+    // memory): every strip in contact, a small load W down (theta_W = 180 deg). Strip i's
+    // gap closes by e cos(theta_i - theta_W) + (b / 2 rho) e |sin(theta_i - theta_W)|,
+    // rho = sqrt(R^2 - b^2/4), so it gains k_g times that, k_g = -dF/dg by a central
+    // difference of the strip solver. The balance gives
+    // e = W / (k_g (sum c_i^2 + (b / 2 rho) sum |s_i| c_i)), c_i, s_i the cosine and sine
+    // of theta_i - theta_W, with sum c_i^2 = N/2 for N >= 3. For even N the edge sum
+    // vanishes (opposite strips cancel) and e = 2 W / (N k_g), the note's narrow-strip law.
+    // For odd N it does not vanish (e.g. N = 3, a strip at the bottom: sum |s| c =
+    // sqrt(3)/2), so the check there uses the balance with the edge sum written out.
+    for count in 3..=24 {
+        let d = ring_design(count);
+        let seg = Segment::new(&d).expect("valid ring design");
+        let bore = d.bore.diameter_mm;
+        let centred = seg.at_bore(bore).expect("fits");
+        let stroke = 0.5
+            * (centred.first_contact_stroke_mm().expect("reach")
+                + centred.line_contact_stroke_mm().expect("line contact"));
+        let l = d.strip.free_length_mm;
+        let unit = seg.bending_stiffness_nm2 / (l * 1e-3).powi(2);
+        let force_at = |g: f64| {
+            Path::new(d.strip.ends, g / l)
+                .expect("gap")
+                .state(stroke / l)
+                .contact
+                * unit
+        };
+        let g = seg.gap_mm(bore);
+        let h = 1e-5 * g;
+        let k_g = -(force_at(g + h) - force_at(g - h)) / (2.0 * h);
+        let f0 = force_at(g);
+        assert!(k_g > 0.0 && f0 > 0.0);
+        let r = 0.5 * bore;
+        let b = d.strip.width_mm;
+        let beta = b / (2.0 * (r * r - 0.25 * b * b).sqrt());
+        let n = f64::from(count);
+        let e_target = 1e-5 * g;
+        let w = 0.5 * n * k_g * e_target;
+        for clocking in [Clocking::Strip, Clocking::Gap] {
+            let loading = Loading {
+                radial_load_n: w,
+                clocking,
+                ..Loading::default()
+            };
+            let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+            let st = loaded.state(stroke).expect("solves");
+            assert!(!st.on_support && !st.beyond_limit);
+            assert_eq!(st.totals.strips_in_contact, count as usize);
+            let angles: Vec<f64> = st
+                .strips
+                .iter()
+                .map(|s| s.clock_deg.to_radians() - PI)
+                .collect();
+            let sum_cc: f64 = angles.iter().map(|a| a.cos().powi(2)).sum();
+            let sum_sc: f64 = angles.iter().map(|a| a.sin().abs() * a.cos()).sum();
+            assert!((sum_cc - 0.5 * n).abs() < 1e-12);
+            let e = w / (k_g * (sum_cc + beta * sum_sc));
+            if count % 2 == 0 {
+                assert!(close(e, 2.0 * w / (n * k_g), 1e-12));
+            }
+            let offset = -st.hub_offset_mm[0];
+            assert!(
+                close(offset, e, 1e-3),
+                "N = {count} {clocking:?}: offset {offset} vs {e}"
+            );
+            assert!(st.hub_offset_mm[1].abs() <= 1e-9 * e);
+            for (s, a) in st.strips.iter().zip(&angles) {
+                let want = k_g * e * (a.cos() + beta * a.sin().abs());
+                let got = s.contact_force_n - f0;
+                assert!(
+                    (got - want).abs() <= 1e-3 * 2.0 * w / n,
+                    "N = {count} {clocking:?} strip at {}: {got} vs {want}",
+                    s.clock_deg
+                );
+            }
+        }
+    }
+}
+
+/// Checks the hub's force balance and the support's sign at one state.
+fn check_balance(st: &sharing::SharedState, w: f64, what: &str) {
+    if st.beyond_limit {
+        return;
+    }
+    // Mechanics note, "Load sharing": sum F_i u_i = W + S, W straight down.
+    let mut f = [0.0, 0.0];
+    for s in &st.strips {
+        let a = s.clock_deg.to_radians();
+        f[0] += s.contact_force_n * a.cos();
+        f[1] += s.contact_force_n * a.sin();
+    }
+    let s = st.totals.support_reaction_n;
+    let res = [f[0] + w - s[0], f[1] - s[1]];
+    assert!(
+        res[0].hypot(res[1]) <= 1e-9 * w,
+        "{what}: residual {res:?} of load {w}"
+    );
+    // The support only pushes the hub away from the wall, towards the bore's centre.
+    let d = st.hub_offset_mm;
+    assert!(s[0] * d[0] + s[1] * d[1] <= 0.0, "{what}: support {s:?} pulls");
+    if !st.on_support {
+        assert_eq!(s, [0.0, 0.0]);
+    }
+}
+
+#[test]
+fn force_balance_holds_and_the_support_never_pulls() {
+    // Mechanics note, "Load sharing": the hub's equilibrium; the rest support acts only
+    // pushing away from the wall. Residual below 1e-9 of the load at every reported state.
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let n = seg.design.strip.count as usize;
+    for bore in [seg.bore_smallest_mm, seg.bore_largest_mm] {
+        for w in [20.0, 300.0, 3000.0] {
+            for o in [0.0, 1.5] {
+                for (clocking, major_axis) in sharing::cases(&Loading {
+                    out_of_round_mm: o,
+                    ..Loading::default()
+                }) {
+                    let loading = Loading {
+                        radial_load_n: w,
+                        out_of_round_mm: o,
+                        major_axis,
+                        clocking,
+                        deviations: Vec::new(),
+                    };
+                    let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+                    let strokes = loaded.strokes().expect("strokes");
+                    let limit = strokes.limit_stroke_mm;
+                    let mut rested = false;
+                    let mut carried = false;
+                    for j in 0..=10 {
+                        let stroke = limit * j as f64 / 10.0;
+                        let st = loaded.state(stroke).expect("solves");
+                        let what = format!("bore {bore} W {w} o {o} {clocking:?} {major_axis:?} stroke {stroke}");
+                        check_balance(&st, w, &what);
+                        assert!(!st.beyond_limit, "{what}");
+                        rested |= st.on_support;
+                        carried |= !st.on_support;
+                    }
+                    assert!(rested, "the relaxed segment rests on its rim");
+                    let lift = strokes.lift_off_stroke_mm;
+                    if let Some(lift) = lift {
+                        assert!(carried);
+                        assert!(lift >= strokes.first_strip_contact_stroke_mm.expect("reach"));
+                        let after = loaded.state(lift).expect("solves");
+                        assert!(!after.on_support, "lifted off at {lift}");
+                    }
+                }
+            }
+        }
+    }
+    // Unequal strips (both components of the offset): invented deviations within a few
+    // per cent of the strip.
+    let devs: Vec<StripDeviation> = (0..n)
+        .map(|i| StripDeviation {
+            thickness_mm: 0.01 * ((i * 7 % 5) as f64 - 2.0),
+            width_mm: 0.1 * ((i * 3 % 4) as f64 - 1.5),
+            free_length_mm: 0.5 * ((i * 5 % 3) as f64 - 1.0),
+        })
+        .collect();
+    for w in [0.0, 50.0, 500.0] {
+        let loading = Loading {
+            radial_load_n: w,
+            out_of_round_mm: 0.8,
+            deviations: devs.clone(),
+            ..Loading::default()
+        };
+        let bore = seg.bore_nominal_mm;
+        let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+        let limit = loaded.strokes().expect("strokes").limit_stroke_mm;
+        for j in 0..=8 {
+            let stroke = limit * j as f64 / 8.0;
+            let st = loaded.state(stroke).expect("solves");
+            let what = format!("unequal strips W {w} stroke {stroke}");
+            if w > 0.0 {
+                check_balance(&st, w, &what);
+            } else if !st.beyond_limit {
+                // No load: the strips balance each other (to 1e-9 of their own forces).
+                let scale: f64 = st.strips.iter().map(|s| s.contact_force_n).sum();
+                let r = st.residual_n;
+                assert!(r[0].hypot(r[1]) <= 1e-9 * scale.max(1e-300), "{what}: {r:?}");
+            }
+        }
+    }
+}
+
+#[test]
+fn edge_gap_is_the_intersection_with_the_ellipse() {
+    // Mechanics note, "Load sharing": the gap is the least outward travel h at which an
+    // outer-face edge d + (r_m + t/2 + h) u +/- (b/2) v lies on the ellipse with diameters
+    // D + o/2 and D - o/2. Written out here: with p0 = d + (r_m + t/2) u +/- (b/2) v and
+    // semi-axes A (along y), B (along z), (p0y + h uy)^2 / A^2 + (p0z + h uz)^2 / B^2 = 1,
+    // i.e. qa h^2 + qb h + qc = 0 with qa = uy^2/A^2 + uz^2/B^2,
+    // qb = 2 (p0y uy / A^2 + p0z uz / B^2), qc = p0y^2/A^2 + p0z^2/B^2 - 1; the outward root
+    // (-qb + sqrt(qb^2 - 4 qa qc)) / (2 qa); the gap is the smaller over the two edges.
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let s = &seg.design.strip;
+    let face = seg.design.mount_radius_mm + 0.5 * s.thickness_mm;
+    let half_b = 0.5 * s.width_mm;
+    let bore = 100.0;
+    for (o, axis) in [
+        (0.0, MajorAxis::Vertical),
+        (2.0, MajorAxis::Vertical),
+        (2.0, MajorAxis::Horizontal),
+        (7.5, MajorAxis::Horizontal),
+    ] {
+        let loading = Loading {
+            out_of_round_mm: o,
+            major_axis: axis,
+            radial_load_n: 1.0,
+            ..Loading::default()
+        };
+        let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+        let (big, small) = (0.5 * (bore + 0.5 * o), 0.5 * (bore - 0.5 * o));
+        let (a, b) = match axis {
+            MajorAxis::Vertical => (big, small),
+            MajorAxis::Horizontal => (small, big),
+        };
+        for d in [[0.0, 0.0], [-3.0, 0.0], [1.2, -2.5], [-6.0, 4.0]] {
+            let gaps = loaded.gaps_mm(d);
+            for (gap, deg) in gaps.iter().zip(loaded.clock_deg()) {
+                let th = deg.to_radians();
+                let (u, v) = ([th.cos(), th.sin()], [-th.sin(), th.cos()]);
+                let hand = [1.0, -1.0]
+                    .map(|sign| {
+                        let p0 = [
+                            d[0] + face * u[0] + sign * half_b * v[0],
+                            d[1] + face * u[1] + sign * half_b * v[1],
+                        ];
+                        let qa = u[0] * u[0] / (a * a) + u[1] * u[1] / (b * b);
+                        let qb = 2.0 * (p0[0] * u[0] / (a * a) + p0[1] * u[1] / (b * b));
+                        let qc = p0[0] * p0[0] / (a * a) + p0[1] * p0[1] / (b * b) - 1.0;
+                        (-qb + (qb * qb - 4.0 * qa * qc).sqrt()) / (2.0 * qa)
+                    })
+                    .into_iter()
+                    .fold(f64::INFINITY, f64::min);
+                assert!(
+                    (gap - hand).abs() < 1e-9,
+                    "o {o} {axis:?} d {d:?} strip at {deg}: {gap} vs {hand}"
+                );
+            }
+        }
+        if o == 0.0 {
+            // Centred and round: the mechanics note's sqrt(R^2 - b^2/4) - t/2 - r_m.
+            for gap in loaded.gaps_mm([0.0, 0.0]) {
+                assert!((gap - seg.gap_mm(bore)).abs() < 1e-12);
+            }
+        }
+    }
+}
+
+#[test]
+fn weight_sags_the_hub_and_loads_the_bottom_strips() {
+    // Mechanics note, "Load sharing" (and issue 17's description): under a weight the hub
+    // sags (y < 0), the bottom strip presses harder than the top one, the strips lift the
+    // hub off its rest after the first strip touches, and the last strip touches after
+    // that. Ordering checks of the model's own statements (common practice of the trade).
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let bore = seg.bore_largest_mm;
+    let loading = Loading {
+        radial_load_n: 400.0,
+        ..Loading::default()
+    };
+    let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+    let strokes = loaded.strokes().expect("strokes");
+    let first = strokes.first_strip_contact_stroke_mm.expect("reach");
+    let lift = strokes.lift_off_stroke_mm.expect("lifts off");
+    assert!(first < lift);
+    if let Some(last) = strokes.last_strip_contact_stroke_mm {
+        assert!(lift <= last && last <= strokes.limit_stroke_mm);
+    }
+    let centred = seg.at_bore(bore).expect("fits");
+    assert!(first < centred.first_contact_stroke_mm().expect("reach"));
+    let st = loaded.state(0.5 * (lift + strokes.limit_stroke_mm)).expect("state");
+    assert!(st.hub_offset_mm[0] < 0.0);
+    let bottom = st
+        .strips
+        .iter()
+        .find(|s| (s.clock_deg - 180.0).abs() < 1e-9)
+        .expect("a strip at the bottom");
+    let top = st
+        .strips
+        .iter()
+        .find(|s| s.clock_deg.abs() < 1e-9)
+        .expect("a strip at the top");
+    assert!(bottom.contact_force_n > top.contact_force_n);
+    assert!(bottom.gap_mm < top.gap_mm);
+    // The governing case by stress names a case and is at least as bad as each case.
+    let g = sharing::governing(&seg, &loading, bore, st.stroke_mm, Judge::HighestStress)
+        .expect("cases solve");
+    assert!(g.reason.contains("governing case"));
+    for (clocking, major_axis) in sharing::cases(&loading) {
+        let case = Loading {
+            clocking,
+            major_axis,
+            ..loading.clone()
+        };
+        let s = seg
+            .loaded_at_bore(bore, &case)
+            .expect("fits")
+            .state(st.stroke_mm)
+            .expect("state");
+        assert!(s.totals.max_stress_mpa <= g.state.totals.max_stress_mpa);
+    }
+}
+
+#[test]
+fn bad_loading_is_refused_with_its_range() {
+    // Project rule (common practice): bad input gives one line naming the field and range.
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let bad = |l: Loading| {
+        seg.loaded_at_bore(100.0, &l)
+            .map(|_| ())
+            .expect_err("refused")
+            .to_string()
+    };
+    let msg = bad(Loading {
+        radial_load_n: -1.0,
+        ..Loading::default()
+    });
+    assert!(msg.contains("duty.radial_load_n") && msg.contains("0 to 10000000"), "{msg}");
+    let msg = bad(Loading {
+        out_of_round_mm: 20.0,
+        ..Loading::default()
+    });
+    assert!(msg.contains("bore.out_of_round_mm") && msg.contains("0 to 10"), "{msg}");
+    let msg = bad(Loading {
+        deviations: vec![StripDeviation::default(); 3],
+        ..Loading::default()
+    });
+    assert!(msg.contains("3 given for 8 strips"), "{msg}");
+}
+
+#[test]
+fn bend_rule_against_hand_values() {
+    // Mechanics note, "Bends": a rigid body passes while
+    // (l_r/2)^2 + (R_b - D/2 + d_r)^2 <= (R_b + D/2)^2 (plane geometry, common practice);
+    // elbow radii 1.5 x NPS (long) and 1.0 x NPS (short), ASME B16.9 (from memory).
+    // Worked by hand: NPS 4 schedule 40, bore D = 114.3 - 2 x 6.02 = 102.26 mm (ASME
+    // B36.10M), rigid length l_r = 150 + 2 x 5 = 160 mm, rim d_r = 80 mm.
+    // Long radius: R_b = 1.5 x 4 x 25.4 = 152.4; R_b + D/2 = 203.53, squared 41424.4609;
+    // minus 80^2 = 35024.4609, root 187.148232; minus R_b - D/2 = 101.27 gives the largest
+    // rim 85.878232 mm: passes with 5.878232 mm to spare.
+    // Short radius: R_b = 101.6; 152.73^2 = 23326.4529; minus 6400 = 16926.4529, root
+    // 130.101702; minus 50.47 gives 79.631702 mm: an 80 mm rim jams, 0.368298 mm too big.
+    let bore = 114.3 - 2.0 * 6.02;
+    let long = bend::passage(Bend::LongRadius, Some("4"), bore, 80.0, 160.0).expect("judged");
+    assert!(long.passes);
+    assert!((long.centreline_radius_mm - 152.4).abs() < 1e-9);
+    assert!((long.largest_rim_diameter_mm - 85.878232).abs() < 1e-6);
+    assert!((long.margin_mm - 5.878232).abs() < 1e-6);
+    let short = bend::passage(Bend::ShortRadius, Some("4"), bore, 80.0, 160.0).expect("judged");
+    assert!(!short.passes);
+    assert!((short.margin_mm + 0.368298).abs() < 1e-6);
+    assert!(short.reason.contains("jams"));
+    // A radius given in mm; an elbow by NPS without a pipe size is refused in one line.
+    let by_mm = bend::passage(Bend::RadiusMm(152.4), None, bore, 80.0, 160.0).expect("judged");
+    assert!((by_mm.margin_mm - long.margin_mm).abs() < 1e-12);
+    let err = bend::passage(Bend::LongRadius, None, bore, 80.0, 160.0).expect_err("no NPS");
+    assert!(err.to_string().contains("bore.bend"));
+}
