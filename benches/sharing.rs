@@ -23,9 +23,8 @@ fn bench(c: &mut Criterion) {
     };
     let loaded = seg.loaded_at_bore(bore, &loading).expect("demo fits");
     let centred = seg.at_bore(bore).expect("demo fits");
-    let stroke = 0.5
-        * (centred.first_contact_stroke_mm().expect("reach")
-            + centred.limit_stroke_mm());
+    let stroke =
+        0.5 * (centred.first_contact_stroke_mm().expect("reach") + centred.limit_stroke_mm());
     let st = loaded.state(stroke).expect("solves");
     assert!(st.hub_offset_mm[0] < 0.0 && !st.on_support);
     c.bench_function("loaded state, 12 strips, weight + oval bore", |b| {

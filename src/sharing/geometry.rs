@@ -115,7 +115,10 @@ mod tests {
     #[test]
     fn round_travel_is_the_edge_contact_gap() {
         // Mechanics note: centred in a round bore the gap is sqrt(R^2 - b^2/4) - t/2 - r_m.
-        let e = Ellipse { a_y: 50.0, a_z: 50.0 };
+        let e = Ellipse {
+            a_y: 50.0,
+            a_z: 50.0,
+        };
         let (rho0, half_b) = (38.3, 6.0);
         let th: f64 = 0.7;
         let (u, v) = ([th.cos(), th.sin()], [-th.sin(), th.cos()]);
@@ -139,7 +142,10 @@ mod tests {
     #[test]
     fn inner_parallel_is_r_from_the_wall() {
         // The centre of a touching circle lies r from the wall (plane geometry).
-        let e = Ellipse { a_y: 50.5, a_z: 49.5 };
+        let e = Ellipse {
+            a_y: 50.5,
+            a_z: 49.5,
+        };
         for phi in [0.0, 0.4, 2.0, 3.1] {
             let d = e.inner_parallel(phi, 40.0);
             assert!((e.distance_inside(d) - 40.0).abs() < 1e-9);

@@ -103,7 +103,9 @@ pub const MAX_RADIAL_LOAD_N: f64 = 1e7;
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 pub enum SolveFailure {
     /// The hub-offset iteration did not settle within its bound.
-    #[error("the hub-offset solve did not settle within {iterations} iterations at stroke {stroke_mm} mm")]
+    #[error(
+        "the hub-offset solve did not settle within {iterations} iterations at stroke {stroke_mm} mm"
+    )]
     IterationLimit {
         /// Stroke, mm.
         stroke_mm: f64,
@@ -403,7 +405,10 @@ impl<'a> LoadedBore<'a> {
                 stress_per_axial: force_unit_n / (b_m * t_m) * 1e-6,
             })
         };
-        let equal = loading.deviations.iter().all(|d| *d == StripDeviation::default());
+        let equal = loading
+            .deviations
+            .iter()
+            .all(|d| *d == StripDeviation::default());
         let classes: Vec<StripClass> = if equal {
             vec![class_of(&StripDeviation::default())?]
         } else {
@@ -516,7 +521,11 @@ impl<'a> LoadedBore<'a> {
     fn gap_mm(&self, i: usize, d: [f64; 2], folded: bool) -> f64 {
         let p = &self.places[i];
         let k = &self.classes[p.class];
-        let (u, v) = if folded { (p.u_fold, p.v_fold) } else { (p.u, p.v) };
+        let (u, v) = if folded {
+            (p.u_fold, p.v_fold)
+        } else {
+            (p.u, p.v)
+        };
         let hb = 0.5 * k.width_mm;
         let edge = |sign: f64| {
             let c = [
@@ -637,13 +646,16 @@ impl<'a> LoadedBore<'a> {
         let n = results.len() as f64;
         let sum = |f: fn(&StripResult) -> f64| results.iter().map(f).sum::<f64>();
         let worst_strip = (0..results.len())
-            .max_by(|&a, &b| results[a].max_stress_mpa.total_cmp(&results[b].max_stress_mpa))
+            .max_by(|&a, &b| {
+                results[a]
+                    .max_stress_mpa
+                    .total_cmp(&results[b].max_stress_mpa)
+            })
             .unwrap_or(0);
         let radial = sum(|r| r.contact_force_n);
         let axial = sum(|r| r.axial_force_n);
-        let min_of = |f: fn(&StripResult) -> f64| {
-            results.iter().map(f).fold(f64::INFINITY, f64::min)
-        };
+        let min_of =
+            |f: fn(&StripResult) -> f64| results.iter().map(f).fold(f64::INFINITY, f64::min);
         let totals = Totals {
             actuator_force_n: axial,
             radial_force_n: radial,
@@ -703,9 +715,8 @@ impl<'a> LoadedBore<'a> {
         let seg = self.segment;
         let ok = !st.beyond_limit;
         let some = |v: f64| ok.then_some(v);
-        let max_of = |f: fn(&StripResult) -> f64| {
-            st.strips.iter().map(f).fold(f64::NEG_INFINITY, f64::max)
-        };
+        let max_of =
+            |f: fn(&StripResult) -> f64| st.strips.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
         let d = st.hub_offset_mm;
         let outer = (0..st.strips.len())
             .map(|i| {
@@ -713,8 +724,7 @@ impl<'a> LoadedBore<'a> {
                 let k = &self.classes[p.class];
                 let r = k.face_mm + st.strips[i].crest_height_mm;
                 let centre = [d[0] + r * p.u[0], d[1] + r * p.u[1]];
-                2.0 * (centre[0].hypot(centre[1]).powi(2) + 0.25 * k.width_mm * k.width_mm)
-                    .sqrt()
+                2.0 * (centre[0].hypot(centre[1]).powi(2) + 0.25 * k.width_mm * k.width_mm).sqrt()
             })
             .fold(f64::NEG_INFINITY, f64::max);
         let t = &st.totals;
@@ -745,10 +755,7 @@ impl<'a> LoadedBore<'a> {
             first_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
             line_contact_stroke_mm: self.line_contact_stroke_mm(d),
             bore_mm: self.bore_mm,
-            gap_mm: self
-                .gaps_mm(d)
-                .into_iter()
-                .fold(f64::INFINITY, f64::min),
+            gap_mm: self.gaps_mm(d).into_iter().fold(f64::INFINITY, f64::min),
             limit_stroke_mm: strokes.limit_stroke_mm,
             limit_reason: strokes.limit_reason.name(),
             crest_height_mm: some(max_of(|s| s.crest_height_mm)),
@@ -879,7 +886,9 @@ pub fn governing(
             "highest worst-strip stress, {:.1} MPa",
             state.totals.max_stress_mpa
         ),
-        Judge::LeastHolding => format!("least holding force, {:.1} N", state.totals.holding_force_n),
+        Judge::LeastHolding => {
+            format!("least holding force, {:.1} N", state.totals.holding_force_n)
+        }
         Judge::FewestInContact => format!(
             "fewest strips touching, {} of {}",
             state.totals.strips_in_contact,

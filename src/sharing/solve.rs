@@ -207,9 +207,14 @@ impl LoadedBore<'_> {
         let mut hi: (f64, Option<f64>) = (y_hi, None);
         let mut prev: Option<(f64, f64)> = None;
         let mut y = 0.0_f64.clamp(y_lo, y_hi);
-        let step_tol = 1e-15 * c.max(1e-300);
+        // Offsets closer than this are one for the strip solver's rounding.
+        let step_tol = 1e-13 * c.max(1e-300);
+        let mut best: Option<(f64, f64)> = None;
         for _ in 0..MAX_ITER_1D {
             let (r, e) = eval(y)?;
+            if r.is_finite() && best.is_none_or(|(_, b)| r.abs() < b) {
+                best = Some((y, r.abs()));
+            }
             if r.is_nan() {
                 return Ok(self.beyond(stroke_mm, [y, 0.0], count.get()));
             }
@@ -266,13 +271,18 @@ impl LoadedBore<'_> {
                     _ => 0.5 * (lo.0 + hi.0),
                 }
             };
-            if (next - y).abs() <= step_tol || (lo.1.is_some() && hi.1.is_some() && hi.0 - lo.0 <= step_tol) {
-                let (r, e) = eval(next)?;
-                if !r.is_finite() || e.is_beyond() {
-                    // The balance jumps across a strip's limit: no state here.
-                    return Ok(self.beyond(stroke_mm, [next, 0.0], count.get()));
-                }
-                return Ok(self.assemble_eval(stroke_mm, [next, 0.0], &e, [0.0, 0.0], count.get()));
+            let tight = lo.1.is_some() && hi.1.is_some() && hi.0 - lo.0 <= step_tol;
+            if (next - y).abs() <= step_tol || tight {
+                // At the rounding floor: the best offset seen is the state, unless the
+                // balance jumps there across a strip's limit (then there is no state).
+                let across_limit =
+                    lo.1.is_some_and(f64::is_infinite) || hi.1.is_some_and(f64::is_infinite);
+                let at = match best {
+                    Some((yb, rb)) if !across_limit || rb <= 100.0 * self.tolerance_n(&e) => yb,
+                    _ => return Ok(self.beyond(stroke_mm, [next, 0.0], count.get())),
+                };
+                let (_, e) = eval(at)?;
+                return Ok(self.assemble_eval(stroke_mm, [at, 0.0], &e, [0.0, 0.0], count.get()));
             }
             y = next;
         }
@@ -297,7 +307,11 @@ impl LoadedBore<'_> {
     }
 
     /// Residual `sum F_i u_i + W` (the support's share) at offset `d`; `None` past a limit.
-    fn residual_2d(&self, d: [f64; 2], stroke_mm: f64) -> Result<(Option<[f64; 2]>, Eval), SolveFailure> {
+    fn residual_2d(
+        &self,
+        d: [f64; 2],
+        stroke_mm: f64,
+    ) -> Result<(Option<[f64; 2]>, Eval), SolveFailure> {
         let e = self.eval(d, stroke_mm, false)?;
         if e.is_beyond() {
             return Ok((None, e));
@@ -318,6 +332,7 @@ impl LoadedBore<'_> {
         let h = 1e-7 * self.bore_mm;
         let norm = |r: [f64; 2]| r[0].hypot(r[1]);
         let mut on_wall = false;
+        let mut tried_wall = false;
         for _ in 0..MAX_ITER_2D {
             evaluations += 1;
             let (r, e) = self.residual_2d(d, stroke_mm)?;
@@ -331,18 +346,24 @@ impl LoadedBore<'_> {
             if norm(r) <= self.tolerance_n(&e) {
                 return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
             }
-            // Jacobian by forward differences.
+            // Jacobian by one-sided differences (the other side where one is past a limit).
             let mut jac = [[0.0; 2]; 2];
-            for (col, dir) in [[h, 0.0], [0.0, h]].into_iter().enumerate() {
-                evaluations += 1;
-                let dh = [d[0] + dir[0], d[1] + dir[1]];
-                let (rh, _) = self.residual_2d(dh, stroke_mm)?;
-                let Some(rh) = rh else {
-                    on_wall = !self.rim_clears(dh);
-                    break;
+            for col in 0..2 {
+                let mut column = None;
+                for step in [h, -h] {
+                    evaluations += 1;
+                    let mut dh = d;
+                    dh[col] += step;
+                    if let (Some(rh), _) = self.residual_2d(dh, stroke_mm)? {
+                        column = Some([(rh[0] - r[0]) / step, (rh[1] - r[1]) / step]);
+                        break;
+                    }
+                }
+                let Some(column) = column else {
+                    return Ok(self.beyond(stroke_mm, d, evaluations));
                 };
-                jac[0][col] = (rh[0] - r[0]) / h;
-                jac[1][col] = (rh[1] - r[1]) / h;
+                jac[0][col] = column[0];
+                jac[1][col] = column[1];
             }
             let det = jac[0][0] * jac[1][1] - jac[0][1] * jac[1][0];
             if !(det.is_finite() && det.abs() > 0.0) {
@@ -353,6 +374,17 @@ impl LoadedBore<'_> {
                 -(jac[1][1] * r[0] - jac[0][1] * r[1]) / det,
                 -(-jac[1][0] * r[0] + jac[0][0] * r[1]) / det,
             ];
+            let full = [d[0] + step[0], d[1] + step[1]];
+            if !tried_wall && !self.rim_clears(full) {
+                // The step heads through the wall: the hub may rest on it. A rest with the
+                // support pushing is the equilibrium; if the support would have to pull,
+                // the equilibrium is inside and the damped steps go on.
+                tried_wall = true;
+                match self.solve_on_wall(stroke_mm, evaluations) {
+                    Err(SolveFailure::NoRestBalance { .. }) => {}
+                    other => return other,
+                }
+            }
             let mut lambda = 1.0;
             let mut accepted = false;
             for _ in 0..40 {
@@ -395,7 +427,11 @@ impl LoadedBore<'_> {
 
     /// The hub resting on the wall: the rim's centre on the inner parallel curve at normal
     /// angle `phi`; the tangential balance is zero and the support pushes off the wall.
-    fn solve_on_wall(&self, stroke_mm: f64, evaluations: usize) -> Result<SharedState, SolveFailure> {
+    fn solve_on_wall(
+        &self,
+        stroke_mm: f64,
+        evaluations: usize,
+    ) -> Result<SharedState, SolveFailure> {
         let count = std::cell::Cell::new(evaluations);
         let rim = self.rim_radius_mm;
         let curvature = self.bore.min_curvature_radius();
@@ -405,20 +441,27 @@ impl LoadedBore<'_> {
                 curvature_mm: curvature,
             });
         }
-        let tangential = |phi: f64| -> Result<(Option<(f64, [f64; 2])>, [f64; 2], Eval), SolveFailure> {
-            count.set(count.get() + 1);
-            let d = self.bore.inner_parallel(phi, rim);
-            let (r, e) = self.residual_2d(d, stroke_mm)?;
-            Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
+        let tangential =
+            |phi: f64| -> Result<(Option<(f64, [f64; 2])>, [f64; 2], Eval), SolveFailure> {
+                count.set(count.get() + 1);
+                let d = self.bore.inner_parallel(phi, rim);
+                let (r, e) = self.residual_2d(d, stroke_mm)?;
+                Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
+            };
+        // The hub rests where the net push on it, taken at the centre, points: under a
+        // weight near the bottom (phi = pi). The tangential balance rises with phi there;
+        // bracket it by widening steps.
+        count.set(count.get() + 1);
+        let centre = match self.residual_2d([0.0, 0.0], stroke_mm)?.0 {
+            Some(r) if r[0] != 0.0 || r[1] != 0.0 => (-r[1]).atan2(-r[0]),
+            _ => PI,
         };
-        // The load points down: the rest lies near the bottom (phi = pi). The tangential
-        // balance rises with phi there; bracket it by widening steps.
-        let mut lo = PI;
-        let mut hi = PI;
+        let mut lo = centre;
+        let mut hi = centre;
         let mut found = false;
         for k in 1..=16 {
             let span = 0.05 * k as f64;
-            let (a, b) = (PI - span, PI + span);
+            let (a, b) = (centre - span, centre + span);
             let ta = tangential(a)?.0.map(|(t, _)| t);
             let tb = tangential(b)?.0.map(|(t, _)| t);
             if let (Some(ta), Some(tb)) = (ta, tb)
@@ -530,7 +573,9 @@ impl LoadedBore<'_> {
         let centred_limit = (0..n)
             .filter_map(|i| {
                 let l = self.classes[self.places[i].class].length_mm;
-                self.path_at(i, [0.0, 0.0]).ok().map(|p| p.limit().stroke * l)
+                self.path_at(i, [0.0, 0.0])
+                    .ok()
+                    .map(|p| p.limit().stroke * l)
             })
             .fold(0.0, f64::max);
         let beyond = |s: f64| self.solve(s).map(|st| st.beyond_limit);
