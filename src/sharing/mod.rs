@@ -112,6 +112,17 @@ pub enum SolveFailure {
         /// The bound that was reached.
         iterations: usize,
     },
+    /// The two-component Newton iteration (unequal strips) stalled on a kink of the force
+    /// balance, where a strip's two edges are equally near the wall.
+    #[error(
+        "the hub-offset solve for unequal strips stalled at stroke {stroke_mm} mm with {residual_n:.3e} N out of balance"
+    )]
+    Stalled {
+        /// Stroke, mm.
+        stroke_mm: f64,
+        /// Size of the force balance's residual there, N.
+        residual_n: f64,
+    },
     /// A strip's force came out not finite.
     #[error("strip {strip} gave a force that is not a finite number at stroke {stroke_mm} mm")]
     NotFinite {
@@ -433,7 +444,7 @@ impl<'a> LoadedBore<'a> {
                 let clock_rad = PI + step * s;
                 let fold = PI - step * s.abs();
                 let (sf, cf) = fold.sin_cos();
-                let sign = if s < 0.0 { -1.0 } else { 1.0 };
+                let sign = if s < 0.0 { 1.0 } else { -1.0 };
                 StripPlace {
                     clock_rad,
                     u: [cf, sign * sf],

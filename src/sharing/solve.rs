@@ -410,10 +410,16 @@ impl LoadedBore<'_> {
                 if on_wall {
                     break;
                 }
-                // Rounding floor: the best point found is the state.
-                evaluations += 1;
-                let (_, e) = self.residual_2d(d, stroke_mm)?;
-                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
+                // No step along Newton's direction lowers the residual: at the rounding
+                // floor the point is the state; otherwise the residual has a kink here
+                // (a strip's two edges tie) and the Newton iteration stalls.
+                if norm(r) <= 1e3 * self.tolerance_n(&e) {
+                    return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
+                }
+                return Err(SolveFailure::Stalled {
+                    stroke_mm,
+                    residual_n: norm(r),
+                });
             }
         }
         if on_wall {
