@@ -21,6 +21,10 @@ const SCAN: usize = 24;
 /// Bisection steps refining a bore-level stroke.
 const BISECT: usize = 48;
 
+/// On the wall at one normal angle: the tangential balance with the residual (`None` past
+/// a limit), the hub offset and the evaluation.
+type WallPoint = (Option<(f64, [f64; 2])>, [f64; 2], Eval);
+
 /// One evaluation of every strip at a hub offset.
 struct Eval {
     /// Gap and strip state per strip, in clock order (states are `BeyondLimit` for strips
@@ -447,13 +451,12 @@ impl LoadedBore<'_> {
                 curvature_mm: curvature,
             });
         }
-        let tangential =
-            |phi: f64| -> Result<(Option<(f64, [f64; 2])>, [f64; 2], Eval), SolveFailure> {
-                count.set(count.get() + 1);
-                let d = self.bore.inner_parallel(phi, rim);
-                let (r, e) = self.residual_2d(d, stroke_mm)?;
-                Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
-            };
+        let tangential = |phi: f64| -> Result<WallPoint, SolveFailure> {
+            count.set(count.get() + 1);
+            let d = self.bore.inner_parallel(phi, rim);
+            let (r, e) = self.residual_2d(d, stroke_mm)?;
+            Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
+        };
         // The hub rests where the net push on it, taken at the centre, points: under a
         // weight near the bottom (phi = pi). The tangential balance rises with phi there;
         // bracket it by widening steps.
