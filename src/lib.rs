@@ -15,5 +15,6 @@ pub mod elliptic;
 pub mod friction;
 pub mod material;
 pub mod pipe;
+pub mod scatter;
 pub mod segment;
 pub mod sheet;
