@@ -41,9 +41,10 @@ fn bench(c: &mut Criterion) {
         b.iter(|| scatter::run(black_box(&design), black_box(&full)))
     });
     let first = spec(scatter::FIRST_CHUNK);
-    group.bench_function("first estimate (first chunk and the deterministic parts)", |b| {
-        b.iter(|| scatter::run(black_box(&design), black_box(&first)))
-    });
+    group.bench_function(
+        "first estimate (first chunk and the deterministic parts)",
+        |b| b.iter(|| scatter::run(black_box(&design), black_box(&first))),
+    );
     group.finish();
 }
 

@@ -116,7 +116,11 @@ impl CentredModel {
     /// The segment of the design with every strip moved by `(dt, dw, dl)` mm, the hub
     /// and friction of `x`, and the modulus scaled by `x.modulus_factor` (through `E'`
     /// and `B` together, which is all the mechanics reads of it).
-    pub fn segment(&self, x: &SampleInputs, strip: (f64, f64, f64)) -> Result<Segment, SegmentError> {
+    pub fn segment(
+        &self,
+        x: &SampleInputs,
+        strip: (f64, f64, f64),
+    ) -> Result<Segment, SegmentError> {
         let mut d = self.design.clone();
         d.mount_radius_mm += x.mount_radius_mm;
         d.friction = x.friction;
@@ -129,7 +133,11 @@ impl CentredModel {
         Ok(seg)
     }
 
-    fn one_strip(&self, x: &SampleInputs, strip: (f64, f64, f64)) -> Result<Vec<Outcome>, SegmentError> {
+    fn one_strip(
+        &self,
+        x: &SampleInputs,
+        strip: (f64, f64, f64),
+    ) -> Result<Vec<Outcome>, SegmentError> {
         let seg = self.segment(x, strip)?;
         let list = checks::run(&seg);
         let positional = list.len() == self.checks.len()
@@ -275,7 +283,9 @@ mod tests {
         let per = [(a, 1), (b, 3)];
         let mean = combine(Combine::Mean, &per, 4).margin.unwrap_or(f64::NAN);
         assert!((mean - 0.275).abs() < 1e-15);
-        let harm = combine(Combine::Harmonic, &per, 4).margin.unwrap_or(f64::NAN);
+        let harm = combine(Combine::Harmonic, &per, 4)
+            .margin
+            .unwrap_or(f64::NAN);
         assert!((harm - (4.0 / (1.0 / 1.5 + 3.0 / 1.2) - 1.0)).abs() < 1e-15);
         assert_eq!(combine(Combine::Worst, &per, 4).margin, Some(0.2));
         let none_fail = Outcome {

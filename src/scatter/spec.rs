@@ -311,7 +311,9 @@ impl ScatterSpec {
             },
         };
         let (u, reach) = match self.distribution {
-            DistributionKind::Normal3Sigma => (half_width / 3.0, half_width / 3.0 * NORMAL_BOUND_SD),
+            DistributionKind::Normal3Sigma => {
+                (half_width / 3.0, half_width / 3.0 * NORMAL_BOUND_SD)
+            }
             DistributionKind::Uniform => (half_width / 3.0_f64.sqrt(), half_width),
         };
         let mut bounds = (centre - reach, centre + reach);
@@ -419,7 +421,9 @@ mod tests {
     fn defaults_of_the_contract() {
         // The project's contract: every tolerance optional (0), Normal3Sigma, 10,000
         // samples, seed 1.
-        let s: ScatterSpec = ron_options().from_str("(thickness_mm: 0.01)").expect("parses");
+        let s: ScatterSpec = ron_options()
+            .from_str("(thickness_mm: 0.01)")
+            .expect("parses");
         assert_eq!(s.thickness_mm, 0.01);
         assert_eq!(s.width_mm, 0.0);
         assert_eq!(s.friction, None);
@@ -434,7 +438,11 @@ mod tests {
             .expect("parses");
         assert_eq!(full.friction, Some((0.2, 0.4)));
         assert_eq!(full.distribution, DistributionKind::Uniform);
-        assert!(ron_options().from_str::<ScatterSpec>("(thicknes_mm: 0.01)").is_err());
+        assert!(
+            ron_options()
+                .from_str::<ScatterSpec>("(thicknes_mm: 0.01)")
+                .is_err()
+        );
     }
 
     #[test]
@@ -471,7 +479,10 @@ mod tests {
         assert!((var - 1.0).abs() < 4.0 * (2.0 / n as f64).sqrt(), "{var}");
         let r: Vec<f64> = (0..n).map(|_| unit_uniform(&mut rng)).collect();
         let mean = r.iter().sum::<f64>() / n as f64;
-        assert!((mean - 0.5).abs() < 4.0 * (1.0 / 12.0 / n as f64).sqrt(), "{mean}");
+        assert!(
+            (mean - 0.5).abs() < 4.0 * (1.0 / 12.0 / n as f64).sqrt(),
+            "{mean}"
+        );
         assert!(r.iter().all(|&x| (0.0..1.0).contains(&x)));
     }
 
@@ -483,7 +494,10 @@ mod tests {
             ..ScatterSpec::default()
         };
         let e = s.validate().expect_err("negative tolerance").to_string();
-        assert!(e.contains("scatter.thickness_mm") && e.contains("0 mm or more"), "{e}");
+        assert!(
+            e.contains("scatter.thickness_mm") && e.contains("0 mm or more"),
+            "{e}"
+        );
         let s = ScatterSpec {
             friction: Some((0.5, 0.2)),
             ..ScatterSpec::default()
@@ -493,6 +507,11 @@ mod tests {
             samples: 0,
             ..ScatterSpec::default()
         };
-        assert!(s.validate().expect_err("no samples").to_string().contains("samples"));
+        assert!(
+            s.validate()
+                .expect_err("no samples")
+                .to_string()
+                .contains("samples")
+        );
     }
 }

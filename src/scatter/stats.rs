@@ -56,15 +56,20 @@ pub fn quantile_sorted(sorted: &[f64], q: f64) -> Option<f64> {
     })
 }
 
-/// The sample standard deviation (divisor `n - 1`), two-pass; `None` for fewer than two
+/// The sample standard deviation (divisor `n - 1`), two-pass, exactly 0 for equal values; `None` for fewer than two
 /// values or when any value is not finite.
 pub fn sample_sd(values: &[f64]) -> Option<f64> {
     if values.len() < 2 || values.iter().any(|v| !v.is_finite()) {
         return None;
     }
+    // Two passes on the values shifted by the first, so that equal values give exactly 0.
     let n = values.len() as f64;
-    let mean = values.iter().sum::<f64>() / n;
-    let ss: f64 = values.iter().map(|v| (v - mean) * (v - mean)).sum();
+    let shift = values[0];
+    let mean = values.iter().map(|v| v - shift).sum::<f64>() / n;
+    let ss: f64 = values
+        .iter()
+        .map(|v| (v - shift - mean) * (v - shift - mean))
+        .sum();
     Some((ss / (n - 1.0)).sqrt())
 }
 
@@ -120,10 +125,7 @@ impl Histogram {
     /// The edges of bin `i`.
     pub fn bin_edges(&self, i: usize) -> (f64, f64) {
         let width = (self.hi - self.lo) / self.counts.len().max(1) as f64;
-        (
-            self.lo + width * i as f64,
-            self.lo + width * (i + 1) as f64,
-        )
+        (self.lo + width * i as f64, self.lo + width * (i + 1) as f64)
     }
 }
 

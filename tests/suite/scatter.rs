@@ -7,8 +7,8 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use bowgrip::checks::{self, MarginUnit};
 use bowgrip::design::Design;
 use bowgrip::scatter::{
-    self, CentredModel, CheckInfo, Control, DistributionKind, MarginModel, Outcome,
-    SampleInputs, ScatterError, ScatterSpec, Z_95, wilson_interval,
+    self, CentredModel, CheckInfo, Control, DistributionKind, MarginModel, Outcome, SampleInputs,
+    ScatterError, ScatterSpec, Z_95, wilson_interval,
 };
 use bowgrip::segment::{Segment, SegmentError};
 
@@ -94,13 +94,20 @@ fn free_phase_stroke_is_free() {
     // strip is in the free phase): the chosen stroke is short of first contact at every
     // bore the checks use.
     let seg = Segment::new(&free_phase_design()).expect("valid");
-    for bore in [seg.bore_smallest_mm, seg.bore_nominal_mm, seg.bore_largest_mm] {
+    for bore in [
+        seg.bore_smallest_mm,
+        seg.bore_nominal_mm,
+        seg.bore_largest_mm,
+    ] {
         let fc = seg
             .at_bore(bore)
             .expect("fits")
             .first_contact_stroke_mm()
             .expect("reachable");
-        assert!(fc > 2.0 * FREE_STROKE_MM, "first contact {fc} mm at {bore} mm");
+        assert!(
+            fc > 2.0 * FREE_STROKE_MM,
+            "first contact {fc} mm at {bore} mm"
+        );
     }
 }
 
@@ -118,7 +125,10 @@ fn propagation_free_axial_force_goes_with_thickness_cubed() {
     let u_t = 0.01 / 3.0;
     let want = 3.0 * u_t / 0.25;
     let got = c.margin_sd_propagation.expect("propagated") / p;
-    assert!((got / want - 1.0).abs() < 1e-6, "u_P/P = {got}, 3 u_t/t = {want}");
+    assert!(
+        (got / want - 1.0).abs() < 1e-6,
+        "u_P/P = {got}, 3 u_t/t = {want}"
+    );
     // JCGM 101:2008, 7.6 and 8: for a small tolerance the Monte Carlo standard deviation
     // agrees with the law of propagation within its own sampling uncertainty; for a
     // normal output the sample sd has a standard deviation sigma / sqrt(2 (n - 1))
@@ -192,7 +202,8 @@ fn same_seed_same_numbers_on_one_and_two_threads() {
     // A different seed gives different draws, so different percentiles.
     let other = scatter::run(&design, &ScatterSpec { seed: 12, ..spec }).expect("runs");
     assert_ne!(other.to_json(), one.to_json());
-    let p50 = |r: &scatter::ScatterReport| r.checks.iter().map(|c| c.margin_p50).collect::<Vec<_>>();
+    let p50 =
+        |r: &scatter::ScatterReport| r.checks.iter().map(|c| c.margin_p50).collect::<Vec<_>>();
     assert_ne!(p50(&other), p50(&one));
 }
 
@@ -246,7 +257,11 @@ fn worst_case_corner_is_no_better_than_any_sample() {
         );
     }
     // And the corner is strictly worse than the centre where anything moves the check.
-    let hold = report.worst_case.iter().find(|w| w.id == "hold").expect("hold");
+    let hold = report
+        .worst_case
+        .iter()
+        .find(|w| w.id == "hold")
+        .expect("hold");
     let centre = report.checks.iter().find(|c| c.id == "hold").expect("hold");
     assert!(hold.outcome.value() < centre.centre.value());
 }
@@ -289,7 +304,10 @@ fn sensitivities_follow_the_physics_and_the_strip_count() {
     let together = (r.margin_high.expect("m") - r.margin_low.expect("m")).abs() / 2.0 / 3.0;
     let n = f64::from(design.strip.count);
     let per_strip = hold.margin_sd_propagation.expect("propagated") * n.sqrt();
-    assert!((per_strip / together - 1.0).abs() < 0.02, "{per_strip} vs {together}");
+    assert!(
+        (per_strip / together - 1.0).abs() < 0.02,
+        "{per_strip} vs {together}"
+    );
 }
 
 #[test]
@@ -334,7 +352,10 @@ fn json_has_the_contract_keys_and_repeats_byte_for_byte() {
             "margin_sd_propagation",
         ])
     );
-    assert_eq!(v["checks"][0]["wilson_95"].as_array().map(Vec::len), Some(2));
+    assert_eq!(
+        v["checks"][0]["wilson_95"].as_array().map(Vec::len),
+        Some(2)
+    );
     assert_eq!(keys(&v["worst_case"][0]), sorted(&["id", "margin"]));
     assert_eq!(
         keys(&v["sensitivities"][0]),
@@ -391,8 +412,17 @@ fn too_wide_a_tolerance_is_refused_in_one_line() {
     let design = Design::default();
     let err = scatter::run(&design, &thickness_spec(0.2, 10)).expect_err("refused");
     let text = err.to_string();
-    assert!(matches!(err, ScatterError::TooWide { field: "thickness_mm", .. }));
-    assert!(text.contains("scatter.thickness_mm") && text.contains("strip.thickness_mm"), "{text}");
+    assert!(matches!(
+        err,
+        ScatterError::TooWide {
+            field: "thickness_mm",
+            ..
+        }
+    ));
+    assert!(
+        text.contains("scatter.thickness_mm") && text.contains("strip.thickness_mm"),
+        "{text}"
+    );
     assert!(!text.contains('\n'));
     let err = scatter::run(
         &design,
