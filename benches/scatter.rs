@@ -11,8 +11,10 @@ use bowgrip::scatter::{self, DistributionKind, ScatterSpec};
 use criterion::{Criterion, criterion_group, criterion_main};
 
 fn twelve_strips() -> Design {
-    let mut d = Design::default();
-    d.title = "Bench: twelve-strip anchor (invented)".to_string();
+    let mut d = Design {
+        title: "Bench: twelve-strip anchor (invented)".to_string(),
+        ..Design::default()
+    };
     d.strip.count = 12;
     d
 }
@@ -40,7 +42,7 @@ fn bench(c: &mut Criterion) {
     group.bench_function("10,000 samples, 12 strips, per-strip scatter", |b| {
         b.iter(|| scatter::run(black_box(&design), black_box(&full)))
     });
-    let first = spec(scatter::FIRST_CHUNK);
+    let first = spec(scatter::FIRST_CHUNK as u64);
     group.bench_function(
         "first estimate (first chunk and the deterministic parts)",
         |b| b.iter(|| scatter::run(black_box(&design), black_box(&first))),

@@ -70,6 +70,9 @@ pub struct CentredModel {
     checks: Vec<CheckInfo>,
 }
 
+/// One strip's `(thickness, width, free length)` deviations, mm.
+type StripDeviation = (f64, f64, f64);
+
 /// How per-strip outcomes make the segment's.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Combine {
@@ -181,7 +184,7 @@ impl MarginModel for CentredModel {
             return self.one_strip(x, first);
         }
         // Strips with identical deviations are judged once.
-        let mut distinct: Vec<((f64, f64, f64), Vec<Outcome>, usize)> = Vec::new();
+        let mut distinct: Vec<(StripDeviation, Vec<Outcome>, usize)> = Vec::new();
         for i in 0..n {
             let key = x.strip(i);
             match distinct.iter_mut().find(|(k, _, _)| *k == key) {
