@@ -430,20 +430,35 @@ fn bore_path<'a>(
     bore_mm: Option<f64>,
 ) -> anyhow::Result<BorePath<'a>> {
     let bore = bore_mm.unwrap_or(seg.bore_nominal_mm);
-    let width_mm = seg.design.strip.width_mm;
     seg.at_bore(bore).map_err(|e| {
-        if width_mm >= bore {
-            // The flat strip's edges are already outside the bore: there is no gap at all.
-            anyhow!(
-                "{}: the segment does not fit a {} mm bore: its strips are {} mm wide, as wide as the bore or wider, so their edges meet the wall before they can bow",
-                file.display(),
-                show_number(bore),
-                show_number(width_mm)
-            )
-        } else {
-            anyhow!("{}: {e}", file.display())
-        }
+        anyhow!(
+            "{}: {}",
+            file.display(),
+            no_fit_message(&e, seg.design.strip.width_mm, bore)
+        )
     })
+}
+
+/// Why the segment has no state at `bore_mm`, in words, with magnitudes printed sanely
+/// (a bore of 1e-300 mm is not printed as 300 digits).
+fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64) -> String {
+    use crate::segment::SegmentError;
+    if width_mm >= bore_mm {
+        // The flat strip's edges are already outside the bore: there is no gap at all.
+        return format!(
+            "the segment does not fit a {} mm bore: its strips are {} mm wide, as wide as the bore or wider, so their edges meet the wall before they can bow",
+            show_number(bore_mm),
+            show_number(width_mm)
+        );
+    }
+    match e {
+        SegmentError::NoClearance { bore_mm, gap_mm } => format!(
+            "the segment does not fit a {} mm bore: the relaxed strips leave a gap of {} mm to the wall (it must be more than 0)",
+            show_number(*bore_mm),
+            show_number(*gap_mm)
+        ),
+        other => other.to_string(),
+    }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -820,8 +835,7 @@ mod tests {
         assert!(stroke_mm("-1").is_err_and(|e| e.contains("0 mm or more")));
         assert_eq!(stroke_mm("2.5"), Ok(2.5));
         assert!(bore_mm("0").is_err_and(|e| e.contains("more than 0, up to 1e6 mm")));
-        // Issue 11, item 11: no 300-digit number in the message.
-        assert!(bore_mm("1e-300").is_err_and(|e| e.starts_with("1e-300 is outside")));
+        assert!(bore_mm("1e7").is_err_and(|e| e.starts_with("1e7 is outside")));
         assert!(bore_mm("1e300").is_err());
         assert!(bore_mm("NaN").is_err());
         assert!(points("1").is_err_and(|e| e.contains("from 2 to")));
@@ -832,6 +846,25 @@ mod tests {
     #[test]
     fn messages_fold_onto_one_line() {
         assert_eq!(one_line("a\n  b\tc "), "a b c");
+    }
+
+    #[test]
+    fn a_bore_the_segment_does_not_fit_is_said_plainly() {
+        use crate::segment::SegmentError;
+        // Issue 11, item 11: `--bore-mm 1e-300` printed a 300-digit number.
+        let e = SegmentError::NoClearance {
+            bore_mm: 1e-300,
+            gap_mm: -27.0,
+        };
+        let text = no_fit_message(&e, 0.1, 1e-300);
+        assert!(text.contains("a 1e-300 mm bore"), "{text}");
+        assert!(text.len() < 200, "{text}");
+        // A strip wider than the bore: says the segment does not fit, and why.
+        let text = no_fit_message(&e, 80.0, 70.0);
+        assert!(
+            text.starts_with("the segment does not fit a 70 mm bore: its strips are 80 mm wide"),
+            "{text}"
+        );
     }
 
     #[test]

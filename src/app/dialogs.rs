@@ -382,7 +382,7 @@ fn rewrite_window(app: &mut GripApp, ctx: &Context) {
         return;
     };
     let (path, why, then) = (path.clone(), why.clone(), then.clone());
-    egui::Modal::new(egui::Id::new("rewrite-prompt")).show(ctx, |ui| {
+    egui::Modal::new(egui::Id::unique("rewrite-prompt")).show(ctx, |ui| {
         ui.heading("Rewrite the whole file?");
         ui.label(format!(
             "The changes cannot be written into {} value by value: {why}. Saving writes the whole design, and the file's comments and layout go.",

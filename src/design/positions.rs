@@ -40,7 +40,6 @@ pub(crate) struct Unclosed {
 /// A streaming tokenizer over the text's bytes; all delimiters are ASCII, so every span
 /// ends on a char boundary.
 struct Scanner<'a> {
-    text: &'a str,
     bytes: &'a [u8],
     i: usize,
     line: usize,
@@ -51,7 +50,6 @@ struct Scanner<'a> {
 impl<'a> Scanner<'a> {
     fn new(text: &'a str) -> Scanner<'a> {
         Scanner {
-            text,
             bytes: text.as_bytes(),
             i: 0,
             line: 1,
