@@ -39,6 +39,17 @@ pub fn parse(text: &str) -> Result<Design, DesignError> {
         });
     }
     if let Some(open) = unclosed {
+        // A string that runs over a line end before it is where the quote is missing;
+        // the one left open at the end only inherited the shift.
+        let at = offset_of(text, open.line, open.column);
+        if let Some((line, column)) = string_across_lines(text, at) {
+            return Err(DesignError::Syntax {
+                line,
+                column,
+                message: "this string runs over the end of its line: its closing quote is missing"
+                    .to_string(),
+            });
+        }
         return Err(DesignError::Syntax {
             line: open.line,
             column: open.column,
@@ -106,6 +117,8 @@ fn syntax_error(text: &str, e: &ron::error::SpannedError) -> DesignError {
             .next()
             .is_some_and(|b| b.is_ascii_digit() || b == b'-' || b == b'+' || b == b'.');
         let plain = written.replace('_', "").parse::<f64>().is_ok();
+        // One token only: a value running into the next line is a missing comma.
+        let numeric = numeric && !written.contains(char::is_whitespace);
         let message = if numeric && WHOLE_FIELDS.contains(&entry.path.as_str()) {
             Some(format!(
                 "{} = {written}: a whole number is expected, written without a decimal point or exponent",
