@@ -197,24 +197,29 @@ fn number(text: &str) -> Result<f64, String> {
 }
 
 fn stroke_mm(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
+    let v = number(text).map_err(|e| format!("{e}; the allowed range is a stroke >= 0 mm"))?;
     if v >= 0.0 {
         Ok(v)
     } else {
         Err(format!(
-            "{} is outside the allowed range: 0 mm or more",
+            "{} is outside the allowed range: a stroke >= 0 mm",
             show_number(v)
         ))
     }
 }
 
 fn bore_mm(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
+    let v = number(text).map_err(|e| {
+        format!(
+            "{e}; the allowed range is a bore diameter > 0 and <= {} mm",
+            show_number(MAX_BORE_MM)
+        )
+    })?;
     if v > 0.0 && v <= MAX_BORE_MM {
         Ok(v)
     } else {
         Err(format!(
-            "{} is outside the allowed range: more than 0, up to {} mm",
+            "{} is outside the allowed range: a bore diameter > 0 and <= {} mm",
             show_number(v),
             show_number(MAX_BORE_MM)
         ))
@@ -453,7 +458,7 @@ fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64)
     }
     match e {
         SegmentError::NoClearance { bore_mm, gap_mm } => format!(
-            "the segment does not fit a {} mm bore: the relaxed strips leave a gap of {} mm to the wall (it must be more than 0)",
+            "the relaxed strips do not fit a {} mm bore: the gap to the wall is {} mm (it must be more than 0)",
             show_number(*bore_mm),
             show_number(*gap_mm)
         ),
@@ -832,9 +837,9 @@ mod tests {
     fn number_parsers_state_the_range() {
         assert!(stroke_mm("NaN").is_err_and(|e| e.contains("not a finite number")));
         assert!(stroke_mm("-inf").is_err_and(|e| e.contains("not a finite number")));
-        assert!(stroke_mm("-1").is_err_and(|e| e.contains("0 mm or more")));
+        assert!(stroke_mm("-1").is_err_and(|e| e.contains("a stroke >= 0 mm")));
         assert_eq!(stroke_mm("2.5"), Ok(2.5));
-        assert!(bore_mm("0").is_err_and(|e| e.contains("more than 0, up to 1e6 mm")));
+        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 and <= 1e6 mm")));
         assert!(bore_mm("1e7").is_err_and(|e| e.starts_with("1e7 is outside")));
         assert!(bore_mm("1e300").is_err());
         assert!(bore_mm("NaN").is_err());

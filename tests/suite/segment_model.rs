@@ -208,7 +208,7 @@ fn holding_and_stress_strokes_are_where_their_quantities_reach_the_target() {
 /// A random valid design: plausible sizes, a gap from slightly positive to past the reach.
 fn design_strategy() -> impl Strategy<Value = Design> {
     (
-        2u32..=64,
+        3u32..=64, // design::limits(): 3 to 64 strips
         10.0f64..400.0,
         0.02f64..2.0,
         1.0f64..30.0,
