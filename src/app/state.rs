@@ -289,7 +289,7 @@ pub fn orphans(dir: &Path) -> Vec<Result<Orphan, String>> {
             (when, p)
         })
         .collect();
-    copies.sort_by(|a, b| b.0.cmp(&a.0));
+    copies.sort_by_key(|c| std::cmp::Reverse(c.0));
     let mut found = Vec::new();
     for (_, path) in copies {
         let lock = match try_lock(&lock_path(&path)) {
