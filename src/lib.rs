@@ -7,6 +7,7 @@
 
 pub mod analysis;
 pub mod app;
+pub mod atomic;
 pub mod checks;
 pub mod cli;
 pub mod design;
