@@ -203,9 +203,7 @@ impl Column {
         match self {
             Column::Stroke => (0.0, 2000.0, "from 0 to 2000 mm"),
             Column::Bore => (1e-3, 1e6, "from 0.001 to 1000000 mm"),
-            Column::Measured(Quantity::OuterDiameter) => {
-                (1e-3, 1e6, "from 0.001 to 1000000 mm")
-            }
+            Column::Measured(Quantity::OuterDiameter) => (1e-3, 1e6, "from 0.001 to 1000000 mm"),
             // Small negative forces are load-cell noise around zero; keep them.
             Column::Measured(_) => (-1e9, 1e9, "from -1e9 to 1e9 N"),
         }
@@ -460,7 +458,9 @@ fn parse_row(
         let column = if fields.len() > columns.len() {
             fields[columns.len()].column
         } else {
-            fields.last().map_or(1, |f| f.column + f.text.chars().count())
+            fields
+                .last()
+                .map_or(1, |f| f.column + f.text.chars().count())
         };
         let hint = if !decimal_comma && fields.len() > columns.len() {
             " (a decimal comma needs `# decimal: comma` before the header)"

@@ -187,7 +187,10 @@ fn table(
         data.rows.len()
     );
     let _ = writeln!(t);
-    let _ = writeln!(t, "Residuals, measured - model, with the design as it stands:");
+    let _ = writeln!(
+        t,
+        "Residuals, measured - model, with the design as it stands:"
+    );
     residual_rows(&mut t, before);
     if let (Some(c), Some(after)) = (fit, after) {
         let _ = writeln!(t);
@@ -241,7 +244,10 @@ mod tests {
             Ok(FitList(vec![Factor::Modulus, Factor::Friction]))
         );
         let bad = fit_list("modulus,stiffness").unwrap_err();
-        assert!(bad.contains("\"stiffness\"") && bad.contains("offset"), "{bad}");
+        assert!(
+            bad.contains("\"stiffness\"") && bad.contains("offset"),
+            "{bad}"
+        );
         assert!(fit_list("offset,offset").unwrap_err().contains("twice"));
     }
 }
