@@ -270,8 +270,7 @@ fn split_fields(line: &str, separator: char) -> Vec<Field<'_>> {
     let mut fields = Vec::new();
     let mut start_byte = 0;
     let mut start_col = 1;
-    let mut col = 1;
-    for (i, c) in line.char_indices() {
+    for (col, (i, c)) in (1..).zip(line.char_indices()) {
         if c == separator {
             fields.push(Field {
                 text: &line[start_byte..i],
@@ -280,7 +279,6 @@ fn split_fields(line: &str, separator: char) -> Vec<Field<'_>> {
             start_byte = i + c.len_utf8();
             start_col = col + 1;
         }
-        col += 1;
     }
     fields.push(Field {
         text: &line[start_byte..],
