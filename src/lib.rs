@@ -7,6 +7,7 @@
 
 pub mod analysis;
 pub mod app;
+pub mod atomic;
 pub mod bench_data;
 pub mod calibrate;
 pub mod checks;

@@ -232,7 +232,7 @@ fn synthetic(design: &Design, per_block: usize, seed: u64, noise: bool) -> Bench
     for i in 0..per_block {
         let stroke = step(i, 0.4, 6.0);
         let s = free.state(stroke + f.stroke_offset_mm);
-        assert_eq!(s.phase, "free", "stroke {stroke}");
+        assert_eq!(s.phase, bowgrip::elastica::Phase::Free, "stroke {stroke}");
         rows.push(Measurement {
             line: rows.len() + 2,
             stroke_mm: stroke,

@@ -6,6 +6,7 @@ use std::f64::consts::PI;
 use bowgrip::analysis;
 use bowgrip::checks;
 use bowgrip::design::{Actuator, Design, Ends, MaterialChoice, Stiffness};
+use bowgrip::elastica::Phase;
 use bowgrip::segment::{Segment, StiffnessUsed, fatigue_strength_mpa};
 use proptest::prelude::*;
 
@@ -258,7 +259,7 @@ proptest! {
         for i in 0..=40 {
             let stroke = rising_to * f64::from(i) / 40.0;
             let s = p.state(stroke);
-            prop_assert!(s.phase != "beyond-limit", "state at {} of limit {}: {:?}", stroke, limit, s.reason);
+            prop_assert!(s.phase != Phase::BeyondLimit, "state at {} of limit {}: {:?}", stroke, limit, s.reason);
             for v in [s.axial_force_per_strip_n, s.contact_force_per_strip_n, s.max_stress_mpa, s.outer_diameter_mm, s.flat_length_mm] {
                 let v = v.expect("state present");
                 prop_assert!(v.is_finite(), "{:?}", s);
