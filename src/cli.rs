@@ -72,6 +72,9 @@ pub enum Command {
     Check(CheckArgs),
     /// Write the printable sizing sheet (PDF).
     Sheet(SheetArgs),
+    /// Bench measurements against the model: residuals, and with --fit the fitted
+    /// correction factors with their standard errors.
+    Compare(crate::compare::CompareArgs),
 }
 
 /// Arguments of `point`.
@@ -409,6 +412,7 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Bores(a) => bores(&a, &mut out)?,
         Command::Check(a) => check(&a, &mut out)?,
         Command::Sheet(a) => write_sheet(&a)?,
+        Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
     };
     out.flush()?;
     Ok(status)

@@ -1,5 +1,6 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod app;
+mod calibration;
 mod cli;
 mod data_tables;
 mod design_file;
