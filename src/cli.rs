@@ -72,6 +72,8 @@ pub enum Command {
     Check(CheckArgs),
     /// Write the printable sizing sheet (PDF).
     Sheet(SheetArgs),
+    /// The design map: two inputs over a grid, each design's limiting check and margin.
+    Map(crate::map::command::MapArgs),
 }
 
 /// Arguments of `point`.
@@ -325,6 +327,7 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Bores(a) => bores(&a, &mut out)?,
         Command::Check(a) => check(&a, &mut out)?,
         Command::Sheet(a) => write_sheet(&a)?,
+        Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
     };
     out.flush()?;
     Ok(status)

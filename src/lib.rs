@@ -13,6 +13,7 @@ pub mod design;
 pub mod elastica;
 pub mod elliptic;
 pub mod friction;
+pub mod map;
 pub mod material;
 pub mod pipe;
 pub mod segment;

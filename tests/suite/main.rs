@@ -7,6 +7,7 @@ mod elastica_reference;
 mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
+mod map;
 mod segment_model;
 mod shared;
 mod sheet;
