@@ -197,10 +197,7 @@ fn table(title: &str, map: &DesignMap) -> String {
     for (&iy, label) in rows.iter().zip(&labels).rev() {
         let line: String = cols
             .iter()
-            .map(|&ix| {
-                map.cell(ix, iy)
-                    .map_or(' ', |c| letter(c.limiting, c.pass))
-            })
+            .map(|&ix| map.cell(ix, iy).map_or(' ', |c| letter(c.limiting, c.pass)))
             .collect();
         let _ = writeln!(t, "{label:>width$} | {line}");
     }

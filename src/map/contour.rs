@@ -126,10 +126,7 @@ fn join(segments: &[(Edge, Edge)]) -> Vec<Vec<Edge>> {
             let next = if a == here { b } else { a };
             chain.push(next);
             here = next;
-            let Some(&follow) = at
-                .get(&here)
-                .and_then(|v| v.iter().find(|&&j| !used[j]))
-            else {
+            let Some(&follow) = at.get(&here).and_then(|v| v.iter().find(|&&j| !used[j])) else {
                 break;
             };
             seg = follow;
@@ -147,7 +144,12 @@ mod tests {
     fn segments_sharing_edges_make_one_chain() {
         let e = |a: usize, b: usize| edge((a, 0), (b, 0));
         // Three segments in a row and one apart.
-        let segs = [(e(0, 1), e(1, 2)), (e(2, 3), e(1, 2)), (e(2, 3), e(3, 4)), (e(7, 8), e(8, 9))];
+        let segs = [
+            (e(0, 1), e(1, 2)),
+            (e(2, 3), e(1, 2)),
+            (e(2, 3), e(3, 4)),
+            (e(7, 8), e(8, 9)),
+        ];
         let chains = join(&segs);
         assert_eq!(chains.len(), 2);
         assert_eq!(chains[0], vec![e(0, 1), e(1, 2), e(2, 3), e(3, 4)]);

@@ -196,7 +196,11 @@ impl FromStr for AxisSpec {
 
 impl fmt::Display for AxisSpec {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}:{}:{}:{}", self.field, self.from, self.to, self.points)
+        write!(
+            f,
+            "{}:{}:{}:{}",
+            self.field, self.from, self.to, self.points
+        )
     }
 }
 
@@ -483,12 +487,10 @@ impl MapSpec {
     }
 
     fn validated(&self, values: &[(&Axis, f64)]) -> Result<Design, DesignError> {
-        let design = self
-            .build(values)
-            .map_err(|message| DesignError::Invalid {
-                field: values.first().map_or("", |v| v.0.field).to_string(),
-                message,
-            })?;
+        let design = self.build(values).map_err(|message| DesignError::Invalid {
+            field: values.first().map_or("", |v| v.0.field).to_string(),
+            message,
+        })?;
         design.validate()?;
         Ok(design)
     }
@@ -823,9 +825,9 @@ mod tests {
         assert_eq!(a.field, "strip.thickness_mm");
         assert_eq!((a.from, a.to, a.points), (0.2, 0.3, 11));
         assert!(
-            "strip.count:2:9".parse::<AxisSpec>().is_err_and(|e| e
-                .to_string()
-                .contains("four parts"))
+            "strip.count:2:9"
+                .parse::<AxisSpec>()
+                .is_err_and(|e| e.to_string().contains("four parts"))
         );
         assert!(
             "friction:a:1:3"
