@@ -47,8 +47,8 @@ pub(super) fn zero_line(map: &DesignMap, s: usize) -> Vec<Vec<[f64; 2]>> {
                     let middle = middle_inside(map, &corners);
                     // Cut off each corner that differs from the middle: the edges before
                     // and after it.
-                    for k in 0..4 {
-                        if ins[k] != middle {
+                    for (k, &inside) in ins.iter().enumerate() {
+                        if inside != middle {
                             segments.push((e((k + 3) % 4), e(k)));
                         }
                     }
