@@ -75,6 +75,8 @@ pub enum Command {
     /// Bench measurements against the model: residuals, and with --fit the fitted
     /// correction factors with their standard errors.
     Compare(crate::compare::CompareArgs),
+    /// The design map: two inputs over a grid, each design's limiting check and margin.
+    Map(crate::map::command::MapArgs),
 }
 
 /// Arguments of `point`.
@@ -413,6 +415,7 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Check(a) => check(&a, &mut out)?,
         Command::Sheet(a) => write_sheet(&a)?,
         Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
+        Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
     };
     out.flush()?;
     Ok(status)

@@ -17,6 +17,7 @@ pub mod design;
 pub mod elastica;
 pub mod elliptic;
 pub mod friction;
+pub mod map;
 pub mod material;
 pub mod pipe;
 pub mod segment;

@@ -8,6 +8,7 @@ mod elastica_reference;
 mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
+mod map;
 mod recovery;
 mod segment_model;
 mod shared;
