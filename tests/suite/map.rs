@@ -25,7 +25,7 @@ fn spec(base: &Design, x: &str, y: &str) -> MapSpec {
 
 /// What `check` makes of a design: written as a file, read back, resolved and checked.
 fn checked(design: &Design) -> Cell {
-    let text = design::to_ron(design);
+    let text = design::to_ron(design).expect("design writes as RON");
     let read = design::parse(&text).unwrap_or_else(|e| panic!("{e}"));
     let seg = Segment::new(&read).unwrap_or_else(|e| panic!("{e}"));
     Cell::from_checks(f64::NAN, f64::NAN, &checks::run(&seg))
@@ -392,7 +392,8 @@ fn bowgrip(args: &[&str]) -> (Option<i32>, String, String) {
 
 fn write(dir: &TempDir, name: &str, design: &Design) -> PathBuf {
     let path = dir.path().join(name);
-    std::fs::write(&path, design::to_ron(design)).expect("write design");
+    std::fs::write(&path, design::to_ron(design).expect("design writes as RON"))
+        .expect("write design");
     path
 }
 
