@@ -21,8 +21,9 @@ use serde::{Deserialize, Serialize};
 use crate::design::Ends;
 use crate::elliptic;
 
-/// Phase of the strip at a stroke.
+/// Phase of the strip at a stroke. Serialised by its [`Phase::name`] (kebab-case).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Phase {
     /// No contact: the strip bows freely.
     Free,
@@ -46,8 +47,15 @@ impl Phase {
     }
 }
 
-/// Why the model stops along a path.
+impl std::fmt::Display for Phase {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.pad(self.name())
+    }
+}
+
+/// Why the model stops along a path. Serialised by its [`LimitReason::name`] (kebab-case).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum LimitReason {
     /// The flat run, a column under the axial force, reaches its buckling load and can lift
     /// off the wall (the strip may snap to a two-lobe shape).
@@ -87,6 +95,12 @@ impl LimitReason {
             LimitReason::AxialForceVanishes => "axial-force-vanishes",
             LimitReason::BranchLost => "branch-lost",
         }
+    }
+}
+
+impl std::fmt::Display for LimitReason {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.pad(self.name())
     }
 }
 

@@ -110,8 +110,8 @@ pub struct Segment {
 pub struct SegmentState {
     /// End-plate travel, mm.
     pub stroke_mm: f64,
-    /// `free`, `point-contact`, `line-contact` or `beyond-limit`.
-    pub phase: &'static str,
+    /// `free`, `point-contact`, `line-contact` or `beyond-limit` in files.
+    pub phase: Phase,
     /// Axial compression per strip, N.
     pub axial_force_per_strip_n: Option<f64>,
     /// Wall contact force per strip, N.
@@ -139,7 +139,7 @@ pub struct SegmentState {
     /// Where the model stops in this bore, mm.
     pub limit_stroke_mm: f64,
     /// Why the model stops there.
-    pub limit_reason: &'static str,
+    pub limit_reason: LimitReason,
     /// Crest height above the relaxed strip, mm.
     pub crest_height_mm: Option<f64>,
     /// Static factor of safety `0.75 Su / max_stress`.
@@ -659,7 +659,7 @@ impl BorePath<'_> {
         });
         SegmentState {
             stroke_mm,
-            phase: s.phase.name(),
+            phase: s.phase,
             axial_force_per_strip_n: some(axial),
             contact_force_per_strip_n: some(contact),
             actuator_force_n: some(n * axial),
@@ -673,7 +673,7 @@ impl BorePath<'_> {
             bore_mm: self.bore_mm,
             gap_mm: self.gap_mm,
             limit_stroke_mm: self.limit_stroke_mm(),
-            limit_reason: self.limit_reason().name(),
+            limit_reason: self.limit_reason(),
             crest_height_mm: some(s.crest_height * l_mm),
             static_safety_factor: some(seg.static_allowable_mpa / stress),
             fatigue_safety_factor: some(fatigue_fos),

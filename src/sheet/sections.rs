@@ -13,6 +13,7 @@ use super::{Section, SheetMeta, fit, fit_start};
 use crate::analysis::{Analysis, BoreCase, BoreResult};
 use crate::checks::{self, MarginUnit};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
+use crate::elastica::Phase;
 use crate::segment::SegmentState;
 
 /// Replaced by the page count once pagination knows it.
@@ -333,7 +334,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
                 ),
             ) + 2.0;
         } else if let Some(s) = state_of(r)
-            && s.phase == "beyond-limit"
+            && s.phase == Phase::BeyondLimit
         {
             let why = s.reason.clone().unwrap_or_default();
             y = b.paragraph(
@@ -687,7 +688,7 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
     };
     let st = |get: fn(&SegmentState) -> String| {
         move |r: &BoreResult| match &r.operating {
-            Ok(s) if s.phase != "beyond-limit" => get(s),
+            Ok(s) if s.phase != Phase::BeyondLimit => get(s),
             Ok(_) => "beyond limit".to_string(),
             Err(_) => "no state".to_string(),
         }

@@ -1,5 +1,6 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod app;
+mod calibration;
 mod cli;
 mod data_tables;
 mod design_file;
@@ -7,6 +8,8 @@ mod elastica_reference;
 mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
+mod map;
+mod recovery;
 mod scatter;
 mod segment_model;
 mod shared;

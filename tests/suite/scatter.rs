@@ -73,7 +73,7 @@ impl MarginModel for FreeAxialForce {
     fn evaluate(&self, x: &SampleInputs) -> Result<Vec<Outcome>, SegmentError> {
         let seg = self.centred.segment(x, x.strip(0))?;
         let state = seg.at_bore(seg.bore_nominal_mm)?.state(FREE_STROKE_MM);
-        assert_eq!(state.phase, "free");
+        assert_eq!(state.phase, bowgrip::elastica::Phase::Free);
         Ok(vec![Outcome {
             pass: true,
             margin: state.axial_force_per_strip_n,

@@ -6,6 +6,7 @@ use std::f64::consts::PI;
 use bowgrip::analysis;
 use bowgrip::checks;
 use bowgrip::design::{Actuator, Design, Ends, MaterialChoice, Stiffness};
+use bowgrip::elastica::Phase;
 use bowgrip::segment::{Segment, StiffnessUsed, fatigue_strength_mpa};
 use proptest::prelude::*;
 
@@ -208,7 +209,7 @@ fn holding_and_stress_strokes_are_where_their_quantities_reach_the_target() {
 /// A random valid design: plausible sizes, a gap from slightly positive to past the reach.
 fn design_strategy() -> impl Strategy<Value = Design> {
     (
-        2u32..=64,
+        3u32..=64, // design::limits(): 3 to 64 strips
         10.0f64..400.0,
         0.02f64..2.0,
         1.0f64..30.0,
@@ -258,7 +259,7 @@ proptest! {
         for i in 0..=40 {
             let stroke = rising_to * f64::from(i) / 40.0;
             let s = p.state(stroke);
-            prop_assert!(s.phase != "beyond-limit", "state at {} of limit {}: {:?}", stroke, limit, s.reason);
+            prop_assert!(s.phase != Phase::BeyondLimit, "state at {} of limit {}: {:?}", stroke, limit, s.reason);
             for v in [s.axial_force_per_strip_n, s.contact_force_per_strip_n, s.max_stress_mpa, s.outer_diameter_mm, s.flat_length_mm] {
                 let v = v.expect("state present");
                 prop_assert!(v.is_finite(), "{:?}", s);
