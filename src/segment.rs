@@ -11,7 +11,9 @@ use std::f64::consts::PI;
 use serde::Serialize;
 
 use crate::design::{Actuator, Design, DesignError, MaterialChoice, Stiffness};
-use crate::elastica::{self, LimitReason, Overlap, Path, PathError, Phase, StripState, StrokeQuery};
+use crate::elastica::{
+    self, LimitReason, Overlap, Path, PathError, Phase, StripState, StrokeQuery,
+};
 use crate::material::{self, Material};
 
 /// Why a segment or a state could not be formed.

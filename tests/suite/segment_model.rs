@@ -362,7 +362,10 @@ fn strips_leave_the_wall_near_the_highest_crest() {
             }
         }
     }
-    assert!(seen > 0, "no path between g/L 0.385 and 0.40 leaves the wall");
+    assert!(
+        seen > 0,
+        "no path between g/L 0.385 and 0.40 leaves the wall"
+    );
 }
 
 #[test]

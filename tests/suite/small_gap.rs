@@ -64,7 +64,10 @@ fn pin_ended_elastica_table() {
         assert_eq!(s.phase, Phase::Free);
         // The table's load ratio is printed to 3 decimals: half a unit either way moves
         // the solver's stroke, and so what it reads at that stroke, by this much.
-        let (lo, hi) = (path.state(stroke_at(load - 5e-4)), path.state(stroke_at(load + 5e-4)));
+        let (lo, hi) = (
+            path.state(stroke_at(load - 5e-4)),
+            path.state(stroke_at(load + 5e-4)),
+        );
         let spread = |f: fn(&bowgrip::elastica::StripState) -> f64| (f(&hi) - f(&lo)).abs();
         let alpha = |s: &bowgrip::elastica::StripState| 2.0 * s.k.asin().to_degrees();
         let chord_of = |s: &bowgrip::elastica::StripState| 1.0 - s.stroke;
