@@ -3,7 +3,6 @@
 //! arguments: their `k` derivatives come from `crate::elliptic` (DLMF 19.4), their `phi`
 //! derivatives from the integrands.
 
-use super::*;
 use crate::elliptic;
 
 #[derive(Clone, Copy, Debug)]

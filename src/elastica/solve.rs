@@ -190,7 +190,7 @@ pub(super) struct Carried {
 }
 
 impl Carried {
-    const NONE: Carried = Carried {
+    pub(super) const NONE: Carried = Carried {
         x: f64::NAN,
         v: f64::NAN,
         dv: f64::NAN,
