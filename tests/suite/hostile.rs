@@ -5,7 +5,7 @@
 
 use bowgrip::analysis;
 use bowgrip::design::{self, Actuator, Design, Ends};
-use bowgrip::elastica::{Path, Phase};
+use bowgrip::elastica::Path;
 use bowgrip::segment::Segment;
 use proptest::prelude::*;
 
