@@ -79,15 +79,7 @@ pub enum MaterialChoice {
     },
 }
 
-/// End fixity of the strips at the plates.
-#[derive(Default, Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-pub enum Ends {
-    /// Slope zero at both plates (the usual bolted strip).
-    #[default]
-    Clamped,
-    /// Moment-free ends.
-    Hinged,
-}
+pub use crate::elastica::Ends;
 
 /// Bending modulus choice: `Beam` uses `E`, `Plate` uses `E / (1 - nu^2)`, `Auto` picks
 /// `Plate` when the width is at least ten thicknesses.
