@@ -9,6 +9,7 @@ mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
 mod map;
+mod readme;
 mod recovery;
 mod scatter;
 mod segment_model;
