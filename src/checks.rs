@@ -87,7 +87,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                 pass: fc <= max_stroke,
                 margin: Some(max_stroke - fc),
                 unit: MarginUnit::Mm,
-                reason: match p.stress_limit_stroke_mm().filter(|&s| s < fc) {
+                reason: match p.stress_limit_stroke_mm().ok().filter(|&s| s < fc) {
                     Some(s) => format!(
                         "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall"
                     ),

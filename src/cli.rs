@@ -5,8 +5,8 @@
 //! message to stderr as one line. Exit status: 0 success, 1 when `check` finds a failing
 //! check, 2 for bad input of any kind (a missing or malformed design file, a value out of
 //! range, a bore the relaxed segment does not fit for `point`/`sweep`, a bad number on the
-//! command line) and for anything else that stops a run. A closed stdout (`| head`) ends the
-//! run quietly with status 0.
+//! command line) and for anything else that stops a run, a failed write to stdout
+//! included: a closed stdout (`| head -0`) is an error with status 2, named as stdout.
 
 use std::fmt::Write as _;
 use std::fs;
@@ -18,7 +18,7 @@ use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::checks::{self, Check};
-use crate::design::{self, Design};
+use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sheet::{self, Paper};
 
@@ -72,6 +72,11 @@ pub enum Command {
     Check(CheckArgs),
     /// Write the printable sizing sheet (PDF).
     Sheet(SheetArgs),
+    /// Bench measurements against the model: residuals, and with --fit the fitted
+    /// correction factors with their standard errors.
+    Compare(crate::compare::CompareArgs),
+    /// The design map: two inputs over a grid, each design's limiting check and margin.
+    Map(crate::map::command::MapArgs),
 }
 
 /// Arguments of `point`.
@@ -187,36 +192,50 @@ impl From<Status> for ExitCode {
 // ---------------------------------------------------------------------------------------
 // Number parsers: say what was wrong and the allowed range.
 
+/// A finite number; NaN and infinities are refused as not numbers at all.
 fn number(text: &str) -> Result<f64, String> {
-    text.trim()
-        .parse::<f64>()
-        .map_err(|_| format!("{text:?} is not a number"))
+    match text.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        Ok(_) => Err(format!("{text:?} is not a finite number")),
+        Err(_) => Err(format!("{text:?} is not a number")),
+    }
 }
 
 fn stroke_mm(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
-    if v.is_finite() && v >= 0.0 {
+    let v = number(text).map_err(|e| format!("{e}; the allowed range is a stroke >= 0 mm"))?;
+    if v >= 0.0 {
         Ok(v)
     } else {
         Err(format!(
-            "{v} is outside the allowed range: a finite stroke >= 0 mm"
+            "{} is outside the allowed range: a stroke >= 0 mm",
+            show_number(v)
         ))
     }
 }
 
 fn bore_mm(text: &str) -> Result<f64, String> {
-    let v = number(text)?;
+    let v = number(text).map_err(|e| {
+        format!(
+            "{e}; the allowed range is a bore diameter > 0 and <= {} mm",
+            show_number(MAX_BORE_MM)
+        )
+    })?;
     if v > 0.0 && v <= MAX_BORE_MM {
         Ok(v)
     } else {
         Err(format!(
-            "{v} is outside the allowed range: a bore diameter > 0 and <= {MAX_BORE_MM} mm"
+            "{} is outside the allowed range: a bore diameter > 0 and <= {} mm",
+            show_number(v),
+            show_number(MAX_BORE_MM)
         ))
     }
 }
 
 fn points(text: &str) -> Result<usize, String> {
-    let allowed = format!("a whole number from 2 to {MAX_POINTS}");
+    let allowed = format!(
+        "a whole number from 2 to {}",
+        show_number(MAX_POINTS as f64)
+    );
     match text.trim().parse::<usize>() {
         Ok(n) if (2..=MAX_POINTS).contains(&n) => Ok(n),
         Ok(n) => Err(format!("{n} is outside the allowed range: {allowed}")),
@@ -253,7 +272,51 @@ pub fn install_panic_hook() {
 /// Parses the process arguments. On help or version it prints them and gives status 0; on
 /// a bad command line it prints one line and gives status 2.
 pub fn parse_args() -> Result<Cli, ExitCode> {
-    Cli::try_parse().map_err(|e| usage_error(&e))
+    Cli::try_parse_from(joined_numbers(std::env::args_os())).map_err(|e| usage_error(&e))
+}
+
+/// Options that take a number, whose value may start with `-`.
+const NUMBER_OPTIONS: [&str; 5] = [
+    "--stroke-mm",
+    "--bore-mm",
+    "--from-mm",
+    "--to-mm",
+    "--points",
+];
+
+/// `--stroke-mm -inf` as `--stroke-mm=-inf`: a value after a number option is that
+/// option's value even when it looks like a flag (`-inf`, `-nan`), so that it is refused
+/// as a number, with the allowed range, rather than as an unknown flag.
+fn joined_numbers(args: impl IntoIterator<Item = std::ffi::OsString>) -> Vec<std::ffi::OsString> {
+    let mut out: Vec<std::ffi::OsString> = Vec::new();
+    let mut args = args.into_iter();
+    while let Some(arg) = args.next() {
+        let is_number_option = arg.to_str().is_some_and(|a| NUMBER_OPTIONS.contains(&a));
+        if is_number_option && let Some(value) = args.next() {
+            let mut joined = arg;
+            joined.push("=");
+            joined.push(value);
+            out.push(joined);
+        } else {
+            out.push(arg);
+        }
+    }
+    out
+}
+
+/// `text` with control characters (escape sequences, bells, carriage returns) shown as
+/// escapes instead of being sent raw to the terminal.
+pub fn printable(text: &str) -> String {
+    text.chars()
+        .flat_map(|c| {
+            let escaped: Vec<char> = if c.is_control() && c != ' ' {
+                c.escape_default().collect()
+            } else {
+                vec![c]
+            };
+            escaped
+        })
+        .collect()
 }
 
 /// Prints a clap error (or help text) the way this program reports: help and version in
@@ -288,22 +351,48 @@ pub fn usage_error(e: &clap::Error) -> ExitCode {
     }
 }
 
-/// Reports an error from [`run`] once: nothing for a closed stdout (status 0), else one line
-/// on stderr and status 2.
+/// Reports an error from [`run`] once: one line on stderr (control characters escaped)
+/// and status 2. A closed stdout is such an error too: the output did not arrive.
 pub fn report(e: &anyhow::Error) -> ExitCode {
-    if is_broken_pipe(e) {
-        return ExitCode::SUCCESS;
-    }
-    let _ = writeln!(io::stderr(), "bowgrip: {}", one_line(&format!("{e:#}")));
+    let _ = writeln!(
+        io::stderr(),
+        "bowgrip: {}",
+        printable(&one_line(&format!("{e:#}")))
+    );
     ExitCode::from(2)
 }
 
-fn is_broken_pipe(e: &anyhow::Error) -> bool {
-    e.chain().any(|cause| {
-        cause
-            .downcast_ref::<io::Error>()
-            .is_some_and(|io| io.kind() == io::ErrorKind::BrokenPipe)
-    })
+/// A failed write of the results, named as a write to stdout.
+#[derive(Debug, thiserror::Error)]
+#[error("cannot write the results to stdout: {}", describe_stdout_error(.0))]
+pub struct StdoutError(#[source] pub io::Error);
+
+fn describe_stdout_error(e: &io::Error) -> String {
+    if e.kind() == io::ErrorKind::BrokenPipe {
+        "it was closed before the output ended (the output is incomplete)".to_string()
+    } else {
+        e.to_string()
+    }
+}
+
+/// Writes through to stdout, turning every failure into a [`StdoutError`].
+struct Stdout<W: Write>(W);
+
+impl<W: Write> Write for Stdout<W> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.0.write(buf).map_err(stdout_error)
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        self.0.flush().map_err(stdout_error)
+    }
+}
+
+fn stdout_error(e: io::Error) -> io::Error {
+    let kind = e.kind();
+    if e.get_ref().is_some_and(|inner| inner.is::<StdoutError>()) {
+        return e;
+    }
+    io::Error::new(kind, StdoutError(e))
 }
 
 /// Collapses a message onto one line.
@@ -318,13 +407,15 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         return Ok(Status::Done);
     };
     let stdout = io::stdout();
-    let mut out = BufWriter::new(stdout.lock());
+    let mut out = BufWriter::new(Stdout(stdout.lock()));
     let status = match command {
         Command::Point(a) => point(&a, &mut out)?,
         Command::Sweep(a) => sweep(&a, &mut out)?,
         Command::Bores(a) => bores(&a, &mut out)?,
         Command::Check(a) => check(&a, &mut out)?,
         Command::Sheet(a) => write_sheet(&a)?,
+        Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
+        Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
     };
     out.flush()?;
     Ok(status)
@@ -351,8 +442,35 @@ fn bore_path<'a>(
     bore_mm: Option<f64>,
 ) -> anyhow::Result<BorePath<'a>> {
     let bore = bore_mm.unwrap_or(seg.bore_nominal_mm);
-    seg.at_bore(bore)
-        .map_err(|e| anyhow!("{}: {e}", file.display()))
+    seg.at_bore(bore).map_err(|e| {
+        anyhow!(
+            "{}: {}",
+            file.display(),
+            no_fit_message(&e, seg.design.strip.width_mm, bore)
+        )
+    })
+}
+
+/// Why the segment has no state at `bore_mm`, in words, with magnitudes printed sanely
+/// (a bore of 1e-300 mm is not printed as 300 digits).
+fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64) -> String {
+    use crate::segment::SegmentError;
+    if width_mm >= bore_mm {
+        // The flat strip's edges are already outside the bore: there is no gap at all.
+        return format!(
+            "the segment does not fit a {} mm bore: its strips are {} mm wide, as wide as the bore or wider, so their edges meet the wall before they can bow",
+            show_number(bore_mm),
+            show_number(width_mm)
+        );
+    }
+    match e {
+        SegmentError::NoClearance { bore_mm, gap_mm } => format!(
+            "the relaxed strips do not fit a {} mm bore: the gap to the wall is {} mm (it must be more than 0)",
+            show_number(*bore_mm),
+            show_number(*gap_mm)
+        ),
+        other => other.to_string(),
+    }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -644,7 +762,7 @@ fn check_table(
 ) -> String {
     let mut t = String::new();
     if !design.title.is_empty() {
-        let _ = writeln!(t, "{}", design.title);
+        let _ = writeln!(t, "{}", printable(&design.title));
     }
     let _ = writeln!(
         t,
@@ -686,19 +804,9 @@ fn check_table(
 
 fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
     // Parse the very bytes that are hashed on the sheet.
-    let unreadable = |source| {
-        anyhow!(
-            design::DesignError::Io {
-                path: a.file.clone(),
-                source
-            }
-            .to_string()
-        )
-    };
-    let bytes = fs::read(&a.file).map_err(unreadable)?;
-    let text = std::str::from_utf8(&bytes)
-        .map_err(|e| unreadable(io::Error::new(io::ErrorKind::InvalidData, e)))?;
-    let design = design::parse(text).map_err(|e| anyhow!(e.in_file(&a.file)))?;
+    let bytes = design::read_bytes(&a.file).map_err(|e| anyhow!(e.in_file(&a.file)))?;
+    let text = design::decode(bytes.clone()).map_err(|e| anyhow!(e.in_file(&a.file)))?;
+    let design = design::parse(&text).map_err(|e| anyhow!(e.in_file(&a.file)))?;
     if same_file(&a.file, &a.output) {
         bail!(
             "{}: the sheet would overwrite the design file itself; choose another -o path",
@@ -708,8 +816,7 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
     let label = a.file.display().to_string();
     let pdf = sheet::render(&design, &label, &bytes, a.paper.into())
         .with_context(|| format!("cannot make the sheet for {label}"))?;
-    write_atomic(&a.output, &pdf)
-        .with_context(|| format!("cannot write {}", a.output.display()))?;
+    crate::atomic::write(&a.output, &pdf)?;
     let _ = writeln!(io::stderr(), "sheet written to {}", a.output.display());
     Ok(Status::Done)
 }
@@ -719,35 +826,6 @@ fn same_file(a: &Path, b: &Path) -> bool {
         (Ok(a), Ok(b)) => a == b,
         _ => false,
     }
-}
-
-/// Writes `bytes` to `path` through a temporary file in the same directory and a rename,
-/// so a reader never sees half a file and a failed write leaves the old one in place.
-fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let name = path
-        .file_name()
-        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "the path names no file"))?
-        .to_string_lossy()
-        .into_owned();
-    let dir = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let temp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
-    let written = (|| {
-        let mut f = fs::OpenOptions::new()
-            .write(true)
-            .create_new(true)
-            .open(&temp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        drop(f);
-        fs::rename(&temp, path)
-    })();
-    if written.is_err() {
-        let _ = fs::remove_file(&temp);
-    }
-    written
 }
 
 #[cfg(test)]
@@ -764,10 +842,12 @@ mod tests {
 
     #[test]
     fn number_parsers_state_the_range() {
-        assert!(stroke_mm("NaN").is_err_and(|e| e.contains(">= 0 mm")));
-        assert!(stroke_mm("-1").is_err());
+        assert!(stroke_mm("NaN").is_err_and(|e| e.contains("not a finite number")));
+        assert!(stroke_mm("-inf").is_err_and(|e| e.contains("not a finite number")));
+        assert!(stroke_mm("-1").is_err_and(|e| e.contains("a stroke >= 0 mm")));
         assert_eq!(stroke_mm("2.5"), Ok(2.5));
-        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 and <= 1000000 mm")));
+        assert!(bore_mm("0").is_err_and(|e| e.contains("> 0 and <= 1e6 mm")));
+        assert!(bore_mm("1e7").is_err_and(|e| e.starts_with("1e7 is outside")));
         assert!(bore_mm("1e300").is_err());
         assert!(bore_mm("NaN").is_err());
         assert!(points("1").is_err_and(|e| e.contains("from 2 to")));
@@ -778,5 +858,44 @@ mod tests {
     #[test]
     fn messages_fold_onto_one_line() {
         assert_eq!(one_line("a\n  b\tc "), "a b c");
+    }
+
+    #[test]
+    fn a_bore_the_segment_does_not_fit_is_said_plainly() {
+        use crate::segment::SegmentError;
+        // Issue 11, item 11: `--bore-mm 1e-300` printed a 300-digit number.
+        let e = SegmentError::NoClearance {
+            bore_mm: 1e-300,
+            gap_mm: -27.0,
+        };
+        let text = no_fit_message(&e, 0.1, 1e-300);
+        assert!(text.contains("a 1e-300 mm bore"), "{text}");
+        assert!(text.len() < 200, "{text}");
+        // A strip wider than the bore: says the segment does not fit, and why.
+        let text = no_fit_message(&e, 80.0, 70.0);
+        assert!(
+            text.starts_with("the segment does not fit a 70 mm bore: its strips are 80 mm wide"),
+            "{text}"
+        );
+    }
+
+    #[test]
+    fn control_characters_are_escaped() {
+        assert_eq!(printable("a\u{1b}[31mb\u{7}"), "a\\u{1b}[31mb\\u{7}");
+        assert_eq!(printable("plain text"), "plain text");
+    }
+
+    #[test]
+    fn number_options_take_values_that_look_like_flags() {
+        let args = ["bowgrip", "point", "f.ron", "--stroke-mm", "-inf", "--json"]
+            .map(std::ffi::OsString::from);
+        let joined: Vec<String> = joined_numbers(args)
+            .into_iter()
+            .map(|a| a.to_string_lossy().into_owned())
+            .collect();
+        assert_eq!(
+            joined,
+            ["bowgrip", "point", "f.ron", "--stroke-mm=-inf", "--json"]
+        );
     }
 }

@@ -7,15 +7,21 @@
 
 pub mod analysis;
 pub mod app;
+pub mod atomic;
+pub mod bench_data;
 pub mod bend;
+pub mod calibrate;
 pub mod checks;
 pub mod cli;
+pub mod compare;
 pub mod design;
 pub mod elastica;
 pub mod elliptic;
 pub mod friction;
+pub mod map;
 pub mod material;
 pub mod pipe;
+pub mod scatter;
 pub mod segment;
 pub mod sharing;
 pub mod sheet;

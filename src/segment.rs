@@ -10,8 +10,10 @@ use std::f64::consts::PI;
 
 use serde::Serialize;
 
-use crate::design::{Actuator, Design, DesignError, Ends, MaterialChoice, Stiffness};
-use crate::elastica::{self, LimitReason, Overlap, Path, PathError, Phase, StripState};
+use crate::design::{Actuator, Design, DesignError, MaterialChoice, Stiffness};
+use crate::elastica::{
+    self, LimitReason, Overlap, Path, PathError, Phase, StripState, StrokeQuery,
+};
 use crate::material::{self, Material};
 
 /// Why a segment or a state could not be formed.
@@ -110,8 +112,8 @@ pub struct Segment {
 pub struct SegmentState {
     /// End-plate travel, mm.
     pub stroke_mm: f64,
-    /// `free`, `point-contact`, `line-contact` or `beyond-limit`.
-    pub phase: &'static str,
+    /// `free`, `point-contact`, `line-contact`, `beyond-limit` or `solve-failed` in files.
+    pub phase: Phase,
     /// Axial compression per strip, N.
     pub axial_force_per_strip_n: Option<f64>,
     /// Wall contact force per strip, N.
@@ -139,7 +141,7 @@ pub struct SegmentState {
     /// Where the model stops in this bore, mm.
     pub limit_stroke_mm: f64,
     /// Why the model stops there.
-    pub limit_reason: &'static str,
+    pub limit_reason: LimitReason,
     /// Crest height above the relaxed strip, mm.
     pub crest_height_mm: Option<f64>,
     /// Static factor of safety `0.75 Su / max_stress`.
@@ -150,7 +152,7 @@ pub struct SegmentState {
     pub strain_energy_j: Option<f64>,
     /// Actuator position and effort in its own units.
     pub actuator: Option<ActuatorReading>,
-    /// Why the state is missing, when `phase` is `beyond-limit`.
+    /// Why the state is missing, when `phase` is `beyond-limit` or `solve-failed`.
     pub reason: Option<String>,
 }
 
@@ -588,14 +590,16 @@ impl BorePath<'_> {
         self.path.peaks().contact.map(|d| d * self.l_mm())
     }
 
-    /// Least stroke reaching the required holding force x safety factor, mm.
-    pub fn holding_stroke_mm(&self) -> Option<f64> {
+    /// Least stroke reaching the required holding force x safety factor, mm (or why there
+    /// is none: not reached before the limit, or a failure of the solver).
+    pub fn holding_stroke_mm(&self) -> StrokeQuery {
         let f_nd = self.segment.required_contact_per_strip_n() / self.segment.force_unit_n();
         self.path.stroke_for_contact(f_nd).map(|d| d * self.l_mm())
     }
 
-    /// Least stroke at which the static or fatigue factor of safety falls to 1, mm.
-    pub fn stress_limit_stroke_mm(&self) -> Option<f64> {
+    /// Least stroke at which the static or fatigue factor of safety falls to 1, mm (or why
+    /// there is none).
+    pub fn stress_limit_stroke_mm(&self) -> StrokeQuery {
         let (wk, wp) = self.stress_weights_mpa();
         self.path
             .stroke_for_linear(wk, wp, self.segment.stress_allowable_mpa())
@@ -619,8 +623,8 @@ impl BorePath<'_> {
         BoreRow {
             bore_mm: self.bore_mm,
             first_contact_stroke_mm: self.first_contact_stroke_mm(),
-            holding_stroke_mm: self.holding_stroke_mm(),
-            stress_limit_stroke_mm: self.stress_limit_stroke_mm(),
+            holding_stroke_mm: self.holding_stroke_mm().ok(),
+            stress_limit_stroke_mm: self.stress_limit_stroke_mm().ok(),
             line_contact_stroke_mm: self.line_contact_stroke_mm(),
             limit_stroke_mm: Some(self.limit_stroke_mm()),
         }
@@ -638,7 +642,7 @@ impl BorePath<'_> {
         let l_mm = self.l_mm();
         let unit_n = seg.force_unit_n();
         let n = seg.count();
-        let ok = s.phase != Phase::BeyondLimit;
+        let ok = s.phase.has_state();
         let some = |v: f64| ok.then_some(v);
         let axial = s.axial * unit_n;
         let contact = s.contact * unit_n;
@@ -649,6 +653,12 @@ impl BorePath<'_> {
         let reason = (!ok).then(|| {
             if stroke_mm < 0.0 || !stroke_mm.is_finite() {
                 "stroke must be a finite number >= 0".to_string()
+            } else if s.phase == Phase::SolveFailed {
+                format!(
+                    "the solver failed to find the {} state at {stroke_mm:.3} mm (short of the model's limit at {:.3} mm): no state is reported",
+                    self.path.phase_at(s.stroke).name().replace('-', " "),
+                    self.limit_stroke_mm(),
+                )
             } else {
                 format!(
                     "beyond the model's limit at {:.3} mm: {}",
@@ -659,7 +669,7 @@ impl BorePath<'_> {
         });
         SegmentState {
             stroke_mm,
-            phase: s.phase.name(),
+            phase: s.phase,
             axial_force_per_strip_n: some(axial),
             contact_force_per_strip_n: some(contact),
             actuator_force_n: some(n * axial),
@@ -673,7 +683,7 @@ impl BorePath<'_> {
             bore_mm: self.bore_mm,
             gap_mm: self.gap_mm,
             limit_stroke_mm: self.limit_stroke_mm(),
-            limit_reason: self.limit_reason().name(),
+            limit_reason: self.limit_reason(),
             crest_height_mm: some(s.crest_height * l_mm),
             static_safety_factor: some(seg.static_allowable_mpa / stress),
             fatigue_safety_factor: some(fatigue_fos),
@@ -712,15 +722,5 @@ impl BorePath<'_> {
             .into_iter()
             .map(|[x, y]| [x * l, r_m + y * l])
             .collect()
-    }
-}
-
-impl Ends {
-    /// Name for tables and the sheet.
-    pub fn name(self) -> &'static str {
-        match self {
-            Ends::Clamped => "clamped",
-            Ends::Hinged => "hinged",
-        }
     }
 }

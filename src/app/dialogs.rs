@@ -222,6 +222,7 @@ pub fn windows(app: &mut GripApp, ctx: &Context) {
     file_window(app, ctx);
     guard_window(app, ctx);
     recovery_window(app, ctx);
+    rewrite_window(app, ctx);
     fit_window(app, ctx);
     export_window(app, ctx);
     print_window(app, ctx);
@@ -338,19 +339,23 @@ fn guard_window(app: &mut GripApp, ctx: &Context) {
 }
 
 fn recovery_window(app: &mut GripApp, ctx: &Context) {
-    let Some((rec, design)) = &app.recovery_offer else {
+    let Some(orphan) = &app.recovery_offer else {
         return;
     };
-    let from = rec.source.as_ref().map_or_else(
+    let from = orphan.record.source.as_ref().map_or_else(
         || "an untitled design".to_string(),
         |p| p.display().to_string(),
     );
-    let title = design.title.clone();
-    let mut later = false;
+    let title: String = orphan
+        .design
+        .title
+        .chars()
+        .map(|c| if c.is_control() { ' ' } else { c })
+        .collect();
     egui::Modal::new(egui::Id::unique("recovery")).show(ctx, |ui| {
         ui.heading("Recover unsaved work?");
         ui.label(format!(
-            "The last session ended with unsaved changes to {from} (\"{title}\"). A copy was kept."
+            "A session that has ended left unsaved changes to {from} (\"{title}\"). A copy was kept. Restored, the work goes back to that file when you save it."
         ));
         ui.horizontal(|ui| {
             if ui.button("Restore it").clicked() {
@@ -361,16 +366,37 @@ fn recovery_window(app: &mut GripApp, ctx: &Context) {
             }
             if ui
                 .button("Decide later")
-                .on_hover_text("Keep the copy on disk and carry on.")
+                .on_hover_text("Keep the copy on disk and carry on; it is offered again at the next start.")
                 .clicked()
             {
-                later = true;
+                app.push(Command::RecoveryLater);
             }
         });
     });
-    if later {
-        app.recovery_offer = None;
-    }
+}
+
+/// Asks before a save that writes the whole design over a file whose comments or layout
+/// would go (the changed values could not be edited in place).
+fn rewrite_window(app: &mut GripApp, ctx: &Context) {
+    let Some((path, why, then)) = &app.rewrite_prompt else {
+        return;
+    };
+    let (path, why, then) = (path.clone(), why.clone(), then.clone());
+    egui::Modal::new(egui::Id::unique("rewrite-prompt")).show(ctx, |ui| {
+        ui.heading("Rewrite the whole file?");
+        ui.label(format!(
+            "The changes cannot be written into {} value by value: {why}. Saving writes the whole design, and the file's comments and layout go.",
+            path.display()
+        ));
+        ui.horizontal(|ui| {
+            if ui.button("Save, rewriting the file").clicked() {
+                app.push(Command::SaveRewriting(path.clone(), then.clone()));
+            }
+            if ui.button("Cancel").clicked() {
+                app.rewrite_prompt = None;
+            }
+        });
+    });
 }
 
 fn fit_window(app: &mut GripApp, ctx: &Context) {
@@ -489,7 +515,7 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
             for (label, ending, make) in &jobs {
                 if ui.button(*label).clicked() || all {
                     let path = format!("{base}{ending}");
-                    report.push(match std::fs::write(&path, make()) {
+                    report.push(match crate::atomic::write(Path::new(&path), make().as_bytes()) {
                         Ok(()) => (format!("Wrote {path}."), false),
                         Err(e) => (format!("Could not write {path}: {e}"), true),
                     });
@@ -540,7 +566,9 @@ fn request_pngs(
         for (path, rect) in targets {
             let written = crop_png(&image, rect, ppp)
                 .ok_or_else(|| "the plot is not on screen".to_string())
-                .and_then(|png| std::fs::write(&path, png).map_err(|e| e.to_string()));
+                .and_then(|png| {
+                    crate::atomic::write(Path::new(&path), &png).map_err(|e| e.to_string())
+                });
             match written {
                 Ok(()) => lines.push(format!("Wrote {path}.")),
                 Err(e) => {
@@ -605,11 +633,19 @@ fn print_sheet(app: &mut GripApp) {
     let path = PathBuf::from(app.dialogs.print_path.trim());
     let label = app.doc.file_label();
     // The bytes the sheet hashes: the saved file when it is up to date, else the design as it would be saved.
-    let bytes = match (&app.doc.path, app.doc.dirty) {
-        (Some(p), false) => {
-            std::fs::read(p).unwrap_or_else(|_| design::to_ron(&app.doc.design).into_bytes())
+    let saved = match (&app.doc.path, app.doc.dirty) {
+        (Some(p), false) => design::read_bytes(p).ok(),
+        _ => None,
+    };
+    let bytes = match saved.map_or_else(
+        || design::to_ron(&app.doc.design).map(String::into_bytes),
+        Ok,
+    ) {
+        Ok(bytes) => bytes,
+        Err(e) => {
+            app.fail(format!("The sizing sheet could not be made: {e}"));
+            return;
         }
-        _ => design::to_ron(&app.doc.design).into_bytes(),
     };
     let paper = match app.session.paper {
         PaperChoice::A4 => Paper::A4,
@@ -617,7 +653,7 @@ fn print_sheet(app: &mut GripApp) {
     };
     match sheet::render(&app.doc.design, &label, &bytes, paper) {
         Err(e) => app.fail(format!("The sizing sheet could not be made: {e}")),
-        Ok(pdf) => match std::fs::write(&path, pdf) {
+        Ok(pdf) => match crate::atomic::write(&path, &pdf) {
             Err(e) => app.fail(format!(
                 "Could not write the sheet to {}: {e}",
                 path.display()

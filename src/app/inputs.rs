@@ -167,30 +167,11 @@ pub fn fmt_value(v: f64) -> String {
 /// Width of the label column of the numeric rows, points.
 const LABEL_WIDTH: f32 = 118.0;
 
-/// A range bound: plainly, or as a power of ten once it is large.
-fn fmt_bound(v: f64) -> String {
-    if v.abs() >= 1e6 {
-        format!("{v:e}")
-    } else {
-        fmt_value(v)
-    }
-}
-
 /// The plausible range of a field for this design, in words that say which ends are
-/// allowed: "0.02 to 5 mm", "more than 0 and less than 1e9 N".
+/// allowed ("0.02 to 5 mm", "from 1e-6, less than 1e9 N"): the same text as every error
+/// message ([`design::FieldLimit::range_text`]).
 fn allowed(l: &design::FieldLimit, d: &Design) -> String {
-    let (lo, hi) = (fmt_bound(l.min), fmt_bound(l.max_for(d)));
-    let range = match (l.min_excluded, l.max_excluded) {
-        (false, false) => format!("{lo} to {hi}"),
-        (true, false) => format!("more than {lo}, up to {hi}"),
-        (false, true) => format!("from {lo}, less than {hi}"),
-        (true, true) => format!("more than {lo} and less than {hi}"),
-    };
-    if l.unit.is_empty() {
-        range
-    } else {
-        format!("{range} {}", l.unit)
-    }
+    l.range_text(l.max_for(d))
 }
 
 impl InputsPanel {
@@ -1011,12 +992,9 @@ mod tests {
         assert_eq!(allowed(limit("strip.thickness_mm"), &d), "0.02 to 5 mm");
         assert_eq!(
             allowed(limit("actuator.max_force_n"), &d),
-            "more than 0 and less than 1e9 N"
+            "from 1e-6, less than 1e9 N"
         );
-        assert_eq!(
-            allowed(limit("actuator.efficiency"), &d),
-            "more than 0, up to 1"
-        );
+        assert_eq!(allowed(limit("actuator.efficiency"), &d), "0.01 to 1");
         // The bore tolerance's upper end follows the design: a quarter of the nominal bore.
         let nominal = d.bore.nominal_mm().unwrap_or(f64::NAN);
         assert_eq!(

@@ -20,7 +20,7 @@ use std::path::{Path, PathBuf};
 use crate::analysis::{self, Analysis};
 use crate::design::{self, Design};
 
-pub use state::{Recovery, Session, ThemeChoice};
+pub use state::{Orphan, Recovery, Session, Slot, ThemeChoice};
 
 /// Seconds between recovery writes while the design has unsaved changes.
 pub const AUTOSAVE_SECONDS: f64 = 3.0;
@@ -63,6 +63,11 @@ pub enum Command {
     Restore,
     /// Drop the recovery copy offered at start.
     DropRecovery,
+    /// Answer the recovery offer later: the copy stays on disk for the next start.
+    RecoveryLater,
+    /// Save to this path writing the whole design (the file's comments and layout go),
+    /// after the user agreed to that; then carry out the held-back action, if any.
+    SaveRewriting(PathBuf, Option<Pending>),
 }
 
 /// An action held back by the unsaved-changes prompt.
@@ -86,7 +91,11 @@ pub struct Status {
 #[derive(Clone, Debug)]
 struct Document {
     design: Design,
+    /// The file, absolute and resolved.
     path: Option<PathBuf>,
+    /// The file's text as last opened or saved: a save edits its values in place, so the
+    /// file's comments and layout stay.
+    text: Option<String>,
     dirty: bool,
     /// The design as last opened or saved; `None` when it is not on disk (restored work).
     saved: Option<Design>,
@@ -97,11 +106,12 @@ struct Document {
 }
 
 impl Document {
-    fn new(design: Design, path: Option<PathBuf>) -> Document {
+    fn new(design: Design, path: Option<PathBuf>, text: Option<String>) -> Document {
         Document {
             saved: Some(design.clone()),
             design,
             path,
+            text,
             dirty: false,
             undo: Vec::new(),
             redo: Vec::new(),
@@ -143,8 +153,13 @@ pub struct GripApp {
     session: Session,
     status: Option<Status>,
     commands: Vec<Command>,
-    /// Recovery copy found at start, waiting for an answer.
-    recovery_offer: Option<(Recovery, Design)>,
+    /// This instance's recovery copy (none when the state folder cannot hold one).
+    slot: Option<Slot>,
+    /// A copy left by an instance that is gone, waiting for an answer (held locked).
+    recovery_offer: Option<Orphan>,
+    /// A save that would rewrite the whole file, waiting for the user's yes: the path,
+    /// why the values cannot be edited in place, and the action held back behind it.
+    rewrite_prompt: Option<(PathBuf, String, Option<Pending>)>,
     /// Unsaved-changes prompt.
     guard: Option<Pending>,
     quit_confirmed: bool,
@@ -168,20 +183,29 @@ impl GripApp {
     /// offered, not applied.
     pub fn new(state_dir: PathBuf, file: Option<PathBuf>) -> GripApp {
         let session = Session::load(&state_dir);
-        let (recovery_offer, unreadable) = match Recovery::find(&state_dir) {
-            Some(Ok(found)) => (Some(found), None),
-            Some(Err(why)) => (None, Some(why)),
-            None => (None, None),
-        };
+        // Our own slot first, so no other instance takes our copy for a dead one's.
+        let slot = Slot::claim(&state_dir);
+        let mut unreadable = Vec::new();
+        let mut recovery_offer = None;
+        for found in state::orphans(&state_dir) {
+            match found {
+                // One at a time; the others stay on disk (unlocked) for the next start.
+                Ok(orphan) if recovery_offer.is_none() => recovery_offer = Some(orphan),
+                Ok(other) => other.release(),
+                Err(why) => unreadable.push(why),
+            }
+        }
         let mut app = GripApp {
-            doc: Document::new(Design::default(), None),
+            doc: Document::new(Design::default(), None, None),
             analysis: None,
             analysis_error: None,
             state_dir,
             session,
             status: None,
             commands: Vec::new(),
+            slot: None,
             recovery_offer,
+            rewrite_prompt: None,
             guard: None,
             quit_confirmed: false,
             system_dialogs: false,
@@ -197,9 +221,17 @@ impl GripApp {
         if let Some(path) = start {
             app.open_now(&path);
         }
-        if let Some(why) = unreadable {
+        match slot {
+            Ok(slot) => app.slot = Some(slot),
+            Err(e) => app.fail(format!(
+                "No recovery copy can be kept in {}: {e}",
+                app.state_dir.display()
+            )),
+        }
+        if !unreadable.is_empty() {
             app.fail(format!(
-                "A recovery copy was found but cannot be used (it stays on disk): {why}"
+                "A recovery copy was found but cannot be used (it stays on disk): {}",
+                unreadable.join("; ")
             ));
         }
         app.reanalyse();
@@ -256,6 +288,23 @@ impl GripApp {
     /// Whether a recovery copy is being offered.
     pub fn is_offering_recovery(&self) -> bool {
         self.recovery_offer.is_some()
+    }
+
+    /// The file the offered recovery copy belongs to, if it had one.
+    pub fn recovery_source(&self) -> Option<&Path> {
+        self.recovery_offer
+            .as_ref()
+            .and_then(|o| o.record.source.as_deref())
+    }
+
+    /// Whether the app is asking before a save that rewrites the whole file.
+    pub fn is_asking_to_rewrite(&self) -> bool {
+        self.rewrite_prompt.is_some()
+    }
+
+    /// This instance's recovery copy file, if it keeps one.
+    pub fn recovery_path(&self) -> Option<&Path> {
+        self.slot.as_ref().map(Slot::path)
     }
 
     /// The session as it stands.
@@ -407,7 +456,7 @@ impl GripApp {
             }
             Command::Save => match self.doc.path.clone() {
                 Some(path) => {
-                    self.save_now(&path);
+                    self.save_now(&path, None);
                     false
                 }
                 None => {
@@ -416,32 +465,40 @@ impl GripApp {
                 }
             },
             Command::SaveAs(path) => {
-                self.save_now(&path);
+                self.save_now(&path, None);
                 false
             }
             Command::SaveThen(path, pending) => {
                 self.guard = None;
-                self.save_now(&path);
+                self.save_now(&path, Some(pending.clone()));
                 !self.doc.dirty && self.carry_out(pending)
             }
-            Command::Restore => match self.recovery_offer.take() {
-                Some((rec, design)) => {
-                    self.doc = Document::new(design, rec.source.clone());
-                    self.doc.saved = None;
-                    self.doc.dirty = true;
-                    self.say(format!(
-                        "Restored unsaved work{}; save it to keep it.",
-                        rec.source
-                            .map(|p| format!(" on {}", p.display()))
-                            .unwrap_or_default()
-                    ));
-                    true
+            Command::SaveRewriting(path, pending) => {
+                self.rewrite_prompt = None;
+                self.write_design(&path, None);
+                match pending {
+                    Some(p) if !self.doc.dirty => self.carry_out(p),
+                    _ => false,
                 }
+            }
+            Command::Restore => match self.recovery_offer.take() {
+                Some(orphan) => self.restore(orphan),
                 None => false,
             },
             Command::DropRecovery => {
-                self.recovery_offer = None;
-                Recovery::clear(&self.state_dir);
+                if let Some(orphan) = self.recovery_offer.take() {
+                    orphan.remove();
+                }
+                false
+            }
+            Command::RecoveryLater => {
+                if let Some(orphan) = self.recovery_offer.take() {
+                    let kept = orphan.path.display().to_string();
+                    orphan.release();
+                    self.say(format!(
+                        "The recovery copy stays on disk ({kept}); it is offered again at the next start."
+                    ));
+                }
                 false
             }
         }
@@ -480,9 +537,9 @@ impl GripApp {
     fn carry_out(&mut self, pending: Pending) -> bool {
         match pending {
             Pending::New => {
-                self.doc = Document::new(Design::default(), None);
+                self.doc = Document::new(Design::default(), None, None);
                 self.inputs = inputs::InputsPanel::default();
-                Recovery::clear(&self.state_dir);
+                self.clear_own_copy();
                 self.say("New design (the built-in demo).".to_string());
                 true
             }
@@ -495,43 +552,124 @@ impl GripApp {
         }
     }
 
+    /// Takes the work in a dead instance's copy into the document, on the file the copy
+    /// came from; the copy goes only once this instance's own copy holds the work.
+    fn restore(&mut self, orphan: Orphan) -> bool {
+        let source = orphan.record.source.clone();
+        let text = source.as_deref().and_then(|p| design::read_text(p).ok());
+        self.doc = Document::new(orphan.design.clone(), source.clone(), text);
+        self.doc.saved = None;
+        self.doc.dirty = true;
+        self.inputs = inputs::InputsPanel::default();
+        let kept = self.slot.as_ref().map(|slot| {
+            slot.store(self.doc.path.as_deref(), &self.doc.design)
+                .map_err(|e| e.to_string())
+        });
+        let target = source.map_or_else(
+            || "an untitled design (Save As chooses its file)".to_string(),
+            |p| p.display().to_string(),
+        );
+        match kept {
+            Some(Ok(())) => {
+                orphan.remove();
+                self.say(format!(
+                    "Restored unsaved work on {target}; save it to keep it."
+                ));
+            }
+            Some(Err(e)) => {
+                orphan.release();
+                self.fail(format!(
+                    "Restored unsaved work on {target}; the old recovery copy stays on disk, as this one could not be written: {e}"
+                ));
+            }
+            None => {
+                orphan.release();
+                self.say(format!(
+                    "Restored unsaved work on {target}; the recovery copy stays on disk until it is saved."
+                ));
+            }
+        }
+        true
+    }
+
     /// Loads `path`; on failure the open design stays as it was and the status says why.
     fn open_now(&mut self, path: &Path) -> bool {
-        match design::load(path) {
-            Ok(design) => {
-                self.doc = Document::new(design, Some(path.to_path_buf()));
+        let path = state::absolute(path);
+        let loaded =
+            design::read_text(&path).and_then(|text| design::parse(&text).map(|d| (d, text)));
+        match loaded {
+            Ok((design, text)) => {
+                self.doc = Document::new(design, Some(path.clone()), Some(text));
                 self.inputs = inputs::InputsPanel::default();
-                self.session.remember(path);
+                self.session.remember(&path);
                 self.store_session();
-                Recovery::clear(&self.state_dir);
+                self.clear_own_copy();
                 self.say(format!("Opened {}.", path.display()));
                 true
             }
             Err(e) => {
                 self.fail(format!(
                     "Could not open the file; the design on screen is unchanged. {}",
-                    e.in_file(path)
+                    e.in_file(&path)
                 ));
                 false
             }
         }
     }
 
-    /// Saves to `path`; on failure the design stays open and unsaved, and the status says why.
-    fn save_now(&mut self, path: &Path) {
-        match design::save_atomic(path, &self.doc.design) {
-            Ok(()) => {
-                self.doc.path = Some(path.to_path_buf());
+    /// Saves to `path`, editing the values in place in the file's text when it was opened
+    /// from one. When that is not possible and the file's comments or layout would go,
+    /// asks first (the held-back action `then` follows a yes). On failure the design stays
+    /// open and unsaved, and the status says why.
+    fn save_now(&mut self, path: &Path, then: Option<Pending>) {
+        match design::save_text(self.doc.text.as_deref(), &self.doc.design) {
+            Ok(plan) if plan.loses_layout() => {
+                let why = match plan {
+                    design::SaveText::Whole { why: Some(w), .. } => w.why,
+                    _ => String::new(),
+                };
+                self.rewrite_prompt = Some((path.to_path_buf(), why, then));
+            }
+            Ok(plan) => self.write_design(path, Some(plan)),
+            Err(e) => self.fail(format!(
+                "Not saved; the design is still open with its changes. {e}"
+            )),
+        }
+    }
+
+    /// Writes the design to `path`: the planned text, or the whole design when `None`.
+    fn write_design(&mut self, path: &Path, plan: Option<design::SaveText>) {
+        let text = match plan {
+            Some(plan) => Ok(plan.text().to_string()),
+            None => design::to_ron(&self.doc.design),
+        };
+        let written = text.and_then(|text| {
+            crate::atomic::write(path, text.as_bytes())
+                .map(|()| text)
+                .map_err(design::DesignError::from)
+        });
+        match written {
+            Ok(text) => {
+                let path = state::absolute(path);
+                self.doc.path = Some(path.clone());
+                self.doc.text = Some(text);
                 self.doc.saved = Some(self.doc.design.clone());
                 self.doc.dirty = false;
-                self.session.remember(path);
+                self.session.remember(&path);
                 self.store_session();
-                Recovery::clear(&self.state_dir);
+                self.clear_own_copy();
                 self.say(format!("Saved {}.", path.display()));
             }
             Err(e) => self.fail(format!(
                 "Not saved; the design is still open with its changes. {e}"
             )),
+        }
+    }
+
+    /// Removes this instance's recovery copy (its work is saved or was discarded).
+    fn clear_own_copy(&self) {
+        if let Some(slot) = &self.slot {
+            slot.clear();
         }
     }
 
@@ -562,8 +700,8 @@ impl GripApp {
 
     /// Writes the recovery copy of the design now.
     pub fn write_recovery(&mut self) {
-        if let Err(e) = Recovery::store(&self.state_dir, self.doc.path.as_deref(), &self.doc.design)
-        {
+        let Some(slot) = &self.slot else { return };
+        if let Err(e) = slot.store(self.doc.path.as_deref(), &self.doc.design) {
             self.fail(format!(
                 "Could not write the recovery copy in {}: {e}",
                 self.state_dir.display()
@@ -572,11 +710,17 @@ impl GripApp {
     }
 
     /// Called when the app closes normally: keeps the session and, when nothing is
-    /// unsaved, removes the recovery copy.
+    /// unsaved (or the user chose to discard it), removes this instance's own recovery
+    /// copy. A dead instance's copy that was not answered stays for the next start.
     pub fn on_close(&mut self) {
         self.store_session();
-        if !self.doc.dirty || self.quit_confirmed {
-            Recovery::clear(&self.state_dir);
+        if let Some(orphan) = self.recovery_offer.take() {
+            orphan.release();
+        }
+        if (!self.doc.dirty || self.quit_confirmed)
+            && let Some(slot) = self.slot.take()
+        {
+            slot.close();
         }
     }
 

@@ -520,7 +520,7 @@ fn stroke_hover(
             .total_cmp(&(y.stroke_mm - p.x).abs())
     });
     let phase = near.map_or(String::new(), |s| {
-        format!("\n{}", s.phase.replace('-', " "))
+        format!("\n{}", s.phase.name().replace('-', " "))
     });
     let act = near
         .and_then(|s| s.actuator.filter(|_| actuator))

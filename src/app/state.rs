@@ -1,12 +1,21 @@
 //! What the app keeps between runs, outside any design file: the session (recent files,
-//! the last file open, theme and paper choice) and the recovery copy of unsaved work.
+//! the last file open, theme and paper choice) and the recovery copies of unsaved work.
 //!
-//! Both live in the state directory: `$BOWGRIP_STATE_DIR` when set, else
-//! `$XDG_STATE_HOME/bowgrip`, else `~/.local/state/bowgrip`. Files there are written
-//! atomically (temporary file, then rename) so a crash mid-write cannot corrupt them.
+//! Both live in the platform's own state folder, never the working folder
+//! ([`default_state_dir`]). Every file there is written by the one atomic writer
+//! ([`crate::atomic::write`]: synced, renamed, folder synced). Paths are stored absolute
+//! and resolved, so a start from another folder opens the same files.
+//!
+//! Recovery: each running app owns one [`Slot`], a copy file named after the process and
+//! a lock file it holds locked for as long as it runs. A copy whose lock nobody holds was
+//! left by an instance that is gone ([`orphans`]); it is offered (and held locked while
+//! offered, so no second instance offers it too) and stays on disk until the user
+//! restores or discards it. Quitting, opening a file or deciding later never removes it.
 
 use std::fs;
+use std::io;
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
 
 use serde::{Deserialize, Serialize};
 
@@ -19,26 +28,42 @@ pub const STATE_DIR_VAR: &str = "BOWGRIP_STATE_DIR";
 pub const RECENT_MAX: usize = 8;
 
 const SESSION_FILE: &str = "session.ron";
-const RECOVERY_FILE: &str = "recovery.ron";
+/// Name start of every recovery copy; the copy of an earlier version was `recovery.ron`.
+const RECOVERY_PREFIX: &str = "recovery";
 
-/// The state directory: `$BOWGRIP_STATE_DIR`, `$XDG_STATE_HOME/bowgrip` or
-/// `~/.local/state/bowgrip`; the working directory's `.bowgrip-state` when none is known.
+/// The state directory: `$BOWGRIP_STATE_DIR` when set; else the platform's folder for
+/// application state (`$XDG_STATE_HOME/bowgrip` or `~/.local/state/bowgrip` on Linux and
+/// other Unix systems, `~/Library/Application Support/bowgrip` on macOS,
+/// `%LOCALAPPDATA%\bowgrip` on Windows); else a `bowgrip` folder in the system's
+/// temporary folder. Never the working folder.
 pub fn default_state_dir() -> PathBuf {
     let from_env = |name: &str| {
         std::env::var_os(name)
             .filter(|v| !v.is_empty())
             .map(PathBuf::from)
+            .filter(|p| p.is_absolute())
     };
-    if let Some(dir) = from_env(STATE_DIR_VAR) {
-        return dir;
+    if let Some(dir) = std::env::var_os(STATE_DIR_VAR).filter(|v| !v.is_empty()) {
+        return absolute(Path::new(&dir));
     }
-    if let Some(xdg) = from_env("XDG_STATE_HOME") {
-        return xdg.join("bowgrip");
-    }
-    if let Some(home) = from_env("HOME") {
-        return home.join(".local").join("state").join("bowgrip");
-    }
-    PathBuf::from(".bowgrip-state")
+    let platform = if cfg!(windows) {
+        from_env("LOCALAPPDATA").map(|d| d.join("bowgrip"))
+    } else if cfg!(target_os = "macos") {
+        from_env("HOME").map(|h| h.join("Library/Application Support/bowgrip"))
+    } else {
+        from_env("XDG_STATE_HOME")
+            .map(|x| x.join("bowgrip"))
+            .or_else(|| from_env("HOME").map(|h| h.join(".local/state/bowgrip")))
+    };
+    platform.unwrap_or_else(|| std::env::temp_dir().join("bowgrip"))
+}
+
+/// `path` made absolute and resolved (links followed, `..` removed) when it exists; made
+/// absolute against the working folder when it does not (yet).
+pub fn absolute(path: &Path) -> PathBuf {
+    fs::canonicalize(path)
+        .or_else(|_| std::path::absolute(path))
+        .unwrap_or_else(|_| path.to_path_buf())
 }
 
 /// Light, dark, or whatever the system says.
@@ -82,9 +107,9 @@ pub enum PaperChoice {
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 #[serde(default)]
 pub struct Session {
-    /// Most recent first, at most [`RECENT_MAX`].
+    /// Most recent first, at most [`RECENT_MAX`]; absolute paths.
     pub recent: Vec<PathBuf>,
-    /// The design file open when the app last closed.
+    /// The design file open when the app last closed (absolute).
     pub last_file: Option<PathBuf>,
     /// Theme choice.
     pub theme: ThemeChoice,
@@ -94,94 +119,238 @@ pub struct Session {
 
 impl Session {
     /// Reads the session from `dir`; a missing or unreadable file gives the default (the
-    /// session is a convenience, never a reason to refuse to start).
+    /// session is a convenience, never a reason to refuse to start). Relative paths that
+    /// an earlier version stored are dropped: they named files of another working folder.
     pub fn load(dir: &Path) -> Session {
-        fs::read_to_string(dir.join(SESSION_FILE))
+        let mut s: Session = fs::read_to_string(dir.join(SESSION_FILE))
             .ok()
             .and_then(|text| ron::from_str(&text).ok())
-            .unwrap_or_default()
+            .unwrap_or_default();
+        s.recent.retain(|p| p.is_absolute());
+        s.last_file = s.last_file.filter(|p| p.is_absolute());
+        s
     }
 
     /// Writes the session to `dir`.
-    pub fn store(&self, dir: &Path) -> std::io::Result<()> {
-        write_atomic(&dir.join(SESSION_FILE), &to_pretty(self)?)
+    pub fn store(&self, dir: &Path) -> io::Result<()> {
+        write_state(&dir.join(SESSION_FILE), &to_pretty(self)?)
     }
 
-    /// Puts `path` first in the recent list.
+    /// Puts `path` (made absolute and resolved) first in the recent list.
     pub fn remember(&mut self, path: &Path) {
-        self.recent.retain(|p| p != path);
-        self.recent.insert(0, path.to_path_buf());
+        let path = absolute(path);
+        self.recent.retain(|p| *p != path);
+        self.recent.insert(0, path.clone());
         self.recent.truncate(RECENT_MAX);
-        self.last_file = Some(path.to_path_buf());
+        self.last_file = Some(path);
     }
 }
 
-/// The recovery copy of unsaved work.
+/// The recovery copy of unsaved work, as stored.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Recovery {
-    /// The file the work belongs to, if it had one.
+    /// The file the work belongs to (absolute), if it had one.
     pub source: Option<PathBuf>,
     /// The design as RON text (as [`design::to_ron`] writes it).
     pub design_ron: String,
 }
 
 impl Recovery {
-    /// Path of the recovery file in `dir`.
-    pub fn path(dir: &Path) -> PathBuf {
-        dir.join(RECOVERY_FILE)
+    /// Every recovery copy in `dir`, live or not.
+    pub fn copies(dir: &Path) -> Vec<PathBuf> {
+        let mut found: Vec<PathBuf> = fs::read_dir(dir)
+            .map(|entries| {
+                entries
+                    .filter_map(|e| e.ok().map(|e| e.path()))
+                    .filter(|p| is_copy_name(p))
+                    .collect()
+            })
+            .unwrap_or_default();
+        found.sort();
+        found
+    }
+}
+
+fn is_copy_name(path: &Path) -> bool {
+    let name = path.file_name().map(|n| n.to_string_lossy().into_owned());
+    name.is_some_and(|n| n.starts_with(RECOVERY_PREFIX) && n.ends_with(".ron"))
+}
+
+fn lock_path(copy: &Path) -> PathBuf {
+    copy.with_extension("lock")
+}
+
+/// Opens (creating) the lock file and tries to lock it without waiting: `Ok(Some)` when
+/// locked now, `Ok(None)` when another holder has it.
+fn try_lock(path: &Path) -> io::Result<Option<fs::File>> {
+    let file = fs::OpenOptions::new()
+        .create(true)
+        .truncate(false)
+        .write(true)
+        .open(path)?;
+    match file.try_lock() {
+        Ok(()) => Ok(Some(file)),
+        Err(fs::TryLockError::WouldBlock) => Ok(None),
+        Err(fs::TryLockError::Error(e)) => Err(e),
+    }
+}
+
+static SLOT_COUNTER: AtomicU64 = AtomicU64::new(0);
+
+/// This instance's own recovery copy: the file it writes and the lock that marks it live.
+/// Dropping the slot (a crash ends the process) releases the lock; the copy stays.
+#[derive(Debug)]
+pub struct Slot {
+    copy: PathBuf,
+    _lock: fs::File,
+}
+
+impl Slot {
+    /// Claims a fresh slot in `dir` (creating the folder): named after the process id and
+    /// a counter, locked for as long as the slot lives.
+    pub fn claim(dir: &Path) -> io::Result<Slot> {
+        fs::create_dir_all(dir)?;
+        for _ in 0..64 {
+            let copy = dir.join(format!(
+                "{RECOVERY_PREFIX}-{}-{}.ron",
+                std::process::id(),
+                SLOT_COUNTER.fetch_add(1, Ordering::Relaxed)
+            ));
+            if copy.exists() {
+                continue;
+            }
+            if let Some(lock) = try_lock(&lock_path(&copy))? {
+                return Ok(Slot { copy, _lock: lock });
+            }
+        }
+        Err(io::Error::other("no free recovery file name"))
     }
 
-    /// Writes the recovery copy for `design` into `dir`.
-    pub fn store(dir: &Path, source: Option<&Path>, design: &Design) -> std::io::Result<()> {
+    /// The copy file this slot writes.
+    pub fn path(&self) -> &Path {
+        &self.copy
+    }
+
+    /// Writes the recovery copy for `design`, belonging to `source`.
+    pub fn store(&self, source: Option<&Path>, design: &Design) -> io::Result<()> {
         let rec = Recovery {
-            source: source.map(Path::to_path_buf),
-            design_ron: design::to_ron(design),
+            source: source.map(absolute),
+            design_ron: design::to_ron(design).map_err(|e| io::Error::other(e.to_string()))?,
         };
-        write_atomic(&Recovery::path(dir), &to_pretty(&rec)?)
+        write_state(&self.copy, &to_pretty(&rec)?)
     }
 
-    /// The recovery copy in `dir`, if one is there: the record and its design, or a
-    /// message saying why it cannot be used.
-    pub fn find(dir: &Path) -> Option<Result<(Recovery, Design), String>> {
-        let path = Recovery::path(dir);
-        let text = fs::read_to_string(&path).ok()?;
-        Some(
-            ron::from_str::<Recovery>(&text)
-                .map_err(|e| format!("{}: {e}", path.display()))
-                .and_then(|rec| {
-                    design::parse(&rec.design_ron)
-                        .map(|d| (rec, d))
-                        .map_err(|e| format!("{}: {e}", path.display()))
-                }),
-        )
-    }
-
-    /// Removes the recovery copy (after a save, a clean quit or a discard).
-    pub fn clear(dir: &Path) {
+    /// Removes this slot's copy (after a save, a discard, a clean quit).
+    pub fn clear(&self) {
         // Nothing to do when it is already gone.
-        let _ = fs::remove_file(Recovery::path(dir));
+        let _ = fs::remove_file(&self.copy);
+    }
+
+    /// Removes the copy and the lock file: the instance ends cleanly.
+    pub fn close(self) {
+        self.clear();
+        let _ = fs::remove_file(lock_path(&self.copy));
     }
 }
 
-fn to_pretty<T: Serialize>(value: &T) -> std::io::Result<String> {
-    ron::ser::to_string_pretty(value, ron::ser::PrettyConfig::new())
-        .map_err(|e| std::io::Error::other(e.to_string()))
+/// A recovery copy left by an instance that is gone, held locked while it is offered.
+#[derive(Debug)]
+pub struct Orphan {
+    /// The copy file.
+    pub path: PathBuf,
+    /// What it holds.
+    pub record: Recovery,
+    /// The design in it.
+    pub design: Design,
+    _lock: fs::File,
 }
 
-/// Writes `text` to `path` via a temporary file in the same directory and a rename,
-/// creating the directory when needed.
-pub fn write_atomic(path: &Path, text: &str) -> std::io::Result<()> {
+impl Orphan {
+    /// Removes the copy (restored or discarded): the only way a copy goes.
+    pub fn remove(self) {
+        let _ = fs::remove_file(&self.path);
+        let _ = fs::remove_file(lock_path(&self.path));
+    }
+
+    /// Lets the copy go unanswered: it stays on disk for the next start.
+    pub fn release(self) {}
+}
+
+/// The copies in `dir` that no running instance holds, newest first, each locked for the
+/// caller; an unreadable copy comes as a message naming it (and stays on disk). Lock
+/// files of gone instances without a copy are tidied away.
+pub fn orphans(dir: &Path) -> Vec<Result<Orphan, String>> {
+    let mut copies: Vec<(std::time::SystemTime, PathBuf)> = Recovery::copies(dir)
+        .into_iter()
+        .map(|p| {
+            let when = fs::metadata(&p)
+                .and_then(|m| m.modified())
+                .unwrap_or(std::time::UNIX_EPOCH);
+            (when, p)
+        })
+        .collect();
+    copies.sort_by_key(|c| std::cmp::Reverse(c.0));
+    let mut found = Vec::new();
+    for (_, path) in copies {
+        let lock = match try_lock(&lock_path(&path)) {
+            Ok(Some(lock)) => lock,
+            // Live: its instance is running.
+            Ok(None) => continue,
+            Err(e) => {
+                found.push(Err(format!("{}: {e}", path.display())));
+                continue;
+            }
+        };
+        let read = fs::read_to_string(&path)
+            .map_err(|e| e.to_string())
+            .and_then(|text| ron::from_str::<Recovery>(&text).map_err(|e| e.to_string()))
+            .and_then(|record| {
+                design::parse(&record.design_ron)
+                    .map(|d| (record, d))
+                    .map_err(|e| e.to_string())
+            });
+        found.push(match read {
+            Ok((record, design)) => Ok(Orphan {
+                path,
+                record,
+                design,
+                _lock: lock,
+            }),
+            Err(why) => Err(format!("{}: {why}", path.display())),
+        });
+    }
+    tidy_locks(dir);
+    found
+}
+
+/// Removes lock files that have no copy and no holder.
+fn tidy_locks(dir: &Path) {
+    let Ok(entries) = fs::read_dir(dir) else {
+        return;
+    };
+    for path in entries.filter_map(|e| e.ok().map(|e| e.path())) {
+        let name = path.file_name().map(|n| n.to_string_lossy().into_owned());
+        let is_lock = name.is_some_and(|n| n.starts_with(RECOVERY_PREFIX) && n.ends_with(".lock"));
+        if is_lock
+            && !path.with_extension("ron").exists()
+            && let Ok(Some(_held)) = try_lock(&path)
+        {
+            let _ = fs::remove_file(&path);
+        }
+    }
+}
+
+fn to_pretty<T: Serialize>(value: &T) -> io::Result<String> {
+    ron::ser::to_string_pretty(value, ron::ser::PrettyConfig::new())
+        .map_err(|e| io::Error::other(e.to_string()))
+}
+
+/// Writes a state file through the atomic writer, creating the folder when needed.
+fn write_state(path: &Path, text: &str) -> io::Result<()> {
     if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
         fs::create_dir_all(dir)?;
     }
-    let mut temp = path.as_os_str().to_owned();
-    temp.push(format!(".{}.tmp", std::process::id()));
-    let temp = PathBuf::from(temp);
-    let result = fs::write(&temp, text).and_then(|()| fs::rename(&temp, path));
-    if result.is_err() {
-        let _ = fs::remove_file(&temp);
-    }
-    result
+    crate::atomic::write(path, text.as_bytes()).map_err(|e| io::Error::other(e.to_string()))
 }
 
 #[cfg(test)]
@@ -191,38 +360,92 @@ mod tests {
     #[test]
     fn recent_list_is_most_recent_first_without_repeats() {
         let mut s = Session::default();
-        for name in ["a", "b", "a", "c"] {
+        for name in ["/a", "/b", "/a", "/c"] {
             s.remember(Path::new(name));
         }
         let names: Vec<_> = s.recent.iter().map(|p| p.display().to_string()).collect();
-        assert_eq!(names, ["c", "a", "b"]);
-        assert_eq!(s.last_file.as_deref(), Some(Path::new("c")));
+        assert_eq!(names, ["/c", "/a", "/b"]);
+        assert_eq!(s.last_file.as_deref(), Some(Path::new("/c")));
         for i in 0..20 {
-            s.remember(Path::new(&format!("f{i}")));
+            s.remember(Path::new(&format!("/f{i}")));
         }
         assert_eq!(s.recent.len(), RECENT_MAX);
     }
 
     #[test]
-    fn session_and_recovery_round_trip() {
-        let dir = std::env::temp_dir().join(format!("bowgrip-state-test-{}", std::process::id()));
+    fn remembered_paths_are_absolute() {
+        // Issue 11, item 2: a relative path named another file from another folder.
+        let mut s = Session::default();
+        s.remember(Path::new("some/design.ron"));
+        let stored = s.last_file.unwrap_or_default();
+        assert!(stored.is_absolute(), "{}", stored.display());
+        assert!(stored.ends_with("some/design.ron"));
+    }
+
+    #[test]
+    fn old_relative_session_entries_are_dropped() {
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        fs::write(
+            dir.path().join(SESSION_FILE),
+            "(recent: [\"rel.ron\", \"/abs.ron\"], last_file: Some(\"rel.ron\"))",
+        )
+        .unwrap_or_else(|e| panic!("{e}"));
+        let s = Session::load(dir.path());
+        assert_eq!(s.recent, [PathBuf::from("/abs.ron")]);
+        assert_eq!(s.last_file, None);
+    }
+
+    #[test]
+    fn state_never_defaults_to_the_working_folder() {
+        // Issue 11, item 6 (settings in the platform's own folder).
+        let dir = default_state_dir();
+        assert!(dir.is_absolute(), "{}", dir.display());
+    }
+
+    #[test]
+    fn session_round_trips() {
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
         let mut s = Session::default();
         s.remember(Path::new("/x/y.ron"));
         s.theme = ThemeChoice::Dark;
-        s.store(&dir).unwrap_or_else(|e| panic!("{e}"));
-        assert_eq!(Session::load(&dir), s);
+        s.store(dir.path()).unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(Session::load(dir.path()), s);
+    }
+
+    #[test]
+    fn a_live_copy_is_not_offered_and_a_dead_one_is_until_answered() {
+        // Issue 11, items 1 and 3.
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
         let mut d = Design::default();
         d.strip.count = 5;
-        Recovery::store(&dir, Some(Path::new("/x/y.ron")), &d).unwrap_or_else(|e| panic!("{e}"));
-        match Recovery::find(&dir) {
-            Some(Ok((rec, got))) => {
-                assert_eq!(got, d);
-                assert_eq!(rec.source.as_deref(), Some(Path::new("/x/y.ron")));
-            }
-            other => panic!("{other:?}"),
+        let live = Slot::claim(dir.path()).unwrap_or_else(|e| panic!("{e}"));
+        live.store(Some(Path::new("/x/y.ron")), &d)
+            .unwrap_or_else(|e| panic!("{e}"));
+        assert!(orphans(dir.path()).is_empty(), "a running instance's copy");
+        // The instance dies: its lock goes, its copy stays and is offered.
+        let copy = live.path().to_path_buf();
+        drop(live);
+        let mut found = orphans(dir.path());
+        assert_eq!(found.len(), 1);
+        let Some(Ok(orphan)) = found.pop() else {
+            panic!("no usable orphan")
+        };
+        assert_eq!(orphan.design, d);
+        assert_eq!(orphan.record.source.as_deref(), Some(Path::new("/x/y.ron")));
+        // While it is offered here, no other instance offers it.
+        assert!(orphans(dir.path()).is_empty());
+        // Deciding later keeps it for the next start, twice over.
+        orphan.release();
+        for _ in 0..2 {
+            let again = orphans(dir.path());
+            assert_eq!(again.len(), 1);
         }
-        Recovery::clear(&dir);
-        assert!(Recovery::find(&dir).is_none());
-        let _ = fs::remove_dir_all(&dir);
+        assert!(copy.is_file());
+        // Discarding removes it.
+        if let Some(Ok(orphan)) = orphans(dir.path()).pop() {
+            orphan.remove();
+        }
+        assert!(!copy.exists());
+        assert!(Recovery::copies(dir.path()).is_empty());
     }
 }

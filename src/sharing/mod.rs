@@ -196,8 +196,8 @@ pub struct StripResult {
     pub clock_deg: f64,
     /// Gap from the relaxed strip to the wall at this hub offset (edge contact), mm.
     pub gap_mm: f64,
-    /// `free`, `point-contact`, `line-contact` or `beyond-limit`.
-    pub phase: &'static str,
+    /// The strip's phase (`free`, `point-contact` or `line-contact` in files).
+    pub phase: Phase,
     /// Wall contact force, N.
     pub contact_force_n: f64,
     /// Axial compression, N.
@@ -567,7 +567,7 @@ impl<'a> LoadedBore<'a> {
     fn centred_state(&self, path: &BorePath<'_>, stroke_mm: f64) -> SharedState {
         let s = path.state(stroke_mm);
         let n = self.places.len();
-        let beyond = s.phase == Phase::BeyondLimit.name();
+        let beyond = !s.phase.has_state();
         let strip = StripResult {
             clock_deg: 0.0,
             gap_mm: s.gap_mm,
@@ -643,7 +643,7 @@ impl<'a> LoadedBore<'a> {
             results.push(StripResult {
                 clock_deg: clock_deg(p.clock_rad),
                 gap_mm: *gap_mm,
-                phase: s.phase.name(),
+                phase: s.phase,
                 contact_force_n: contact,
                 axial_force_n: s.axial * k.force_unit_n,
                 max_stress_mpa: stress,
@@ -677,7 +677,7 @@ impl<'a> LoadedBore<'a> {
             mean_axial_force_per_strip_n: axial / n,
             mean_contact_force_per_strip_n: radial / n,
             support_reaction_n: support,
-            strips_in_contact: results.iter().filter(|r| r.phase != "free").count(),
+            strips_in_contact: results.iter().filter(|r| r.phase != Phase::Free).count(),
             worst_strip,
             strain_energy_j: sum(|r| r.strain_energy_j),
         };
@@ -740,17 +740,17 @@ impl<'a> LoadedBore<'a> {
             .fold(f64::NEG_INFINITY, f64::max);
         let t = &st.totals;
         let phase = if !ok {
-            Phase::BeyondLimit.name()
+            Phase::BeyondLimit
         } else {
             st.strips
                 .iter()
                 .map(|s| s.phase)
-                .max_by_key(|p| match *p {
-                    "line-contact" => 2,
-                    "point-contact" => 1,
+                .max_by_key(|p| match p {
+                    Phase::LineContact => 2,
+                    Phase::PointContact => 1,
                     _ => 0,
                 })
-                .unwrap_or("free")
+                .unwrap_or(Phase::Free)
         };
         Ok(SegmentState {
             stroke_mm,
@@ -768,7 +768,7 @@ impl<'a> LoadedBore<'a> {
             bore_mm: self.bore_mm,
             gap_mm: self.gaps_mm(d).into_iter().fold(f64::INFINITY, f64::min),
             limit_stroke_mm: strokes.limit_stroke_mm,
-            limit_reason: strokes.limit_reason.name(),
+            limit_reason: strokes.limit_reason,
             crest_height_mm: some(max_of(|s| s.crest_height_mm)),
             static_safety_factor: some(t.static_safety_factor),
             fatigue_safety_factor: some(t.fatigue_safety_factor),

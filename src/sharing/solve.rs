@@ -626,9 +626,8 @@ impl LoadedBore<'_> {
         let upper = limit_stroke_mm.max(first);
         let last = self
             .first_true(first, upper, |s| {
-                self.solve(s).map(|st| {
-                    !st.beyond_limit && st.strips.iter().all(|r| r.phase != Phase::Free.name())
-                })
+                self.solve(s)
+                    .map(|st| !st.beyond_limit && st.strips.iter().all(|r| r.phase != Phase::Free))
             })?
             .map(|(_, t)| t);
         let lift_off = if self.loading.radial_load_n == 0.0 {

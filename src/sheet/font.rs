@@ -1,6 +1,7 @@
 //! The sheet's two faces (Liberation Sans regular and bold, SIL OFL 1.1, shipped in
-//! `assets/fonts/` with their licence) and just enough TrueType reading to place text
-//! exactly: the character map and the advance widths. Layout measures with the same
+//! `assets/fonts/` with their licence) and the two tables that place text exactly, the
+//! character map and the advance widths, read once with `skrifa` (the font reader krilla
+//! itself uses). Layout measures with the same
 //! advances the PDF is written with, so a line that measures inside the margin prints
 //! inside it. One glyph per character, no kerning and no ligatures, which also keeps
 //! every word searchable as typed.
@@ -9,6 +10,8 @@ use std::collections::HashMap;
 use std::sync::OnceLock;
 
 use krilla::text::{Font, GlyphId, KrillaGlyph};
+use skrifa::MetadataProvider;
+use skrifa::instance::{LocationRef, Size};
 
 const REGULAR_TTF: &[u8] = include_bytes!("../../assets/fonts/LiberationSans-Regular.ttf");
 const BOLD_TTF: &[u8] = include_bytes!("../../assets/fonts/LiberationSans-Bold.ttf");
@@ -31,118 +34,31 @@ pub struct Face {
     cmap: HashMap<char, u16>,
 }
 
-/// Big-endian reads that fail softly on a short table.
-fn u16_at(data: &[u8], at: usize) -> Option<u16> {
-    Some(u16::from_be_bytes([*data.get(at)?, *data.get(at + 1)?]))
-}
-
-fn u32_at(data: &[u8], at: usize) -> Option<u32> {
-    Some(u32::from_be_bytes([
-        *data.get(at)?,
-        *data.get(at + 1)?,
-        *data.get(at + 2)?,
-        *data.get(at + 3)?,
-    ]))
-}
-
-/// The `(offset, length)` of a table by its tag.
-fn table(data: &[u8], tag: &[u8; 4]) -> Option<(usize, usize)> {
-    let count = usize::from(u16_at(data, 4)?);
-    (0..count).find_map(|i| {
-        let rec = 12 + 16 * i;
-        (data.get(rec..rec + 4)? == tag)
-            .then(|| {
-                Some((
-                    u32_at(data, rec + 8)? as usize,
-                    u32_at(data, rec + 12)? as usize,
-                ))
-            })
-            .flatten()
-    })
-}
-
-/// Character map from a format 4 (BMP) or format 12 (full range) Windows Unicode subtable.
-fn read_cmap(data: &[u8]) -> Option<HashMap<char, u16>> {
-    let (base, _) = table(data, b"cmap")?;
-    let count = usize::from(u16_at(data, base + 2)?);
-    let mut best: Option<(u16, usize)> = None;
-    for i in 0..count {
-        let rec = base + 4 + 8 * i;
-        let (platform, encoding) = (u16_at(data, rec)?, u16_at(data, rec + 2)?);
-        let sub = base + u32_at(data, rec + 4)? as usize;
-        let format = u16_at(data, sub)?;
-        let unicode = (platform == 3 && (encoding == 1 || encoding == 10)) || platform == 0;
-        if unicode && (format == 4 || format == 12) && best.is_none_or(|(f, _)| format > f) {
-            best = Some((format, sub));
-        }
-    }
-    let (format, sub) = best?;
-    let mut map = HashMap::new();
-    if format == 12 {
-        let groups = u32_at(data, sub + 12)? as usize;
-        for g in 0..groups {
-            let at = sub + 16 + 12 * g;
-            let (start, end, glyph) = (
-                u32_at(data, at)?,
-                u32_at(data, at + 4)?,
-                u32_at(data, at + 8)?,
-            );
-            for code in start..=end.min(0x2_FFFF) {
-                if let (Some(c), Ok(id)) =
-                    (char::from_u32(code), u16::try_from(glyph + code - start))
-                {
-                    map.insert(c, id);
-                }
-            }
-        }
-    } else {
-        let segs = usize::from(u16_at(data, sub + 6)? / 2);
-        let ends = sub + 14;
-        let starts = ends + 2 * segs + 2;
-        let deltas = starts + 2 * segs;
-        let ranges = deltas + 2 * segs;
-        for s in 0..segs {
-            let end = u16_at(data, ends + 2 * s)?;
-            let start = u16_at(data, starts + 2 * s)?;
-            let delta = u16_at(data, deltas + 2 * s)?;
-            let range = usize::from(u16_at(data, ranges + 2 * s)?);
-            for code in start..=end {
-                if code == 0xFFFF {
-                    break;
-                }
-                let glyph = if range == 0 {
-                    code.wrapping_add(delta)
-                } else {
-                    let at = ranges + 2 * s + range + 2 * usize::from(code - start);
-                    match u16_at(data, at)? {
-                        0 => 0,
-                        g => g.wrapping_add(delta),
-                    }
-                };
-                if let Some(c) = char::from_u32(u32::from(code))
-                    && glyph != 0
-                {
-                    map.insert(c, glyph);
-                }
-            }
-        }
-    }
-    Some(map)
-}
-
 impl Face {
     fn parse(data: &'static [u8]) -> Option<Face> {
-        let (head, _) = table(data, b"head")?;
-        let units_per_em = f32::from(u16_at(data, head + 18)?);
-        let (hhea, _) = table(data, b"hhea")?;
-        let metrics = usize::from(u16_at(data, hhea + 34)?);
-        let (hmtx, _) = table(data, b"hmtx")?;
-        let advances = (0..metrics)
-            .map(|i| u16_at(data, hmtx + 4 * i))
+        let reader = skrifa::FontRef::new(data).ok()?;
+        let face = reader.metrics(Size::unscaled(), LocationRef::default());
+        let units_per_em = f32::from(face.units_per_em);
+        let metrics = reader.glyph_metrics(Size::unscaled(), LocationRef::default());
+        let glyphs = u32::from(face.glyph_count);
+        let advances = (0..glyphs)
+            .map(|g| {
+                let units = metrics.advance_width(skrifa::GlyphId::new(g))?;
+                // Unscaled advances are whole font units (TrueType `hmtx` stores u16).
+                (units.fract() == 0.0 && (0.0..=f32::from(u16::MAX)).contains(&units))
+                    .then_some(units as u16)
+            })
             .collect::<Option<Vec<u16>>>()?;
-        let cmap = read_cmap(data)?;
+        let cmap = reader
+            .charmap()
+            .mappings()
+            .filter_map(|(code, glyph)| {
+                let id = u16::try_from(glyph.to_u32()).ok()?;
+                (id != 0).then_some((char::from_u32(code)?, id))
+            })
+            .collect::<HashMap<char, u16>>();
         let font = Font::new(data.into(), 0)?;
-        (units_per_em > 0.0 && !advances.is_empty()).then_some(Face {
+        (units_per_em > 0.0 && !advances.is_empty() && !cmap.is_empty()).then_some(Face {
             font,
             units_per_em,
             advances,
@@ -232,6 +148,28 @@ mod tests {
         let w0 = regular.width_pt("0", 10.0);
         for d in "123456789".chars() {
             assert!((regular.width_pt(&d.to_string(), 10.0) - w0).abs() < 1e-4);
+        }
+        // Liberation Sans is metric-compatible with Helvetica: the advances read from the
+        // font match the widths of Adobe's Core 14 AFM files (Helvetica.afm and
+        // Helvetica-Bold.afm, in 1/1000 em; the widths are from memory of those files), to the
+        // rounding of 2048 font units per em.
+        for (c, regular_afm, bold_afm) in [
+            (' ', 278.0, 278.0),
+            ('a', 556.0, 556.0),
+            ('0', 556.0, 556.0),
+            ('i', 222.0, 278.0),
+            ('m', 833.0, 889.0),
+            ('W', 944.0, 944.0),
+        ] {
+            let text = c.to_string();
+            assert!(
+                (regular.width_pt(&text, 1000.0) - regular_afm).abs() < 0.5,
+                "{c:?}"
+            );
+            assert!(
+                (bold.width_pt(&text, 1000.0) - bold_afm).abs() < 0.5,
+                "{c:?} bold"
+            );
         }
         // Widths add up.
         let ab = regular.width_pt("ab", 10.0);

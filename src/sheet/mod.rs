@@ -432,7 +432,8 @@ pub(crate) fn fit_start(text: &str, width: f32, size: f32, weight: Weight) -> St
 }
 
 /// The longest part of `text` that fits `width` with an ellipsis where the rest was cut:
-/// at the start when `cut_start`, else at the end.
+/// at the start when `cut_start`, else at the end. One pass over the characters (widths
+/// add up glyph by glyph), so a title of any length costs time linear in its length.
 fn shorten(text: &str, width: f32, size: f32, weight: Weight, cut_start: bool) -> String {
     if draw::text_width(text, size, weight) <= width {
         return text.to_string();
@@ -445,9 +446,67 @@ fn shorten(text: &str, width: f32, size: f32, weight: Weight, cut_start: bool) -
             format!("{}…", String::from_iter(&chars[..keep]))
         }
     };
-    (0..chars.len())
-        .rev()
-        .map(with_ellipsis)
-        .find(|s| draw::text_width(s, size, weight) <= width)
-        .unwrap_or_else(|| with_ellipsis(0))
+    let room = width - draw::text_width("…", size, weight);
+    let mut used = 0.0f32;
+    let mut keep = 0usize;
+    let mut buf = [0u8; 4];
+    let ordered: Box<dyn Iterator<Item = &char>> = if cut_start {
+        Box::new(chars.iter().rev())
+    } else {
+        Box::new(chars.iter())
+    };
+    for c in ordered {
+        let w = draw::text_width(c.encode_utf8(&mut buf), size, weight);
+        if used + w > room {
+            break;
+        }
+        used += w;
+        keep += 1;
+    }
+    // The sum char by char may round differently from the width of the whole string:
+    // step back while the result measures too wide (a step or two at most).
+    let mut shortened = with_ellipsis(keep);
+    while keep > 0 && draw::text_width(&shortened, size, weight) > width {
+        keep -= 1;
+        shortened = with_ellipsis(keep);
+    }
+    shortened
+}
+
+#[cfg(test)]
+mod shorten_tests {
+    use super::*;
+
+    #[test]
+    fn a_very_long_title_is_cut_once_to_the_longest_fit() {
+        // Issue 11, item 9: 100,000 characters through the shortening (one pass; the
+        // earlier search measured every candidate length, quadratic in the length).
+        let title: String = "Anchor W".repeat(12_500);
+        assert_eq!(title.chars().count(), 100_000);
+        for cut_start in [false, true] {
+            let short = shorten(&title, 300.0, 8.5, Weight::Bold, cut_start);
+            let width = draw::text_width(&short, 8.5, Weight::Bold);
+            assert!(width <= 300.0, "{width}");
+            let kept = short.chars().count() - 1;
+            assert!(kept > 10, "{short}");
+            // One more character would not fit: the longest part that does.
+            let longer = if cut_start {
+                let tail: String = title
+                    .chars()
+                    .skip(title.chars().count() - kept - 1)
+                    .collect();
+                format!("…{tail}")
+            } else {
+                let head: String = title.chars().take(kept + 1).collect();
+                format!("{head}…")
+            };
+            assert!(draw::text_width(&longer, 8.5, Weight::Bold) > 300.0);
+            if cut_start {
+                assert!(short.starts_with('…') && title.ends_with(&short[3..]));
+            } else {
+                assert!(short.ends_with('…') && title.starts_with(&short[..short.len() - 3]));
+            }
+        }
+        assert_eq!(fit("short", 300.0, 8.5, Weight::Bold), "short");
+    }
 }

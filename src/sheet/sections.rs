@@ -13,6 +13,7 @@ use super::{Section, SheetMeta, fit, fit_start};
 use crate::analysis::{Analysis, BoreCase, BoreResult};
 use crate::checks::{self, MarginUnit};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
+use crate::elastica::Phase;
 use crate::segment::SegmentState;
 
 /// Replaced by the page count once pagination knows it.
@@ -333,9 +334,14 @@ fn summary(a: &Analysis, width: f32) -> Section {
                 ),
             ) + 2.0;
         } else if let Some(s) = state_of(r)
-            && s.phase == "beyond-limit"
+            && !s.phase.has_state()
         {
             let why = s.reason.clone().unwrap_or_default();
+            let verb = if s.phase == Phase::SolveFailed {
+                "gives no state:"
+            } else {
+                "is"
+            };
             y = b.paragraph(
                 0.0,
                 y,
@@ -344,7 +350,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
                 Weight::Bold,
                 RED,
                 &format!(
-                    "At the {} bore ({}) the operating stroke is {why}.",
+                    "At the {} bore ({}) the operating stroke {verb} {why}.",
                     r.case.label(),
                     f::mm(r.bore_mm)
                 ),
@@ -687,8 +693,8 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
     };
     let st = |get: fn(&SegmentState) -> String| {
         move |r: &BoreResult| match &r.operating {
-            Ok(s) if s.phase != "beyond-limit" => get(s),
-            Ok(_) => "beyond limit".to_string(),
+            Ok(s) if s.phase.has_state() => get(s),
+            Ok(s) => s.phase.name().replace('-', " "),
             Err(_) => "no state".to_string(),
         }
     };

@@ -157,7 +157,7 @@ fn files_open_save_and_guard_unsaved_work() {
     let bad = dir.path().join("bad.ron");
     let mut too_thick = Design::default();
     too_thick.strip.thickness_mm = 9.0;
-    let text = design::to_ron(&too_thick);
+    let text = design::to_ron(&too_thick).unwrap_or_else(|e| panic!("{e}"));
     std::fs::write(&bad, text).unwrap_or_else(|e| panic!("{e}"));
 
     let mut h = harness(GripApp::new(state.clone(), None));
@@ -337,8 +337,9 @@ fn recovery_copy_is_offered_after_a_crash() {
         h.state().design().clone()
         // Dropped without a clean close: as after a crash.
     };
-    assert!(
-        Recovery::path(&state).is_file(),
+    assert_eq!(
+        Recovery::copies(&state).len(),
+        1,
         "the unsaved work was copied"
     );
     let mut h = harness(GripApp::new(state.clone(), None));
@@ -449,7 +450,8 @@ fn strips_that_swing_behind_the_plates_raise_a_geometry_caution() {
     let d = crate::shared::wide_gap_design();
     let tmp = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
     let file = tmp.path().join("wide.ron");
-    std::fs::write(&file, design::to_ron(&d)).unwrap_or_else(|e| panic!("{e}"));
+    std::fs::write(&file, design::to_ron(&d).unwrap_or_else(|e| panic!("{e}")))
+        .unwrap_or_else(|e| panic!("{e}"));
     open_through_the_window(&mut h, &file);
     assert_eq!(h.state().design().operating_stroke_mm, 27.0);
     assert!(h.query_by_label_contains("Geometry caution").is_some());

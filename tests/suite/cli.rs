@@ -57,7 +57,7 @@ impl Scratch {
     }
 
     fn design(&self, name: &str, design: &Design) -> PathBuf {
-        self.write(name, &design::to_ron(design))
+        self.write(name, &design::to_ron(design).expect("writes RON"))
     }
 }
 
@@ -563,9 +563,10 @@ fn the_sheet_is_written_whole_and_its_place_reported() {
 }
 
 #[test]
-fn a_closed_pipe_ends_the_run_quietly() {
+fn a_closed_pipe_is_reported_as_a_failed_write_to_stdout() {
     // Issue: `bowgrip bores ... | head -1` must not panic. A million bores also shows
-    // that --points 1000000 is accepted.
+    // that --points 1000000 is accepted. Issue 11, item 11: the output did not all
+    // arrive, so the run fails (status 2) with one line naming stdout.
     let tmp = Scratch::new();
     let file = tmp.design("d.ron", &Design::default());
     let mut child = StdCommand::new(env!("CARGO_BIN_EXE_bowgrip"))
@@ -592,8 +593,12 @@ fn a_closed_pipe_ends_the_run_quietly() {
     drop(reader);
     let out = child.wait_with_output().expect("wait for bowgrip");
     let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(stderr.is_empty(), "stderr: {stderr}");
-    assert_eq!(out.status.code(), Some(0));
+    assert!(
+        stderr.starts_with("bowgrip: cannot write the results to stdout")
+            && stderr.lines().count() == 1,
+        "stderr: {stderr}"
+    );
+    assert_eq!(out.status.code(), Some(2));
 }
 
 /// What a sample design's header says `check` will do: its `// Expected:` line begins with

@@ -82,7 +82,7 @@ fn default_design_is_valid_and_round_trips() {
     let d = Design::default();
     d.validate()
         .unwrap_or_else(|e| panic!("default design refused: {e}"));
-    let text = design::to_ron(&d);
+    let text = design::to_ron(&d).unwrap_or_else(|e| panic!("{e}"));
     assert!(
         text.starts_with("Design("),
         "top-level struct is named: {text}"
@@ -90,7 +90,10 @@ fn default_design_is_valid_and_round_trips() {
     let back = design::parse(&text).unwrap_or_else(|e| panic!("{e}\n{text}"));
     assert_eq!(back, d);
     // Stable: writing the loaded design again gives the same bytes.
-    assert_eq!(design::to_ron(&back), text);
+    assert_eq!(
+        design::to_ron(&back).unwrap_or_else(|e| panic!("{e}")),
+        text
+    );
 }
 
 #[test]
@@ -98,10 +101,14 @@ fn every_sample_loads_and_round_trips() {
     for name in SAMPLES {
         let path = sample_path(name);
         let d = design::load(&path).unwrap_or_else(|e| panic!("{}", e.in_file(&path)));
-        let text = design::to_ron(&d);
+        let text = design::to_ron(&d).unwrap_or_else(|e| panic!("{e}"));
         let back = design::parse(&text).unwrap_or_else(|e| panic!("{name}: {e}\n{text}"));
         assert_eq!(back, d, "{name}");
-        assert_eq!(design::to_ron(&back), text, "{name}");
+        assert_eq!(
+            design::to_ron(&back).unwrap_or_else(|e| panic!("{e}")),
+            text,
+            "{name}"
+        );
         assert!(!d.title.is_empty(), "{name} has a title");
     }
 }
@@ -215,7 +222,7 @@ proptest! {
     #![proptest_config(ProptestConfig { cases: 64, ..ProptestConfig::default() })]
     #[test]
     fn any_design_round_trips_exactly(d in arbitrary_design()) {
-        let text = design::to_ron(&d);
+        let text = design::to_ron(&d).unwrap_or_else(|e| panic!("{e}"));
         let back: Design = ron::from_str(&text).map_err(|e| TestCaseError::fail(format!("{e}\n{text}")))?;
         prop_assert_eq!(back, d);
     }
@@ -269,7 +276,7 @@ fn issue_literal_loads_unchanged() {
         (40.0, 2.0, 100_000)
     );
     // The literal's bore without a pipe is written back without a `pipe` field.
-    assert!(!design::to_ron(&d).contains("pipe"));
+    assert!(!design::to_ron(&d).unwrap_or_default().contains("pipe"));
 }
 
 #[test]
@@ -448,14 +455,20 @@ fn unknown_format_names_the_supported_one() {
     // the fields.
     let future = literal_with("format: 1,", "format: 2,\n    coating: \"zinc\",");
     assert!(
-        matches!(parse_err(&future), DesignError::UnknownFormat { found: 2 }),
+        matches!(
+            parse_err(&future).kind(),
+            DesignError::UnknownFormat { found: 2 }
+        ),
         "{future}"
     );
-    let e = parse_err(&literal_with("format: 1,", "format: 2,"));
+    let text = literal_with("format: 1,", "format: 2,");
+    let e = parse_err(&text);
     assert!(
-        matches!(e, DesignError::UnknownFormat { found: 2 }),
+        matches!(e.kind(), DesignError::UnknownFormat { found: 2 }),
         "{e:?}"
     );
+    // Issue 11, item 11: it carries line:column.
+    assert_eq!(e.position(), Some(value_position(&text, "format: 2")));
     let message = e.to_string();
     assert!(
         message.contains('2') && message.contains("format 1"),
@@ -512,7 +525,7 @@ fn infinity_is_refused() {
         &text,
         "holding_force_n: -inf",
         "duty.holding_force_n",
-        "0 to 10000000 N",
+        "0 to 1e7 N",
     );
 }
 
@@ -556,14 +569,16 @@ fn zero_thickness_is_refused_with_the_full_message() {
 }
 
 #[test]
-fn strip_count_outside_2_to_64_is_refused() {
+fn strip_count_outside_3_to_64_is_refused() {
     let text = literal_with("count: 6", "count: 65");
-    let value = assert_out_of_range(&text, "count: 65", "strip.count", "2 to 64");
+    let value = assert_out_of_range(&text, "count: 65", "strip.count", "3 to 64");
     assert_eq!(value, 65.0);
-    let text = literal_with("count: 6", "count: 1");
-    assert_out_of_range(&text, "count: 1", "strip.count", "2 to 64");
+    // Issue 11, item 11: two strips gave a hub margin of 6.5e19 mm (2 r tan(pi/2)); the
+    // range starts at three.
+    let text = literal_with("count: 6", "count: 2");
+    assert_out_of_range(&text, "count: 2", "strip.count", "3 to 64");
     assert!(design::parse(&literal_with("count: 6", "count: 64")).is_ok());
-    assert!(design::parse(&literal_with("count: 6", "count: 2")).is_ok());
+    assert!(design::parse(&literal_with("count: 6", "count: 3")).is_ok());
 }
 
 #[test]
@@ -580,7 +595,8 @@ fn nested_and_relative_limits_are_refused_where_they_are() {
         "strip.material.poisson_ratio",
         "0 to 0.5",
     );
-    // Efficiency 0 is excluded; 1 is allowed.
+    // Efficiency from 0.01 (issue 11, item 11: 5e-324 needed an infinite torque); 1 is
+    // allowed.
     let screw = literal_with(
         "Direct(max_force_n: 1000.0, max_stroke_mm: 10.0)",
         "LeadScrew(lead_mm: 2.0, efficiency: 0.0, max_torque_nm: 1.5, max_turns: 10.0)",
@@ -589,16 +605,24 @@ fn nested_and_relative_limits_are_refused_where_they_are() {
         &screw,
         "efficiency: 0.0",
         "actuator.efficiency",
-        "0 to 1 (0 excluded)",
+        "0.01 to 1",
     );
+    let tiny = screw.replace("efficiency: 0.0", "efficiency: 5e-324");
+    assert_out_of_range(
+        &tiny,
+        "efficiency: 5e-324",
+        "actuator.efficiency",
+        "0.01 to 1",
+    );
+    assert!(parse_err(&tiny).to_string().contains("= 5e-324 is outside"));
     assert!(design::parse(&screw.replace("efficiency: 0.0", "efficiency: 1.0")).is_ok());
-    // Actuator ratings must be above zero.
+    // Actuator ratings from a millionth, below a billion.
     let weak = literal_with("max_force_n: 1000.0", "max_force_n: 0.0");
     assert_out_of_range(
         &weak,
         "max_force_n: 0.0",
         "actuator.max_force_n",
-        "0 to 1000000000 N",
+        "from 1e-6, less than 1e9 N",
     );
     // Tolerances up to a quarter of the bore: 0.25 x 58.6 = 14.65 mm.
     let loose = literal_with("minus_mm: 0.0", "minus_mm: 15.0");
@@ -613,7 +637,7 @@ fn nested_and_relative_limits_are_refused_where_they_are() {
     );
     // Cycles from 1.
     let none = literal_with("cycles: 100000", "cycles: 0");
-    assert_out_of_range(&none, "cycles: 0", "duty.cycles", "1 to 1000000000000");
+    assert_out_of_range(&none, "cycles: 0", "duty.cycles", "1 to 1e12");
     // A safety factor below 1.
     let low = literal_with("safety_factor: 2.0", "safety_factor: 0.9");
     assert_out_of_range(&low, "safety_factor: 0.9", "duty.safety_factor", "1 to 100");
@@ -621,8 +645,11 @@ fn nested_and_relative_limits_are_refused_where_they_are() {
 
 #[test]
 fn unknown_grade_lists_the_known_ones() {
-    let e = parse_err(&literal_with("carbon-1095-50hrc", "unobtainium-9"));
-    let DesignError::UnknownGrade { id, known } = &e else {
+    let text = literal_with("carbon-1095-50hrc", "unobtainium-9");
+    let e = parse_err(&text);
+    // Issue 11, item 11: at the material's line and column.
+    assert_eq!(e.position(), Some(position_of(&text, "Grade(")));
+    let DesignError::UnknownGrade { id, known } = e.kind() else {
         panic!("expected UnknownGrade, got {e:?}");
     };
     assert_eq!(id, "unobtainium-9");
@@ -654,9 +681,10 @@ fn unknown_pipe_is_refused() {
     );
     let e = parse_err(&text);
     assert!(
-        matches!(&e, DesignError::UnknownPipe { nps, schedule } if nps == "2" && schedule == "999"),
+        matches!(e.kind(), DesignError::UnknownPipe { nps, schedule } if nps == "2" && schedule == "999"),
         "{e:?}"
     );
+    assert_eq!(e.position(), Some(position_of(&text, "Some((")));
     let message = e.to_string();
     assert!(
         message.contains("bore.pipe") && message.contains("999"),
@@ -673,8 +701,13 @@ fn inconsistent_custom_material_is_invalid() {
     );
     let e = parse_err(&text);
     assert!(
-        matches!(&e, DesignError::Invalid { field, .. } if field == "strip.material.yield_strength_mpa"),
+        matches!(e.kind(), DesignError::Invalid { field, .. } if field == "strip.material.yield_strength_mpa"),
         "{e:?}"
+    );
+    // Issue 11, item 11: at the yield strength's value.
+    assert_eq!(
+        e.position(),
+        Some(value_position(&text, "yield_strength_mpa: 1500.0"))
     );
 }
 
@@ -709,7 +742,7 @@ fn save_into_a_missing_directory_fails_with_io() {
         Err(e) => e,
     };
     assert!(
-        matches!(&e, DesignError::Io { path: p, .. } if *p == path),
+        matches!(&e, DesignError::Write(w) if w.path() == path),
         "{e:?}"
     );
     assert!(e.to_string().starts_with("cannot write "), "{e}");
@@ -726,14 +759,14 @@ fn failed_saves_leave_the_old_file_intact() {
     // permission bits, so this stands in for a read-only place).
     let under_file = old.join("inner.ron");
     let e = design::save_atomic(&under_file, &Design::default()).err();
-    assert!(matches!(e, Some(DesignError::Io { .. })), "{e:?}");
+    assert!(matches!(e, Some(DesignError::Write(_))), "{e:?}");
 
     // A directory as the target: the rename over it fails; its content stays.
     let target_dir = dir.path().join("folder.ron");
     fs::create_dir(&target_dir).unwrap_or_else(|e| panic!("{e}"));
     fs::write(target_dir.join("keep.txt"), "keep").unwrap_or_else(|e| panic!("{e}"));
     let e = design::save_atomic(&target_dir, &Design::default()).err();
-    assert!(matches!(e, Some(DesignError::Io { .. })), "{e:?}");
+    assert!(matches!(e, Some(DesignError::Write(_))), "{e:?}");
     assert_eq!(
         fs::read_to_string(target_dir.join("keep.txt"))
             .ok()
@@ -771,5 +804,308 @@ fn reading_a_missing_file_fails_with_io() {
     assert!(
         message.starts_with("cannot read ") && message.contains("absent.ron"),
         "{message}"
+    );
+}
+
+// ---------------------------------------------------------------- bounded loading (issue 11, items 7 and 8)
+
+#[test]
+fn deep_nesting_is_refused_before_the_parser_runs() {
+    // The issue's 30,000-level file and its 100,000 nested fields (about 300 KB). The
+    // refusal comes from one linear pre-scan; no time is asserted (project rules).
+    let deep = format!("{}{}", "(".repeat(30_000), ")".repeat(30_000));
+    let e = parse_err(&deep);
+    assert_eq!(e.position(), Some((1, 65)), "{e}");
+    assert!(e.to_string().contains("deeper than 64 levels"), "{e}");
+    let fields = format!("Design({}{})", "a:(".repeat(100_000), ")".repeat(100_000));
+    let e = parse_err(&fields);
+    assert!(e.to_string().contains("deeper than 64 levels"), "{e}");
+    // Brackets in strings and comments do not count.
+    let quoted = literal_with(
+        "title: \"...\"",
+        &format!("title: \"{}\" // {}", "(".repeat(100), "[".repeat(100)),
+    );
+    assert!(!parse_err(&quoted).to_string().contains("deeper"));
+}
+
+#[test]
+fn a_file_over_a_mebibyte_is_refused_unread() {
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let path = dir.path().join("huge.ron");
+    // A sparse 64 MB file (the issue's size): refused from its size alone.
+    let file = fs::File::create(&path).unwrap_or_else(|e| panic!("{e}"));
+    file.set_len(64 << 20).unwrap_or_else(|e| panic!("{e}"));
+    let e = design::load(&path).err();
+    assert!(
+        matches!(&e, Some(DesignError::TooLarge { max_bytes, .. }) if *max_bytes == design::MAX_FILE_BYTES),
+        "{e:?}"
+    );
+    let message = e.map(|e| e.to_string()).unwrap_or_default();
+    assert!(
+        message.contains("huge.ron") && message.contains("at most 1048576 bytes"),
+        "{message}"
+    );
+    // Exactly at the limit is still read (and refused only as text).
+    file.set_len(design::MAX_FILE_BYTES)
+        .unwrap_or_else(|e| panic!("{e}"));
+    assert!(!matches!(
+        design::load(&path),
+        Err(DesignError::TooLarge { .. })
+    ));
+}
+
+#[cfg(unix)]
+#[test]
+fn devices_fifos_and_folders_are_refused_unopened() {
+    let e = design::load(Path::new("/dev/zero")).err();
+    assert!(
+        matches!(&e, Some(DesignError::NotAFile { what, .. }) if what.contains("device")),
+        "{e:?}"
+    );
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let e = design::load(dir.path()).err();
+    assert!(
+        e.as_ref()
+            .is_some_and(|e| e.to_string().ends_with("is a folder, not a design file")),
+        "{e:?}"
+    );
+    // A FIFO would block the reader for ever; it is refused without being opened.
+    let fifo = dir.path().join("pipe.ron");
+    let made = std::process::Command::new("mkfifo").arg(&fifo).status();
+    if made.is_ok_and(|s| s.success()) {
+        let e = design::load(&fifo).err();
+        assert!(
+            e.as_ref().is_some_and(|e| e
+                .to_string()
+                .contains("a named pipe (FIFO), not a design file")),
+            "{e:?}"
+        );
+    }
+}
+
+#[test]
+fn a_byte_order_mark_is_skipped() {
+    // Issue 11, item 11 (UTF-8 files from some editors start with U+FEFF).
+    let text = format!("\u{feff}{ISSUE_LITERAL}");
+    assert_eq!(design::parse(&text).ok(), design::parse(ISSUE_LITERAL).ok());
+}
+
+#[test]
+fn bytes_that_are_not_utf8_are_refused_where_they_are() {
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let path = dir.path().join("latin1.ron");
+    let mut bytes = ISSUE_LITERAL.as_bytes().to_vec();
+    let at = ISSUE_LITERAL.find("\"...\"").unwrap_or(0) + 1;
+    bytes[at] = 0xE9;
+    fs::write(&path, bytes).unwrap_or_else(|e| panic!("{e}"));
+    let e = design::load(&path).err();
+    assert_eq!(e.as_ref().and_then(DesignError::position), Some((3, 13)));
+    assert!(e.is_some_and(|e| e.to_string().contains("not UTF-8")));
+}
+
+// ---------------------------------------------------------------- messages (issue 11, item 11)
+
+#[test]
+fn a_decimal_count_asks_for_a_whole_number() {
+    let text = literal_with("count: 6", "count: 10.0");
+    let e = parse_err(&text);
+    assert_eq!(e.position(), Some(value_position(&text, "count: 10.0")));
+    assert!(
+        e.to_string()
+            .contains("strip.count = 10.0: a whole number is expected"),
+        "{e}"
+    );
+}
+
+#[test]
+fn a_number_with_a_unit_asks_for_a_plain_number() {
+    let text = literal_with("free_length_mm: 60.0", "free_length_mm: 90mm");
+    let e = parse_err(&text);
+    assert_eq!(
+        e.position(),
+        Some(value_position(&text, "free_length_mm: 90mm"))
+    );
+    assert!(
+        e.to_string()
+            .contains("strip.free_length_mm = 90mm: a plain number is expected"),
+        "{e}"
+    );
+}
+
+#[test]
+fn an_unclosed_string_is_reported_where_it_opens() {
+    // The closing quote of the title is missing: the string swallows the next lines up to
+    // the grade's first quote, and the parser stops several lines later.
+    let text = literal_with("title: \"...\",", "title: \"...,");
+    let e = parse_err(&text);
+    assert_eq!(
+        e.position(),
+        Some(value_position(&text, "title: \"...,")),
+        "{e}"
+    );
+    assert!(e.to_string().contains("closing quote is missing"), "{e}");
+    // Never closed at all, at the end of the text.
+    let cut = &ISSUE_LITERAL[..ISSUE_LITERAL.find("...").unwrap_or(0)];
+    let e = parse_err(cut);
+    assert_eq!(e.position(), Some(value_position(cut, "title: \"")));
+    assert!(e.to_string().contains("never closed"), "{e}");
+}
+
+#[test]
+fn far_too_many_cycles_are_out_of_range_not_unwhole() {
+    let text = literal_with("cycles: 100000", "cycles: 1e20");
+    let message = parse_err(&text).to_string();
+    assert!(
+        message.contains("duty.cycles = 1e20 is outside the allowed range 1 to 1e12"),
+        "{message}"
+    );
+    let half = literal_with("cycles: 100000", "cycles: 1.5");
+    assert!(parse_err(&half).to_string().contains("not a whole number"));
+}
+
+#[test]
+fn tiny_and_huge_values_print_without_hundreds_of_digits() {
+    // show_number: shortest round-trip text for ordinary magnitudes, exponents past them.
+    assert_eq!(design::show_number(14.65), "14.65");
+    assert_eq!(design::show_number(1e-300), "1e-300");
+    assert_eq!(design::show_number(6.5e19), "6.5e19");
+    assert_eq!(design::show_number(1e12), "1e12");
+    assert_eq!(design::show_number(-0.0), "0");
+    let text = literal_with("thickness_mm: 0.3", "thickness_mm: 1e-300");
+    let message = parse_err(&text).to_string();
+    assert!(message.contains("= 1e-300 mm is outside"), "{message}");
+    assert!(message.len() < 200, "{message}");
+}
+
+#[test]
+fn a_title_over_the_limit_is_refused_with_the_limit() {
+    // Issue 11, item 9: the limit stands in design::limits().
+    assert_eq!(design::MAX_TITLE_CHARS, 200);
+    assert!(design::limit("title").is_some());
+    let long = "x".repeat(201);
+    let text = literal_with("title: \"...\"", &format!("title: \"{long}\""));
+    assert_out_of_range(
+        &text,
+        &format!("title: \"{long}\""),
+        "title",
+        "0 to 200 characters",
+    );
+    let fits = literal_with("title: \"...\"", &format!("title: \"{}\"", "é".repeat(200)));
+    assert!(design::parse(&fits).is_ok());
+}
+
+// ---------------------------------------------------------------- keeping comments (issue 11, item 4)
+
+/// The lines of `text` that hold a comment.
+fn comment_lines(text: &str) -> Vec<&str> {
+    text.lines().filter(|l| l.contains("//")).collect()
+}
+
+#[test]
+fn saving_an_opened_sample_keeps_every_comment() {
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    for name in SAMPLES {
+        let original =
+            fs::read_to_string(sample_path(name)).unwrap_or_else(|e| panic!("{name}: {e}"));
+        let mut d = design::parse(&original).unwrap_or_else(|e| panic!("{name}: {e}"));
+        d.friction = 0.27;
+        d.strip.thickness_mm *= 1.1;
+        d.title = format!("{} (edited)", d.title);
+        let plan = design::save_text(Some(&original), &d).unwrap_or_else(|e| panic!("{e}"));
+        let design::SaveText::InPlace(text) = &plan else {
+            panic!("{name}: not edited in place: {plan:?}");
+        };
+        let path = dir.path().join(name);
+        bowgrip::atomic::write(&path, text.as_bytes()).unwrap_or_else(|e| panic!("{e}"));
+        let saved = fs::read_to_string(&path).unwrap_or_else(|e| panic!("{e}"));
+        // Every comment line survives, byte for byte (none of them held an edited value).
+        for line in comment_lines(&original) {
+            assert!(saved.contains(line), "{name}: lost {line:?}");
+        }
+        assert_eq!(saved.lines().count(), original.lines().count(), "{name}");
+        assert_eq!(design::load(&path).ok(), Some(d), "{name} reads back");
+    }
+}
+
+#[test]
+fn a_structural_change_is_rewritten_and_says_so_first() {
+    let original = fs::read_to_string(sample_path(SAMPLES[0])).unwrap_or_else(|e| panic!("{e}"));
+    let mut d = design::parse(&original).unwrap_or_else(|e| panic!("{e}"));
+    d.actuator = Actuator::Direct {
+        max_force_n: 500.0,
+        max_stroke_mm: 12.0,
+    };
+    let plan = design::save_text(Some(&original), &d).unwrap_or_else(|e| panic!("{e}"));
+    assert!(plan.loses_layout(), "{plan:?}");
+    let design::SaveText::Whole {
+        text,
+        why: Some(why),
+    } = &plan
+    else {
+        panic!("{plan:?}");
+    };
+    assert!(why.why.contains("structure"), "{why:?}");
+    assert_eq!(design::parse(text).ok(), Some(d));
+    // A new file has nothing to lose.
+    let fresh = design::save_text(None, &Design::default()).unwrap_or_else(|e| panic!("{e}"));
+    assert!(!fresh.loses_layout());
+    // A value the file leaves to its default has no place to go either.
+    let mut hinged = design::parse(
+        ISSUE_LITERAL
+            .replace("            ends: Clamped,\n", "")
+            .as_str(),
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    hinged.strip.ends = Ends::Hinged;
+    let without = ISSUE_LITERAL.replace("            ends: Clamped,\n", "");
+    let e = design::edit_in_place(&without, &hinged).err();
+    assert!(e.is_some_and(|r| r.why.contains("strip.ends")));
+}
+
+// ---------------------------------------------------------------- saving over links and locked files (issue 11, item 5)
+
+#[cfg(unix)]
+#[test]
+fn saving_over_a_link_writes_its_target_and_keeps_the_link() {
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let real = dir.path().join("real.ron");
+    fs::write(&real, ISSUE_LITERAL).unwrap_or_else(|e| panic!("{e}"));
+    let link = dir.path().join("link.ron");
+    std::os::unix::fs::symlink(&real, &link).unwrap_or_else(|e| panic!("{e}"));
+    let mut d = design::load(&link).unwrap_or_else(|e| panic!("{e}"));
+    d.friction = 0.4;
+    design::save_atomic(&link, &d).unwrap_or_else(|e| panic!("{e}"));
+    let meta = fs::symlink_metadata(&link).unwrap_or_else(|e| panic!("{e}"));
+    assert!(meta.file_type().is_symlink(), "the link stays a link");
+    assert_eq!(design::load(&real).ok(), Some(d));
+}
+
+#[test]
+fn a_read_only_file_is_refused_and_the_app_keeps_the_design_unsaved() {
+    use bowgrip::app::{Command, Gesture, GripApp};
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let path = dir.path().join("locked.ron");
+    fs::write(&path, ISSUE_LITERAL).unwrap_or_else(|e| panic!("{e}"));
+    let mut perms = fs::metadata(&path)
+        .unwrap_or_else(|e| panic!("{e}"))
+        .permissions();
+    perms.set_readonly(true);
+    fs::set_permissions(&path, perms).unwrap_or_else(|e| panic!("{e}"));
+
+    let mut app = GripApp::new(dir.path().join("state"), Some(path.clone()));
+    let mut edited = app.design().clone();
+    edited.friction = 0.35;
+    app.push(Command::Edit(Box::new(edited.clone()), Gesture::Done));
+    app.push(Command::Save);
+    app.apply();
+    let status = app.status().cloned().unwrap_or_else(|| panic!("no status"));
+    assert!(status.is_error, "{status:?}");
+    assert!(status.text.contains("read-only"), "{}", status.text);
+    assert!(app.is_dirty(), "the design stays open and unsaved");
+    assert_eq!(*app.design(), edited);
+    assert_eq!(
+        fs::read_to_string(&path).ok().as_deref(),
+        Some(ISSUE_LITERAL),
+        "the file is untouched"
     );
 }

@@ -1,6 +1,7 @@
 //! The strip solver against an independent high-precision solution of the same model:
-//! `tests/reference/gen_elastica.py` solves the mechanics note's equations with mpmath at
-//! 40 digits (mpmath, PyPI; its own derivation of the hinged case). Paths: first contact,
+//! `tests/reference/gen_elastica.py` solves the strip model (set out in
+//! `tests/reference/README.md`) with mpmath at 40 digits (mpmath, PyPI; its own derivation
+//! of the hinged case). Paths: first contact,
 //! line-contact onset, limit and axial-force peak; states: forces, geometry, curvature and
 //! energy at strokes inside every phase.
 

@@ -48,9 +48,10 @@ fn check_contact(ends: Ends, gap: f64, fraction: f64) {
         return;
     }
     let target = path.state(stop).contact * fraction;
-    let s = path
-        .stroke_for_contact(target)
-        .unwrap_or_else(|| panic!("{ends:?} g/L {gap}: contact {target} not found"));
+    let found = path.stroke_for_contact(target);
+    let s = found
+        .ok()
+        .unwrap_or_else(|| panic!("{ends:?} g/L {gap}: contact {target}: {found:?}"));
     let got = path.state(s).contact;
     assert!(
         ((got - target) / target).abs() < 1e-9,
@@ -65,9 +66,10 @@ fn check_linear(ends: Ends, gap: f64, w: f64, fraction: f64) {
     let m = |st: &StripState| st.kappa_max + w * st.axial;
     let (m0, m_end) = (m(&path.state(0.0)), m(&path.state(path.limit().stroke)));
     let target = m0 + (m_end - m0) * fraction;
-    let s = path
-        .stroke_for_linear(1.0, w, target)
-        .unwrap_or_else(|| panic!("{ends:?} g/L {gap} w {w}: value {target} not found"));
+    let found = path.stroke_for_linear(1.0, w, target);
+    let s = found
+        .ok()
+        .unwrap_or_else(|| panic!("{ends:?} g/L {gap} w {w}: value {target}: {found:?}"));
     let got = m(&path.state(s));
     assert!(
         ((got - target) / target).abs() < 1e-9,

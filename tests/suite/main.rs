@@ -1,5 +1,6 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod app;
+mod calibration;
 mod cli;
 mod data_tables;
 mod design_file;
@@ -8,6 +9,10 @@ mod elliptic_reference;
 mod hostile;
 mod inverse_queries;
 mod load_sharing;
+mod map;
+mod readme;
+mod recovery;
+mod scatter;
 mod segment_model;
 mod shared;
 mod sheet;

@@ -6,6 +6,7 @@ use std::f64::consts::PI;
 use bowgrip::analysis;
 use bowgrip::checks;
 use bowgrip::design::{Actuator, Design, Ends, MaterialChoice, Stiffness};
+use bowgrip::elastica::Phase;
 use bowgrip::segment::{Segment, StiffnessUsed, fatigue_strength_mpa};
 use proptest::prelude::*;
 
@@ -15,7 +16,7 @@ fn rel(a: f64, b: f64) -> f64 {
 
 #[test]
 fn gap_uses_edge_contact() {
-    // Mechanics note: a flat strip touches a round bore first with its two edges,
+    // Geometry (common practice): a flat strip touches a round bore first with its two edges,
     // g = sqrt(R^2 - b^2/4) - t/2 - r_m. Worked by hand: R = 35, b = 8, t = 0.2, r_m = 28:
     // sqrt(1225 - 16) - 0.1 - 28 = 6.670677...
     let mut d = Design::default();
@@ -98,8 +99,8 @@ fn goodman_factor_of_the_state() {
 
 #[test]
 fn actuator_mappings() {
-    // Mechanics note, segment level: spool angle delta/r_s, torque N P r_s; lead screw
-    // turns delta/lead, torque N P lead / (2 pi eff).
+    // Statics of the drive (common practice): spool angle delta/r_s, torque N P r_s; lead
+    // screw turns delta/lead, torque N P lead / (2 pi eff).
     let mut d = Design {
         actuator: Actuator::Spool {
             radius_mm: 5.0,
@@ -207,12 +208,17 @@ fn holding_and_stress_strokes_are_where_their_quantities_reach_the_target() {
 
 /// A random valid design: plausible sizes, a gap from slightly positive to past the reach.
 fn design_strategy() -> impl Strategy<Value = Design> {
+    design_strategy_with_gaps(0.005f64..0.45)
+}
+
+/// As [`design_strategy`], with the gap over the free length drawn from `gaps`.
+fn design_strategy_with_gaps(gaps: std::ops::Range<f64>) -> impl Strategy<Value = Design> {
     (
-        2u32..=64,
+        3u32..=64, // design::limits(): 3 to 64 strips
         10.0f64..400.0,
         0.02f64..2.0,
         1.0f64..30.0,
-        0.005f64..0.45,
+        gaps,
         prop::bool::ANY,
         0.5f64..1.5,
         prop::sample::select(vec!["carbon-1095-44hrc", "ss301-full-hard", "17-7ph-ch900"]),
@@ -251,14 +257,14 @@ proptest! {
         let limit = p.limit_stroke_mm();
         prop_assert!(limit.is_finite() && limit > 0.0);
         // On the rare branches that never reach line contact (g/L > 0.32) the contact force
-        // peaks before the note's limit; the solver flags that stroke, and the property is
+        // peaks before the model's limit; the solver flags that stroke, and the property is
         // held up to it.
         let rising_to = p.contact_peak_stroke_mm().unwrap_or(limit).min(limit);
         let mut last_contact = 0.0;
         for i in 0..=40 {
             let stroke = rising_to * f64::from(i) / 40.0;
             let s = p.state(stroke);
-            prop_assert!(s.phase != "beyond-limit", "state at {} of limit {}: {:?}", stroke, limit, s.reason);
+            prop_assert!(s.phase != Phase::BeyondLimit, "state at {} of limit {}: {:?}", stroke, limit, s.reason);
             for v in [s.axial_force_per_strip_n, s.contact_force_per_strip_n, s.max_stress_mpa, s.outer_diameter_mm, s.flat_length_mm] {
                 let v = v.expect("state present");
                 prop_assert!(v.is_finite(), "{:?}", s);
@@ -274,6 +280,92 @@ proptest! {
         let a = analysis::analyse(&d).expect("valid");
         prop_assert_eq!(a.checks.len(), 8);
     }
+}
+
+/// Every state of a sweep has a non-negative contact, radial and holding force.
+fn sweep_never_pulls(d: &Design) -> Result<(), TestCaseError> {
+    let seg = Segment::new(d).expect("the strategy makes valid designs");
+    let p = seg.at_bore(d.bore.diameter_mm).expect("positive gap");
+    // The sweep runs to the actuator's maximum stroke or the limit; take it to the limit.
+    let limit = p.limit_stroke_mm();
+    let states = (0..=120).map(|i| p.state(limit * f64::from(i) / 120.0));
+    for s in p.sweep(64).into_iter().chain(states) {
+        for (what, v) in [
+            ("contact", s.contact_force_per_strip_n),
+            ("radial", s.radial_force_n),
+            ("holding", s.holding_force_n),
+        ] {
+            if let Some(v) = v {
+                prop_assert!(
+                    v >= 0.0,
+                    "{} force {} N at stroke {} mm ({}), g/L {}, limit {} mm ({})",
+                    what,
+                    v,
+                    s.stroke_mm,
+                    s.phase,
+                    p.gap_mm() / d.strip.free_length_mm,
+                    limit,
+                    s.limit_reason
+                );
+            }
+        }
+    }
+    Ok(())
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 48, failure_persistence: None, ..ProptestConfig::default() })]
+
+    /// The wall cannot pull (issue 11, item 10): past the stroke where the contact force
+    /// falls back to zero the strips leave the wall, so no state of any sweep reports a
+    /// negative contact, radial or holding force (the sign is physics, no outside source
+    /// needed: a wall pushes and never pulls).
+    #[test]
+    fn no_sweep_reports_a_pulling_wall(d in design_strategy()) {
+        sweep_never_pulls(&d)?;
+    }
+
+    /// The same at g/L 0.37 to 0.405, near the highest free crest (0.40314, the mpmath
+    /// reference in tests/reference), where the point branch without line contact turns back.
+    #[test]
+    fn no_sweep_near_the_highest_crest_reports_a_pulling_wall(
+        d in design_strategy_with_gaps(0.37f64..0.405)
+    ) {
+        sweep_never_pulls(&d)?;
+    }
+}
+
+/// Where the contact force falls back to zero the model stops with its own reason, and
+/// the state there reads a contact force of zero, not below it.
+#[test]
+fn strips_leave_the_wall_near_the_highest_crest() {
+    use bowgrip::elastica::{LimitReason, Path};
+    let mut seen = 0;
+    for ends in [Ends::Clamped, Ends::Hinged] {
+        for i in 0..=20 {
+            let gap = 0.385 + 0.015 * f64::from(i) / 20.0;
+            let Ok(path) = Path::new(ends, gap) else {
+                continue;
+            };
+            if path.first_contact_stroke().is_none() {
+                continue;
+            }
+            let limit = path.limit();
+            if limit.reason == LimitReason::LeavesWall {
+                seen += 1;
+                let s = path.state(limit.stroke);
+                assert_eq!(s.phase, Phase::PointContact, "{ends:?} g/L {gap}");
+                assert!(s.contact >= 0.0, "{ends:?} g/L {gap}: {}", s.contact);
+                // The contact force did peak on the way (it falls back to zero).
+                let peak = path.peaks().contact.expect("a contact peak");
+                assert!(peak < limit.stroke && path.state(peak).contact > 0.0);
+            }
+        }
+    }
+    assert!(
+        seen > 0,
+        "no path between g/L 0.385 and 0.40 leaves the wall"
+    );
 }
 
 #[test]

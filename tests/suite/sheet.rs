@@ -157,7 +157,7 @@ fn content_hash_is_sha256_and_dates_are_civil() {
 #[test]
 fn pdf_parses_with_the_paper_size_and_the_laid_out_page_count() {
     let d = Design::default();
-    let bytes = design::to_ron(&d);
+    let bytes = design::to_ron(&d).expect("writes RON");
     for (paper, size) in [(Paper::A4, A4_PT), (Paper::Letter, LETTER_PT)] {
         let laid = sheet::layout(&d, "demo.ron", bytes.as_bytes(), paper).expect("lays out");
         let pdf = sheet::render(&d, "demo.ron", bytes.as_bytes(), paper).expect("renders");
@@ -186,7 +186,7 @@ fn pdf_parses_with_the_paper_size_and_the_laid_out_page_count() {
 #[test]
 fn extracted_text_carries_the_solver_values_as_printed() {
     let d = Design::default();
-    let bytes = design::to_ron(&d);
+    let bytes = design::to_ron(&d).expect("writes RON");
     let pdf = sheet::render(&d, "demo.ron", bytes.as_bytes(), Paper::A4).expect("renders");
     let (_, text) = pdf_text(&pdf);
     let a = analyse(&d).expect("analyses");
@@ -320,7 +320,7 @@ fn assert_inside(name: &str, laid: &SheetLayout) {
 #[test]
 fn every_section_and_line_fits_the_printable_area_on_both_papers() {
     for (name, d) in designs() {
-        let bytes = design::to_ron(&d);
+        let bytes = design::to_ron(&d).expect("writes RON");
         for paper in [Paper::A4, Paper::Letter] {
             let laid = sheet::layout_dated(
                 &d,

@@ -1,0 +1,678 @@
+//! Bench data and calibration: the least-squares engine on NIST's reference datasets, the
+//! recovery of known factors from synthetic bench data, malformed measurement files, the
+//! sample bench file, and the `compare` command.
+//!
+//! Sources:
+//! - NIST Statistical Reference Datasets (StRD), nonlinear regression: the `.dat` files in
+//!   `tests/reference/nist/` (copies of NIST's files, see the README there), parsed here;
+//!   certified parameters and standard deviations come from the files themselves.
+//! - Synthetic data: made by the model with known factors plus seeded normal noise; the
+//!   expectations are those of least squares with normal errors (an estimate lies within
+//!   two standard errors of the truth in about 95 % of cases; standard errors go as
+//!   `1 / sqrt(n)`; common practice, e.g. JCGM 100:2008 and any regression text).
+
+use std::fs;
+use std::path::{Path, PathBuf};
+
+use assert_cmd::Command;
+use bowgrip::bench_data::{self, BenchData, Measurement, Quantity};
+use bowgrip::calibrate::{self, CalibrationError, Factor, Factors, Residuals};
+use bowgrip::design::{self, Design};
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+// ---------------------------------------------------------------------------------------
+// NIST StRD.
+
+/// One NIST StRD nonlinear-regression file.
+struct Nist {
+    starts: [Vec<f64>; 2],
+    certified: Vec<f64>,
+    certified_sd: Vec<f64>,
+    certified_ssr: f64,
+    x: Vec<f64>,
+    y: Vec<f64>,
+}
+
+fn numbers(line: &str) -> Vec<f64> {
+    line.split_whitespace()
+        .filter_map(|w| w.parse::<f64>().ok())
+        .collect()
+}
+
+/// Reads the parameter lines (`b1 = start1 start2 certified sd`), the residual sum of
+/// squares and the data block (`y x` pairs after the second line starting `Data:`).
+fn read_nist(name: &str) -> Nist {
+    let path = root()
+        .join("tests/reference/nist")
+        .join(format!("{name}.dat"));
+    let text = fs::read_to_string(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+    let mut starts = [Vec::new(), Vec::new()];
+    let (mut certified, mut certified_sd) = (Vec::new(), Vec::new());
+    let mut certified_ssr = f64::NAN;
+    let (mut x, mut y) = (Vec::new(), Vec::new());
+    let mut data_headers = 0;
+    for line in text.lines() {
+        let t = line.trim();
+        if t.starts_with("Data:") {
+            data_headers += 1;
+            continue;
+        }
+        if data_headers >= 2 {
+            let v = numbers(t);
+            if v.len() == 2 {
+                y.push(v[0]);
+                x.push(v[1]);
+            }
+            continue;
+        }
+        if let Some(rest) = t.strip_prefix("Residual Sum of Squares:") {
+            certified_ssr = numbers(rest)[0];
+        }
+        let is_param = t.starts_with('b') && t.contains('=');
+        if is_param {
+            let v = numbers(t.split_once('=').map_or("", |p| p.1));
+            assert_eq!(v.len(), 4, "{name}: parameter line {t:?}");
+            starts[0].push(v[0]);
+            starts[1].push(v[1]);
+            certified.push(v[2]);
+            certified_sd.push(v[3]);
+        }
+    }
+    assert!(!x.is_empty() && certified_ssr.is_finite(), "{name}: parsed");
+    Nist {
+        starts,
+        certified,
+        certified_sd,
+        certified_ssr,
+        x,
+        y,
+    }
+}
+
+/// `y - f(b, x)` for one of NIST's model functions.
+struct NistModel<'a> {
+    data: &'a Nist,
+    f: fn(&[f64], f64) -> f64,
+}
+
+impl Residuals for NistModel<'_> {
+    fn residuals(&self, b: &[f64]) -> Option<Vec<f64>> {
+        Some(
+            self.data
+                .x
+                .iter()
+                .zip(&self.data.y)
+                .map(|(&x, &y)| y - (self.f)(b, x))
+                .collect(),
+        )
+    }
+}
+
+/// Fits a dataset from both of NIST's starting points and holds the results to the
+/// certified values: parameters to 6 significant digits, standard deviations to 3
+/// (relative differences of at most 1e-6 and 1e-3; the StRD's "log relative error"
+/// measure, NIST StRD nonlinear regression background notes), residual sum of squares to 6.
+fn check_nist(name: &str, f: fn(&[f64], f64) -> f64) {
+    let data = read_nist(name);
+    let model = NistModel { data: &data, f };
+    for (k, start) in data.starts.iter().enumerate() {
+        let fit = calibrate::least_squares(&model, start, None)
+            .unwrap_or_else(|e| panic!("{name} from start {}: {e}", k + 1));
+        for i in 0..start.len() {
+            let (p, c) = (fit.params[i], data.certified[i]);
+            assert!(
+                ((p - c) / c).abs() <= 1e-6,
+                "{name} start {}: b{} = {p:e}, certified {c:e}",
+                k + 1,
+                i + 1
+            );
+            let (s, cs) = (fit.standard_errors[i], data.certified_sd[i]);
+            assert!(
+                ((s - cs) / cs).abs() <= 1e-3,
+                "{name} start {}: sd(b{}) = {s:e}, certified {cs:e}",
+                k + 1,
+                i + 1
+            );
+        }
+        let ssr = fit.residual_sum_of_squares;
+        assert!(
+            ((ssr - data.certified_ssr) / data.certified_ssr).abs() <= 1e-6,
+            "{name} start {}: SSR {ssr:e}, certified {:e}",
+            k + 1,
+            data.certified_ssr
+        );
+    }
+}
+
+#[test]
+fn nist_misra1a_lower_difficulty() {
+    // NIST StRD Misra1a (lower difficulty): y = b1 (1 - exp(-b2 x)).
+    check_nist("Misra1a", |b, x| b[0] * (1.0 - (-b[1] * x).exp()));
+}
+
+#[test]
+fn nist_thurber_higher_difficulty() {
+    // NIST StRD Thurber (higher difficulty): a cubic over a cubic in x.
+    check_nist("Thurber", |b, x| {
+        let (x2, x3) = (x * x, x * x * x);
+        (b[0] + b[1] * x + b[2] * x2 + b[3] * x3) / (1.0 + b[4] * x + b[5] * x2 + b[6] * x3)
+    });
+}
+
+#[test]
+fn nist_eckerle4_higher_difficulty() {
+    // NIST StRD Eckerle4 (higher difficulty): y = (b1/b2) exp(-((x - b3)/b2)^2 / 2).
+    check_nist("Eckerle4", |b, x| {
+        (b[0] / b[1]) * (-0.5 * ((x - b[2]) / b[1]).powi(2)).exp()
+    });
+}
+
+// ---------------------------------------------------------------------------------------
+// Synthetic bench data.
+
+/// splitmix64 (S. Vigna's generator, common practice for seeding): reproducible on every
+/// machine, and the Box-Muller transform for standard normal draws.
+struct Noise(u64);
+
+impl Noise {
+    fn uniform(&mut self) -> f64 {
+        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+        z ^= z >> 31;
+        ((z >> 11) as f64 + 0.5) / (1u64 << 53) as f64
+    }
+
+    fn normal(&mut self) -> f64 {
+        let (u, v) = (self.uniform(), self.uniform());
+        (-2.0 * u.ln()).sqrt() * (2.0 * std::f64::consts::PI * v).cos()
+    }
+}
+
+fn riser() -> Design {
+    let path = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    design::load(&path).unwrap_or_else(|e| panic!("{}", e.in_file(&path)))
+}
+
+/// The factors the synthetic data (and the sample bench file) are made with.
+fn truth(design: &Design) -> Factors {
+    Factors {
+        modulus_factor: 0.93,
+        stroke_offset_mm: 0.12,
+        free_length_mm: design.strip.free_length_mm - 2.5,
+        friction: 0.36,
+    }
+}
+
+/// Noise levels: diameter 0.02 mm, forces 1 N (invented bench resolution).
+const SIGMA_DIAMETER_MM: f64 = 0.02;
+const SIGMA_FORCE_N: f64 = 1.0;
+
+/// A bore far larger than the segment: the strips never touch, as on a bench in free air.
+const FREE_AIR_BORE_MM: f64 = 1000.0;
+
+/// Synthetic rows, `per_block` strokes in each of two blocks: in free air (diameter and
+/// pull) from 0.4 to 6 mm, and in the design's nominal bore (pull and slip force) from
+/// 1.1 to 1.75 mm, between first contact (about 0.92 mm with these factors) and the
+/// model's limit (about 1.8 mm). Values are the model's with `truth` applied plus
+/// normal noise; with `noise = false` they are exact.
+fn synthetic(design: &Design, per_block: usize, seed: u64, noise: bool) -> BenchData {
+    let f = truth(design);
+    let seg = calibrate::segment_with(design, &f).expect("truth segment");
+    let mut rng = Noise(seed);
+    let mut draw = |sigma: f64| if noise { sigma * rng.normal() } else { 0.0 };
+    let mut rows = Vec::new();
+    let free = seg.at_bore(FREE_AIR_BORE_MM).expect("free air");
+    let bore = seg.at_bore(seg.bore_nominal_mm).expect("nominal bore");
+    let step = |i: usize, a: f64, b: f64| a + (b - a) * i as f64 / (per_block - 1) as f64;
+    for i in 0..per_block {
+        let stroke = step(i, 0.4, 6.0);
+        let s = free.state(stroke + f.stroke_offset_mm);
+        assert_eq!(s.phase, bowgrip::elastica::Phase::Free, "stroke {stroke}");
+        rows.push(Measurement {
+            line: rows.len() + 2,
+            stroke_mm: stroke,
+            bore_mm: Some(FREE_AIR_BORE_MM),
+            outer_diameter_mm: s.outer_diameter_mm.map(|v| v + draw(SIGMA_DIAMETER_MM)),
+            actuator_force_n: s.actuator_force_n.map(|v| v + draw(SIGMA_FORCE_N)),
+            slip_force_n: None,
+        });
+    }
+    for i in 0..per_block {
+        let stroke = step(i, 1.1, 1.75);
+        let s = bore.state(stroke + f.stroke_offset_mm);
+        assert!(
+            s.contact_force_per_strip_n.is_some_and(|c| c > 0.0),
+            "stroke {stroke}"
+        );
+        rows.push(Measurement {
+            line: rows.len() + 2,
+            stroke_mm: stroke,
+            bore_mm: None,
+            outer_diameter_mm: None,
+            actuator_force_n: s.actuator_force_n.map(|v| v + draw(SIGMA_FORCE_N)),
+            slip_force_n: s.holding_force_n.map(|v| v + draw(SIGMA_FORCE_N)),
+        });
+    }
+    BenchData {
+        rows,
+        decimal_comma: false,
+    }
+}
+
+#[test]
+fn synthetic_data_without_noise_gives_the_factors_back() {
+    // Exact data made with known factors: the fit must return them (to the iteration's
+    // tolerance), and the residuals vanish.
+    let d = riser();
+    let data = synthetic(&d, 12, 1, false);
+    let c = calibrate::calibrate(&d, &data, &Factor::ALL).expect("fit");
+    let t = truth(&d);
+    for f in &c.fitted {
+        let want = t.get(f.factor);
+        assert!(
+            (f.value - want).abs() <= 1e-5 * want.abs().max(1.0),
+            "{}: {} against {want}",
+            f.factor,
+            f.value
+        );
+    }
+}
+
+#[test]
+fn synthetic_factors_are_recovered_within_two_standard_errors() {
+    // Least squares with normal noise: each estimate within two standard errors of the
+    // truth (95 % each; fixed seeds, so the outcome is reproducible). Three seeds.
+    let d = riser();
+    let t = truth(&d);
+    for seed in [11, 12, 13] {
+        let data = synthetic(&d, 20, seed, true);
+        let c = calibrate::calibrate(&d, &data, &Factor::ALL)
+            .unwrap_or_else(|e| panic!("seed {seed}: {e}"));
+        assert_eq!(c.fitted.len(), 4);
+        for f in &c.fitted {
+            let want = t.get(f.factor);
+            assert!(
+                f.standard_error > 0.0 && (f.value - want).abs() <= 2.0 * f.standard_error,
+                "seed {seed}: {} = {} +/- {}, truth {want}",
+                f.factor,
+                f.value,
+                f.standard_error
+            );
+        }
+        // The correlation matrix: unit diagonal, symmetric, entries within [-1, 1].
+        for i in 0..4 {
+            assert!((c.correlation[i][i] - 1.0).abs() < 1e-9);
+            for j in 0..4 {
+                assert!((c.correlation[i][j] - c.correlation[j][i]).abs() < 1e-9);
+                assert!(c.correlation[i][j].abs() <= 1.0 + 1e-9);
+            }
+        }
+    }
+}
+
+/// Keeps only one measured column of synthetic data.
+fn only(data: &BenchData, q: Quantity) -> BenchData {
+    BenchData {
+        rows: data
+            .rows
+            .iter()
+            .filter(|r| r.value(q).is_some())
+            .map(|r| Measurement {
+                outer_diameter_mm: (q == Quantity::OuterDiameter)
+                    .then_some(r.outer_diameter_mm)
+                    .flatten(),
+                actuator_force_n: (q == Quantity::ActuatorForce)
+                    .then_some(r.actuator_force_n)
+                    .flatten(),
+                slip_force_n: (q == Quantity::SlipForce)
+                    .then_some(r.slip_force_n)
+                    .flatten(),
+                ..r.clone()
+            })
+            .collect(),
+        decimal_comma: false,
+    }
+}
+
+#[test]
+fn standard_errors_shrink_as_one_over_root_n() {
+    // Four times the points over the same strokes: about half the standard error
+    // (1/sqrt(4)). One measured column per fit, so the standard error is s (J^T J)^-1/2
+    // with one noise estimate s, which itself scatters by some 10 % at these counts,
+    // hence the band. Stiffness, offset and length from the pulls; friction from the
+    // pull-out forces (the other factors at their true values there).
+    let d = riser();
+    let (few, many) = (synthetic(&d, 15, 21, true), synthetic(&d, 60, 22, true));
+    let pull = [Factor::Modulus, Factor::Offset, Factor::Length];
+    let mut t = truth(&d);
+    t.friction = d.friction;
+    let mut with_truth = d.clone();
+    with_truth.strip.free_length_mm = t.free_length_mm;
+    for (q, fit, design) in [
+        (Quantity::ActuatorForce, &pull[..], &d),
+        (Quantity::SlipForce, &[Factor::Friction][..], &with_truth),
+    ] {
+        let a = calibrate::calibrate(design, &only(&few, q), fit).expect("15 a block");
+        let b = calibrate::calibrate(design, &only(&many, q), fit).expect("60 a block");
+        for (a, b) in a.fitted.iter().zip(&b.fitted) {
+            let ratio = b.standard_error / a.standard_error;
+            assert!(
+                (0.4..=0.6).contains(&ratio),
+                "{}: {} -> {} (ratio {ratio})",
+                a.factor,
+                a.standard_error,
+                b.standard_error
+            );
+        }
+    }
+}
+
+#[test]
+fn factors_the_columns_cannot_tell_are_refused() {
+    let d = riser();
+    let data = synthetic(&d, 8, 3, true);
+    // Diameters alone: the modulus does not change a shape (the model is displacement
+    // driven, forces scale with E and shapes do not: Timoshenko and Gere, the elastica).
+    let diameters_only = BenchData {
+        rows: data
+            .rows
+            .iter()
+            .filter(|r| r.outer_diameter_mm.is_some())
+            .map(|r| Measurement {
+                actuator_force_n: None,
+                ..r.clone()
+            })
+            .collect(),
+        decimal_comma: false,
+    };
+    assert!(matches!(
+        calibrate::calibrate(&d, &diameters_only, &[Factor::Modulus]),
+        Err(CalibrationError::NotIdentifiable {
+            factor: Factor::Modulus,
+            ..
+        })
+    ));
+    assert!(matches!(
+        calibrate::calibrate(&d, &diameters_only, &[Factor::Friction]),
+        Err(CalibrationError::NotIdentifiable {
+            factor: Factor::Friction,
+            ..
+        })
+    ));
+    // Slip forces alone: friction and modulus both scale them (slip = mu N F, F ~ E).
+    let slip_only = BenchData {
+        rows: data
+            .rows
+            .iter()
+            .filter(|r| r.slip_force_n.is_some())
+            .map(|r| Measurement {
+                actuator_force_n: None,
+                ..r.clone()
+            })
+            .collect(),
+        decimal_comma: false,
+    };
+    assert!(matches!(
+        calibrate::calibrate(&d, &slip_only, &[Factor::Modulus, Factor::Friction]),
+        Err(CalibrationError::NotIdentifiable { .. })
+    ));
+    assert!(matches!(
+        calibrate::calibrate(&d, &data, &[]),
+        Err(CalibrationError::NothingToFit)
+    ));
+}
+
+#[test]
+fn nominal_factors_leave_the_model_as_it_is() {
+    // Without calibration nothing changes: the nominal factors give the segment exactly
+    // as `Segment::new` makes it (bit for bit), so every existing output stays.
+    let d = riser();
+    let seg = bowgrip::segment::Segment::new(&d).expect("segment");
+    let same = calibrate::segment_with(&d, &Factors::nominal(&d)).expect("segment");
+    assert_eq!(seg, same);
+}
+
+// ---------------------------------------------------------------------------------------
+// Malformed measurement files.
+
+fn refused_at(text: &str) -> ((usize, usize), String) {
+    match bench_data::parse(text) {
+        Ok(_) => panic!("accepted: {text:?}"),
+        Err(e) => (e.position().unwrap_or((0, 0)), e.to_string()),
+    }
+}
+
+#[test]
+fn malformed_measurement_files_are_refused_with_line_and_column() {
+    // The issue: "Refuse a malformed file with line and column". Positions 1-based, in
+    // characters.
+    let cases: &[(&str, (usize, usize), &str)] = &[
+        // An unknown column name, where it starts.
+        ("stroke_mm, force\n1,2\n", (1, 12), "unknown column"),
+        // No stroke column.
+        ("outer_diameter_mm\n40\n", (1, 1), "stroke_mm"),
+        // A repeated column.
+        (
+            "stroke_mm,slip_force_n,slip_force_n\n1,2,3\n",
+            (1, 24),
+            "twice",
+        ),
+        // A word where a number belongs (line 4 after a comment and a blank line).
+        (
+            "# log\nstroke_mm,actuator_force_n\n\n1.0,twelve\n",
+            (4, 5),
+            "not a number",
+        ),
+        // Too few fields: the column just past the last one.
+        (
+            "stroke_mm,outer_diameter_mm,actuator_force_n\n1.0,40.2\n",
+            (2, 9),
+            "expected 3 fields",
+        ),
+        // A decimal comma the file did not declare.
+        (
+            "stroke_mm,outer_diameter_mm\n1,5,40\n",
+            (2, 5),
+            "decimal comma",
+        ),
+        // A value out of its range, and a non-finite one.
+        ("stroke_mm,slip_force_n\n-0.5,3\n", (2, 1), "allowed range"),
+        ("stroke_mm,slip_force_n\n0.5,inf\n", (2, 5), "not a number"),
+        // The directive after the header.
+        (
+            "stroke_mm,slip_force_n\n# decimal: comma\n1;2\n",
+            (2, 1),
+            "before the header",
+        ),
+        // Header only.
+        ("stroke_mm,slip_force_n\n", (2, 1), "no data rows"),
+    ];
+    for (text, at, needle) in cases {
+        let (pos, msg) = refused_at(text);
+        assert_eq!(pos, *at, "{text:?}: {msg}");
+        assert!(msg.contains(needle), "{text:?}: {msg:?} lacks {needle:?}");
+    }
+}
+
+#[test]
+fn oversized_and_non_regular_files_are_refused() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let big = dir.path().join("big.csv");
+    let mut text = String::from("stroke_mm,slip_force_n\n");
+    while (text.len() as u64) <= bench_data::MAX_FILE_BYTES {
+        text.push_str("1.0,2.0\n");
+    }
+    fs::write(&big, &text).expect("write");
+    assert!(matches!(
+        bench_data::load(&big),
+        Err(bench_data::BenchError::TooLarge { .. })
+    ));
+    assert!(matches!(
+        bench_data::load(dir.path()),
+        Err(bench_data::BenchError::NotAFile { .. })
+    ));
+}
+
+// ---------------------------------------------------------------------------------------
+// The sample bench file.
+
+const SAMPLE_BENCH: &str = "sample-designs/riser-climber-2in-sch40.bench.csv";
+
+/// The sample's text: the synthetic rows (8 strokes a block, seed 2026) as CSV, rounded
+/// to the resolution of the invented bench (0.001 mm, 0.01 N).
+fn sample_text(design: &Design) -> String {
+    let t = truth(design);
+    let data = synthetic(design, 8, 2026, true);
+    let mut s = format!(
+        "# Invented bench data for sample-designs/riser-climber-2in-sch40.ron, not a\n\
+         # measurement. Made by bowgrip's model with known factors: modulus factor {},\n\
+         # stroke offset {} mm, free length {} mm, friction {}; plus seeded normal noise\n\
+         # (standard deviation {SIGMA_DIAMETER_MM} mm on diameters, {SIGMA_FORCE_N} N on forces;\n\
+         # tests/suite/calibration.rs writes and checks it). Rows with bore_mm = {FREE_AIR_BORE_MM}\n\
+         # stand for free air (calipers over the strips); the others are in the riser's\n\
+         # nominal bore.\n\
+         # Caution: loaded strips store energy and can snap, the end plates pinch fingers;\n\
+         # test behind a guard, and follow local codes and licensed practice.\n\
+         stroke_mm,outer_diameter_mm,actuator_force_n,slip_force_n,bore_mm\n",
+        t.modulus_factor, t.stroke_offset_mm, t.free_length_mm, t.friction
+    );
+    let cell = |v: Option<f64>, d: usize| v.map(|v| format!("{v:.d$}")).unwrap_or_default();
+    for r in &data.rows {
+        s.push_str(&format!(
+            "{:.3},{},{},{},{}\n",
+            r.stroke_mm,
+            cell(r.outer_diameter_mm, 3),
+            cell(r.actuator_force_n, 2),
+            cell(r.slip_force_n, 2),
+            cell(r.bore_mm, 1),
+        ));
+    }
+    s
+}
+
+#[test]
+fn sample_bench_file_is_what_its_header_says() {
+    // The header states the factors and the noise the file was made with; made again
+    // here, every value agrees to within its rounding (half a unit of the last digit) and
+    // a margin for changes in the solver's last digits. BOWGRIP_WRITE_SAMPLE=1 writes it.
+    let d = riser();
+    let want = sample_text(&d);
+    let path = root().join(SAMPLE_BENCH);
+    if std::env::var_os("BOWGRIP_WRITE_SAMPLE").is_some() {
+        fs::write(&path, &want).expect("write sample");
+    }
+    let have = bench_data::load(&path).unwrap_or_else(|e| panic!("{}", e.in_file(&path)));
+    let made = bench_data::parse(&want).expect("generated text parses");
+    assert_eq!(have.rows.len(), made.rows.len());
+    for (a, b) in have.rows.iter().zip(&made.rows) {
+        for q in Quantity::ALL {
+            match (a.value(q), b.value(q)) {
+                (Some(x), Some(y)) => assert!((x - y).abs() <= 0.006, "line {}: {x} {y}", a.line),
+                (x, y) => assert_eq!(x, y, "line {}", a.line),
+            }
+        }
+    }
+    let text = fs::read_to_string(&path).expect("read sample");
+    assert!(text.contains("Invented") && text.contains("Caution:"));
+}
+
+// ---------------------------------------------------------------------------------------
+// The command.
+
+fn bowgrip() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_bowgrip"))
+}
+
+fn s(p: &Path) -> &str {
+    p.to_str().expect("utf-8 path")
+}
+
+#[test]
+fn compare_json_has_the_contract_keys() {
+    // The contract: `fitted` ({value, standard_error} per factor key), `correlation`
+    // (matrix in the order modulus, offset, length, friction), `residuals` ({rms, max,
+    // points} per measured column).
+    let design = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let bench = root().join(SAMPLE_BENCH);
+    let out = bowgrip()
+        .args(["compare", s(&design), "--measured", s(&bench)])
+        .args(["--fit", "friction,modulus", "--json"])
+        .output()
+        .expect("run");
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("one JSON object");
+    let fitted = v["fitted"].as_object().expect("fitted");
+    let keys: Vec<&str> = fitted.keys().map(String::as_str).collect();
+    assert_eq!(keys.len(), 2);
+    for key in ["modulus_factor", "friction"] {
+        assert!(fitted[key]["value"].is_f64() && fitted[key]["standard_error"].is_f64());
+    }
+    assert_eq!(
+        v["correlation_order"],
+        serde_json::json!(["modulus_factor", "friction"])
+    );
+    let corr = v["correlation"].as_array().expect("matrix");
+    assert_eq!(corr.len(), 2);
+    for column in ["outer_diameter_mm", "actuator_force_n", "slip_force_n"] {
+        let r = &v["residuals"][column];
+        assert!(r["rms"].is_f64() && r["max"].is_f64(), "{column}: {r}");
+        // Diameters and slip forces in one block of 8 rows each, pulls in both.
+        let want = if column == "actuator_force_n" { 16 } else { 8 };
+        assert_eq!(r["points"], want, "{column}");
+    }
+}
+
+#[test]
+fn compare_table_and_bad_input() {
+    let design = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let bench = root().join(SAMPLE_BENCH);
+    let out = bowgrip()
+        .args(["compare", s(&design), "--measured", s(&bench)])
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(0));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("outer_diameter_mm") && text.contains("Caution"),
+        "{text}"
+    );
+
+    // Bad input: exit 2 and one line on stderr (the project's contract), naming the place.
+    let dir = tempfile::tempdir().expect("temp dir");
+    let bad = dir.path().join("bad.csv");
+    fs::write(&bad, "stroke_mm,actuator_force_n\n1.0,x\n").expect("write");
+    for args in [
+        vec!["compare", s(&design), "--measured", s(&bad)],
+        vec![
+            "compare",
+            s(&design),
+            "--measured",
+            s(&bench),
+            "--fit",
+            "stiffness",
+        ],
+        vec!["compare", s(&design), "--measured", s(dir.path())],
+    ] {
+        let out = bowgrip().args(&args).output().expect("run");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        assert!(out.stdout.is_empty(), "{args:?}");
+        assert_eq!(err.lines().count(), 1, "{args:?}: {err}");
+    }
+    let out = bowgrip()
+        .args(["compare", s(&design), "--measured", s(&bad)])
+        .output()
+        .expect("run");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("bad.csv:2:5:"), "{err}");
+}
