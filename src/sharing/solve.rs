@@ -2,8 +2,9 @@
 //! or a gap on the load line) keep the offset on the load line: a bracketed one-dimensional
 //! root of the vertical force balance, which rises with the offset because a gap that
 //! shrinks raises its force. Mirror pairs of strips share one strip solve. Unequal strips
-//! take both components: a damped Newton with a finite-difference Jacobian, and on the
-//! rest support a bracketed root of the tangential balance along the rim's reach. Every
+//! take both components: nested bracketed roots (the horizontal balance inside, the
+//! vertical outside), and on the rest support a bracketed root of the tangential balance
+//! along the rim's reach. Every
 //! loop has a bound and every failure a [`SolveFailure`].
 
 use std::f64::consts::PI;
@@ -14,8 +15,6 @@ use super::{BoreStrokes, LoadedBore, SharedState, SolveFailure, Totals};
 
 /// Iteration bound of the one-dimensional root.
 const MAX_ITER_1D: usize = 200;
-/// Iteration bound of the two-dimensional Newton.
-const MAX_ITER_2D: usize = 60;
 /// Scan points along the stroke for the bore-level strokes.
 const SCAN: usize = 24;
 /// Bisection steps refining a bore-level stroke.
@@ -24,6 +23,23 @@ const BISECT: usize = 48;
 /// On the wall at one normal angle: the tangential balance with the residual (`None` past
 /// a limit), the hub offset and the evaluation.
 type WallPoint = (Option<(f64, [f64; 2])>, [f64; 2], Eval);
+
+/// The inner root's answer at one height.
+struct Inner {
+    z: f64,
+    /// The full residual where every strip has a state.
+    r: Option<[f64; 2]>,
+    e: Eval,
+    /// The balance needs the wall: `z` is at the end of the reach.
+    clamped: bool,
+}
+
+/// The outer root's value at one height.
+struct Outer {
+    y: f64,
+    g: f64,
+    inner: Inner,
+}
 
 /// One evaluation of every strip at a hub offset.
 struct Eval {
@@ -329,109 +345,294 @@ impl LoadedBore<'_> {
         self.bore.contains(d) && self.bore.distance_inside(d) >= self.rim_radius_mm
     }
 
-    fn solve_2d(&self, stroke_mm: f64) -> Result<SharedState, SolveFailure> {
-        let mut evaluations = 0;
-        let w = self.loading.radial_load_n;
-        let mut d = [0.0, 0.0];
-        let h = 1e-7 * self.bore_mm;
-        let norm = |r: [f64; 2]| r[0].hypot(r[1]);
-        let mut on_wall = false;
-        let mut tried_wall = false;
-        for _ in 0..MAX_ITER_2D {
-            evaluations += 1;
-            let (r, e) = self.residual_2d(d, stroke_mm)?;
-            let Some(r) = r else {
-                return Ok(self.beyond(stroke_mm, d, evaluations));
-            };
-            let all_free = e.strips.iter().all(|(_, s)| s.contact == 0.0);
-            if w == 0.0 && all_free {
-                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
-            }
-            if norm(r) <= self.tolerance_n(&e) {
-                return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
-            }
-            // Jacobian by one-sided differences (the other side where one is past a limit).
-            let mut jac = [[0.0; 2]; 2];
-            for col in 0..2 {
-                let mut column = None;
-                for step in [h, -h] {
-                    evaluations += 1;
-                    let mut dh = d;
-                    dh[col] += step;
-                    if let (Some(rh), _) = self.residual_2d(dh, stroke_mm)? {
-                        column = Some([(rh[0] - r[0]) / step, (rh[1] - r[1]) / step]);
-                        break;
-                    }
-                }
-                let Some(column) = column else {
-                    return Ok(self.beyond(stroke_mm, d, evaluations));
-                };
-                jac[0][col] = column[0];
-                jac[1][col] = column[1];
-            }
-            let det = jac[0][0] * jac[1][1] - jac[0][1] * jac[1][0];
-            if !(det.is_finite() && det.abs() > 0.0) {
-                on_wall = true;
-                break;
-            }
-            let step = [
-                -(jac[1][1] * r[0] - jac[0][1] * r[1]) / det,
-                -(-jac[1][0] * r[0] + jac[0][0] * r[1]) / det,
-            ];
-            let full = [d[0] + step[0], d[1] + step[1]];
-            if !tried_wall && !self.rim_clears(full) {
-                // The step heads through the wall: the hub may rest on it. A rest with the
-                // support pushing is the equilibrium; if the support would have to pull,
-                // the equilibrium is inside and the damped steps go on.
-                tried_wall = true;
-                match self.solve_on_wall(stroke_mm, evaluations) {
-                    Err(SolveFailure::NoRestBalance { .. }) => {}
-                    other => return other,
-                }
-            }
-            let mut lambda = 1.0;
-            let mut accepted = false;
-            for _ in 0..40 {
-                let trial = [d[0] + lambda * step[0], d[1] + lambda * step[1]];
-                if !self.rim_clears(trial) {
-                    lambda *= 0.5;
-                    on_wall = true;
-                    continue;
-                }
-                evaluations += 1;
-                let (rt, _) = self.residual_2d(trial, stroke_mm)?;
-                if let Some(rt) = rt
-                    && norm(rt) < (1.0 - 0.25 * lambda) * norm(r)
-                {
-                    d = trial;
-                    accepted = true;
-                    on_wall = false;
-                    break;
-                }
-                lambda *= 0.5;
-            }
-            if !accepted {
-                if on_wall {
-                    break;
-                }
-                // No step along Newton's direction lowers the residual: at the rounding
-                // floor the point is the state; otherwise the residual has a kink here
-                // (a strip's two edges tie) and the Newton iteration stalls.
-                if norm(r) <= 1e3 * self.tolerance_n(&e) {
-                    return Ok(self.assemble_eval(stroke_mm, d, &e, [0.0, 0.0], evaluations));
-                }
-                return Err(SolveFailure::Stalled {
-                    stroke_mm,
-                    residual_n: norm(r),
-                });
+    /// Half the width along `z` of the rim centre's reach at height `y`, mm (bisection on
+    /// the rim's clearance; the reach is convex and symmetric about `z = 0`).
+    fn reach_z(&self, y: f64) -> f64 {
+        if !self.rim_clears([y, 0.0]) {
+            return 0.0;
+        }
+        let (mut lo, mut hi) = (0.0, self.bore.a_z);
+        for _ in 0..BISECT {
+            let mid = 0.5 * (lo + hi);
+            if self.rim_clears([y, mid]) {
+                lo = mid;
+            } else {
+                hi = mid;
             }
         }
-        if on_wall {
-            return self.solve_on_wall(stroke_mm, evaluations);
+        lo
+    }
+
+    /// The force balance at `d` for the nested roots: the residual when every strip has a
+    /// state, else +inf / -inf along component `comp` when all strips past their limit lie
+    /// on its positive / negative side (NaN when they lie on both, or across it).
+    fn signed_residual(
+        &self,
+        d: [f64; 2],
+        stroke_mm: f64,
+        comp: usize,
+    ) -> Result<(f64, Option<[f64; 2]>, Eval), SolveFailure> {
+        let (r, e) = self.residual_2d(d, stroke_mm)?;
+        if let Some(r) = r {
+            return Ok((r[comp], Some(r), e));
+        }
+        let v = self.beyond_sign(&e, comp);
+        Ok((v, None, e))
+    }
+
+    /// Where the strips past their limit push along component `comp`: +inf / -inf when all
+    /// of them that lie off the perpendicular line are on its positive / negative side, NaN
+    /// when they lie on both sides or none is off it.
+    fn beyond_sign(&self, e: &Eval, comp: usize) -> f64 {
+        let off: Vec<f64> = e
+            .beyond
+            .iter()
+            .map(|&i| self.places[i].u[comp])
+            .filter(|u| u.abs() > 1e-12)
+            .collect();
+        if off.is_empty() {
+            f64::NAN
+        } else if off.iter().all(|&u| u > 0.0) {
+            f64::INFINITY
+        } else if off.iter().all(|&u| u < 0.0) {
+            f64::NEG_INFINITY
+        } else {
+            f64::NAN
+        }
+    }
+
+    /// Inner root: the `z` balancing the horizontal force at height `y`, from `z0`.
+    fn inner_z(
+        &self,
+        y: f64,
+        z0: f64,
+        stroke_mm: f64,
+        count: &mut usize,
+    ) -> Result<Inner, SolveFailure> {
+        let zm = self.reach_z(y);
+        let z0 = z0.clamp(-zm, zm);
+        *count += 1;
+        let (f0, r0, e0) = self.signed_residual([y, z0], stroke_mm, 1)?;
+        let tol = self.tolerance_n(&e0);
+        let done = |z: f64, _f: f64, r: Option<[f64; 2]>, e: Eval, clamped: bool| Inner {
+            z,
+            r,
+            e,
+            clamped,
+        };
+        if f0.is_nan() || (f0.is_finite() && f0.abs() <= tol) {
+            return Ok(done(z0, f0, r0, e0, false));
+        }
+        // The other end of the bracket: the reach's end on the side the balance points to.
+        let z1 = if f0 > 0.0 { -zm } else { zm };
+        if z1 == z0 {
+            return Ok(done(z0, f0, r0, e0, true));
+        }
+        let mut z1 = z1;
+        *count += 1;
+        let (mut f1, mut r1, mut e1) = self.signed_residual([y, z1], stroke_mm, 1)?;
+        // An end with no state (strips past their limit on both sides): draw it in.
+        for _ in 0..BISECT {
+            if !f1.is_nan() {
+                break;
+            }
+            z1 = 0.5 * (z0 + z1);
+            *count += 1;
+            (f1, r1, e1) = self.signed_residual([y, z1], stroke_mm, 1)?;
+        }
+        if f1.is_nan() {
+            return Ok(done(z1, f1, r1, e1, false));
+        }
+        if f1.signum() == f0.signum() {
+            // No balance within the reach: the hub is pressed to the wall at this height.
+            return Ok(done(z1, f1, r1, e1, true));
+        }
+        let ((mut a, mut fa), (mut b, mut fb)) = if z0 < z1 {
+            ((z0, f0), (z1, f1))
+        } else {
+            ((z1, f1), (z0, f0))
+        };
+        let floor = 1e-15 * self.bore_mm;
+        let mut side = 0i8;
+        for _ in 0..MAX_ITER_1D {
+            // Illinois false position; bisection while an end is past a limit.
+            let z = if fa.is_finite() && fb.is_finite() {
+                let x = a - fa * (b - a) / (fb - fa);
+                if x > a && x < b { x } else { 0.5 * (a + b) }
+            } else {
+                0.5 * (a + b)
+            };
+            *count += 1;
+            let (f, r, e) = self.signed_residual([y, z], stroke_mm, 1)?;
+            if f.is_nan() || (f.is_finite() && f.abs() <= tol) {
+                return Ok(done(z, f, r, e, false));
+            }
+            if b - a <= floor {
+                // At the rounding floor with the balance jumping across a strip's limit:
+                // no state at this height short of that strip's limit.
+                let past = if fa.is_infinite() && f.signum() != fa.signum() {
+                    Some(a)
+                } else if fb.is_infinite() && f.signum() != fb.signum() {
+                    Some(b)
+                } else {
+                    None
+                };
+                if let Some(zp) = past {
+                    *count += 1;
+                    let (fp, rp, ep) = self.signed_residual([y, zp], stroke_mm, 1)?;
+                    return Ok(done(zp, fp, rp, ep, false));
+                }
+                return Ok(done(z, f, r, e, false));
+            }
+            if f.signum() == fa.signum() {
+                a = z;
+                fa = f;
+                if side == -1 {
+                    fb *= 0.5;
+                }
+                side = -1;
+            } else {
+                b = z;
+                fb = f;
+                if side == 1 {
+                    fa *= 0.5;
+                }
+                side = 1;
+            }
         }
         Err(SolveFailure::IterationLimit {
             stroke_mm,
-            iterations: MAX_ITER_2D,
+            iterations: MAX_ITER_1D,
+        })
+    }
+
+    /// Unequal strips: nested bracketed roots. For each height `y` the inner root finds the
+    /// `z` that balances the horizontal force (it rises with `z`: a gap that shrinks raises
+    /// its force); the outer root finds the `y` at which the vertical force balances at that
+    /// `z`, which rises with `y` for the same reason. Both are Illinois false position, kept
+    /// in their brackets, so kinks of the force sum (a strip's two edges tying) cannot stall
+    /// them. A balance that needs the wall goes to the rest solve.
+    fn solve_2d(&self, stroke_mm: f64) -> Result<SharedState, SolveFailure> {
+        let mut count = 0usize;
+        let w = self.loading.radial_load_n;
+        let rim = self.rim_radius_mm;
+        let curvature = self.bore.min_curvature_radius();
+        if rim > curvature {
+            return Err(SolveFailure::RimTooLargeForOvality {
+                rim_mm: rim,
+                curvature_mm: curvature,
+            });
+        }
+        let cy = self.bore.clearance_y(rim).max(0.0);
+        let mut z_prev = 0.0;
+        let outer = |y: f64, z_prev: &mut f64, count: &mut usize| -> Result<Outer, SolveFailure> {
+            let inner = self.inner_z(y, *z_prev, stroke_mm, count)?;
+            *z_prev = inner.z;
+            let g = match inner.r {
+                Some(r) => r[0],
+                None => self.beyond_sign(&inner.e, 0),
+            };
+            Ok(Outer { y, g, inner })
+        };
+        let first = outer(0.0, &mut z_prev, &mut count)?;
+        let all_free =
+            first.inner.r.is_some() && first.inner.e.strips.iter().all(|(_, s)| s.contact == 0.0);
+        if w == 0.0 && all_free {
+            // Nothing acts on the hub: it stays where it is put, centred.
+            return Ok(self.assemble_eval(
+                stroke_mm,
+                [0.0, 0.0],
+                &first.inner.e,
+                [0.0, 0.0],
+                count,
+            ));
+        }
+        let settle = |o: Outer, count: usize| -> Result<SharedState, SolveFailure> {
+            let d = [o.y, o.inner.z];
+            match o.inner.r {
+                None => Ok(self.beyond(stroke_mm, d, count)),
+                Some(_) if o.inner.clamped => self.solve_on_wall(stroke_mm, count),
+                Some(r) => {
+                    let tol = self.tolerance_n(&o.inner.e);
+                    if r[0].hypot(r[1]) <= 2.0 * tol {
+                        Ok(self.assemble_eval(stroke_mm, d, &o.inner.e, [0.0, 0.0], count))
+                    } else {
+                        Err(SolveFailure::Stalled {
+                            stroke_mm,
+                            residual_n: r[0].hypot(r[1]),
+                        })
+                    }
+                }
+            }
+        };
+        if first.g.is_nan() {
+            return Ok(self.beyond(stroke_mm, [0.0, first.inner.z], count));
+        }
+        let tol_of = |o: &Outer| self.tolerance_n(&o.inner.e);
+        if first.g.is_finite() && first.g.abs() <= tol_of(&first) {
+            return settle(first, count);
+        }
+        let y1 = if first.g > 0.0 { -cy } else { cy };
+        let end = outer(y1, &mut z_prev, &mut count)?;
+        if end.g.is_nan() {
+            return Ok(self.beyond(stroke_mm, [end.y, end.inner.z], count));
+        }
+        if end.g.signum() == first.g.signum() {
+            // The strips cannot balance the load anywhere in the reach: the hub rests.
+            return self.solve_on_wall(stroke_mm, count);
+        }
+        let (mut a, mut b) = if first.y < end.y {
+            (first, end)
+        } else {
+            (end, first)
+        };
+        let floor = 1e-15 * self.bore_mm;
+        let mut side = 0i8;
+        let (mut fa, mut fb) = (a.g, b.g);
+        for _ in 0..MAX_ITER_1D {
+            let y = if fa.is_finite() && fb.is_finite() {
+                let x = a.y - fa * (b.y - a.y) / (fb - fa);
+                if x > a.y && x < b.y {
+                    x
+                } else {
+                    0.5 * (a.y + b.y)
+                }
+            } else {
+                0.5 * (a.y + b.y)
+            };
+            let o = outer(y, &mut z_prev, &mut count)?;
+            if o.g.is_nan() {
+                return Ok(self.beyond(stroke_mm, [o.y, o.inner.z], count));
+            }
+            if o.g.is_finite() && o.g.abs() <= tol_of(&o) {
+                return settle(o, count);
+            }
+            if b.y - a.y <= floor {
+                // At the rounding floor: a jump across a strip's limit is no state.
+                if !(fa.is_finite() && fb.is_finite()) {
+                    return Ok(self.beyond(stroke_mm, [o.y, o.inner.z], count));
+                }
+                return settle(o, count);
+            }
+            if o.g.signum() == a.g.signum() {
+                fa = o.g;
+                a = o;
+                if side == -1 {
+                    fb *= 0.5;
+                }
+                side = -1;
+            } else {
+                fb = o.g;
+                b = o;
+                if side == 1 {
+                    fa *= 0.5;
+                }
+                side = 1;
+            }
+        }
+        Err(SolveFailure::IterationLimit {
+            stroke_mm,
+            iterations: MAX_ITER_1D,
         })
     }
 

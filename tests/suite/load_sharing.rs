@@ -450,3 +450,97 @@ fn bend_rule_against_hand_values() {
     let err = bend::passage(Bend::LongRadius, None, bore, 80.0, 160.0).expect_err("no NPS");
     assert!(err.to_string().contains("bore.bend"));
 }
+
+#[test]
+fn unequal_strips_balance_by_nested_roots() {
+    // Mechanics note, "Load sharing": the hub's equilibrium with unequal strips (a
+    // two-component offset). Residual below 1e-9 of the load at every reported state, the
+    // support only pushing. The deviations are invented (a few per cent of the strip).
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let n = seg.design.strip.count as usize;
+    let deviations: Vec<StripDeviation> = (0..n)
+        .map(|i| StripDeviation {
+            thickness_mm: [0.012, -0.008, 0.0, 0.015, -0.01, 0.004, -0.014, 0.009][i % 8],
+            width_mm: [0.05, -0.1, 0.08, 0.0, -0.04, 0.1, 0.02, -0.06][i % 8],
+            free_length_mm: [0.3, -0.2, 0.0, 0.1, -0.3, 0.25, -0.1, 0.05][i % 8],
+        })
+        .collect();
+    let mut reported = 0;
+    for bore in [seg.bore_smallest_mm, seg.bore_largest_mm] {
+        for w in [20.0, 300.0] {
+            for o in [0.0, 1.0] {
+                let loading = Loading {
+                    radial_load_n: w,
+                    out_of_round_mm: o,
+                    deviations: deviations.clone(),
+                    ..Loading::default()
+                };
+                let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+                let limit = loaded.strokes().expect("strokes").limit_stroke_mm;
+                for j in 0..=10 {
+                    let stroke = limit * j as f64 / 10.0;
+                    let st = loaded.state(stroke).expect("solves");
+                    let what = format!("unequal: bore {bore} W {w} o {o} stroke {stroke}");
+                    check_balance(&st, w, &what);
+                    if !st.beyond_limit {
+                        reported += 1;
+                    }
+                }
+            }
+        }
+    }
+    assert!(reported >= 60, "only {reported} states reported");
+}
+
+#[test]
+fn nested_roots_agree_with_the_symmetric_solve() {
+    // Cross-check of two independent solves of the same equilibrium (mechanics note, "Load
+    // sharing"): a strip deviation far below the rounding of any output takes the general
+    // two-component solve; it must land on the symmetric one-component answer.
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
+    let n = seg.design.strip.count as usize;
+    let mut tiny = vec![StripDeviation::default(); n];
+    tiny[1].thickness_mm = 1e-12;
+    let bore = seg.bore_largest_mm;
+    for w in [20.0, 300.0] {
+        let base = Loading {
+            radial_load_n: w,
+            out_of_round_mm: 0.8,
+            ..Loading::default()
+        };
+        let sym = seg.loaded_at_bore(bore, &base).expect("fits");
+        let general = seg
+            .loaded_at_bore(
+                bore,
+                &Loading {
+                    deviations: tiny.clone(),
+                    ..base.clone()
+                },
+            )
+            .expect("fits");
+        let limit = sym.strokes().expect("strokes").limit_stroke_mm;
+        for j in 1..=9 {
+            let stroke = limit * j as f64 / 10.0;
+            let a = sym.state(stroke).expect("solves");
+            let b = general.state(stroke).expect("solves");
+            let what = format!("W {w} stroke {stroke}");
+            assert_eq!(a.on_support, b.on_support, "{what}");
+            for k in 0..2 {
+                assert!(
+                    (a.hub_offset_mm[k] - b.hub_offset_mm[k]).abs() <= 1e-6,
+                    "{what}: {:?} vs {:?}",
+                    a.hub_offset_mm,
+                    b.hub_offset_mm
+                );
+            }
+            for (sa, sb) in a.strips.iter().zip(&b.strips) {
+                assert!(
+                    (sa.contact_force_n - sb.contact_force_n).abs() <= 1e-6 * w,
+                    "{what}: {} vs {}",
+                    sa.contact_force_n,
+                    sb.contact_force_n
+                );
+            }
+        }
+    }
+}
