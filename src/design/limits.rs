@@ -129,7 +129,10 @@ pub const MAX_NESTING: usize = 64;
 
 const TOLERANCE_SHARE_OF_BORE: f64 = 0.25;
 
-static LIMITS: [FieldLimit; 28] = [
+/// Out-of-roundness up to a tenth of the nominal bore.
+const OUT_OF_ROUND_SHARE_OF_BORE: f64 = 0.1;
+
+static LIMITS: [FieldLimit; 32] = [
     closed(
         "title",
         0.0,
@@ -231,6 +234,31 @@ static LIMITS: [FieldLimit; 28] = [
             "how far above nominal the bore may be",
         )
     },
+    FieldLimit {
+        max_relative: Some((LimitBasis::NominalBore, OUT_OF_ROUND_SHARE_OF_BORE)),
+        ..closed(
+            "bore.out_of_round_mm",
+            0.0,
+            500.0,
+            "mm",
+            "out-of-roundness: largest minus smallest bore diameter",
+        )
+    },
+    // From 1 mm: the passage rule also refuses a bend tighter than the pipe itself.
+    closed(
+        "bore.bend",
+        1.0,
+        1e5,
+        "mm",
+        "centreline radius of the bend the relaxed segment must pass",
+    ),
+    closed(
+        "end_plate_thickness_mm",
+        0.0,
+        1000.0,
+        "mm",
+        "thickness of each end plate (rigid length = free length + both plates)",
+    ),
     closed(
         "friction",
         0.01,
@@ -281,6 +309,13 @@ static LIMITS: [FieldLimit; 28] = [
         )
     },
     closed("duty.holding_force_n", 0.0, 1e7, "N", "axial force to hold"),
+    closed(
+        "duty.radial_load_n",
+        0.0,
+        1e7,
+        "N",
+        "radial load the strips carry, acting straight down",
+    ),
     closed(
         "duty.safety_factor",
         1.0,
@@ -346,6 +381,13 @@ impl Design {
         fields.extend([
             ("bore.minus_mm", self.bore.minus_mm),
             ("bore.plus_mm", self.bore.plus_mm),
+            ("bore.out_of_round_mm", self.bore.out_of_round_mm),
+        ]);
+        if let Some(crate::bend::Bend::RadiusMm(r)) = self.bore.bend {
+            fields.push(("bore.bend", r));
+        }
+        fields.extend([
+            ("end_plate_thickness_mm", self.end_plate_thickness_mm),
             ("friction", self.friction),
         ]);
         match &self.actuator {
@@ -380,6 +422,7 @@ impl Design {
         fields.extend([
             ("operating_stroke_mm", self.operating_stroke_mm),
             ("duty.holding_force_n", self.duty.holding_force_n),
+            ("duty.radial_load_n", self.duty.radial_load_n),
             ("duty.safety_factor", self.duty.safety_factor),
             // Exact for every count up to 2^53, far beyond the 1e12 limit.
             ("duty.cycles", self.duty.cycles as f64),
@@ -533,6 +576,7 @@ mod tests {
             max_torque_nm: 1.0,
             max_angle_deg: 1.0,
         };
+        design.bore.bend = Some(crate::bend::Bend::RadiusMm(100.0));
         design.strip.material = MaterialChoice::Custom {
             name: "x".into(),
             youngs_modulus_gpa: 1.0,

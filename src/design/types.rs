@@ -38,6 +38,10 @@ pub struct Design {
     pub operating_stroke_mm: f64,
     /// The load to hold and how often.
     pub duty: Duty,
+    /// Thickness of each end plate, mm: with the free length, the rigid length that must
+    /// pass a bend (0: thin plates).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub end_plate_thickness_mm: f64,
 }
 
 /// The strips: all identical, straight at rest.
@@ -110,6 +114,13 @@ pub struct Bore {
     /// A pipe size; when given, the nominal bore is its inside diameter.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub pipe: Option<PipeRef>,
+    /// Out-of-roundness, largest minus smallest diameter, mm (0: round). Load sharing
+    /// judges the major axis both along and across the load.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub out_of_round_mm: f64,
+    /// A bend the relaxed segment must pass (`None`: no bend check).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub bend: Option<crate::bend::Bend>,
 }
 
 /// A pipe size by nominal pipe size and schedule, e.g. `(nps: "2", schedule: "40")`.
@@ -156,6 +167,10 @@ pub struct Duty {
     /// write it as an integral float such as `1e6`.
     #[serde(deserialize_with = "cycles_from_number")]
     pub cycles: u64,
+    /// Radial load the segment carries through its strips, acting straight down, N
+    /// (0: none, the hub stays centred).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub radial_load_n: f64,
 }
 
 impl Default for Design {
@@ -182,6 +197,8 @@ impl Default for Design {
                 minus_mm: 0.3,
                 plus_mm: 0.3,
                 pipe: None,
+                out_of_round_mm: 0.0,
+                bend: None,
             },
             friction: 0.3,
             actuator: Actuator::LeadScrew {
@@ -195,7 +212,9 @@ impl Default for Design {
                 holding_force_n: 20.0,
                 safety_factor: 2.0,
                 cycles: 10_000,
+                radial_load_n: 0.0,
             },
+            end_plate_thickness_mm: 0.0,
         }
     }
 }
@@ -224,6 +243,11 @@ impl Bore {
     pub fn largest_mm(&self) -> Result<f64, DesignError> {
         Ok(self.nominal_mm()? + self.plus_mm)
     }
+}
+
+/// Whether an optional number is at its default (left out of written files).
+fn is_zero(v: &f64) -> bool {
+    *v == 0.0
 }
 
 fn cycles_from_number<'de, D: Deserializer<'de>>(deserializer: D) -> Result<u64, D::Error> {

@@ -191,6 +191,7 @@ fn arbitrary_design() -> impl Strategy<Value = Design> {
                         nps: "1-1/2".into(),
                         schedule: "80".into(),
                     }),
+                    ..design.bore.clone()
                 };
                 design.friction = mu;
                 design.actuator = match kind {
@@ -259,7 +260,9 @@ fn issue_literal_loads_unchanged() {
             diameter_mm: 58.6,
             minus_mm: 0.0,
             plus_mm: 0.0,
-            pipe: None
+            pipe: None,
+            out_of_round_mm: 0.0,
+            bend: None,
         }
     );
     assert_eq!(d.friction, 0.3);

@@ -544,3 +544,125 @@ fn nested_roots_agree_with_the_symmetric_solve() {
         }
     }
 }
+
+/// The drain-crawler sample's text with the load-sharing fields written in.
+fn with_sharing_fields() -> String {
+    let text = std::fs::read_to_string(
+        FsPath::new(env!("CARGO_MANIFEST_DIR"))
+            .join("sample-designs")
+            .join("drain-crawler-anchor-100mm.ron"),
+    )
+    .expect("sample reads");
+    let text = text.replace(
+        "bore: (diameter_mm: 100.0, minus_mm: 0.5, plus_mm: 1.0),",
+        "bore: (diameter_mm: 100.0, minus_mm: 0.5, plus_mm: 1.0, out_of_round_mm: 1.5,\n        bend: Some(RadiusMm(250.0))),\n    end_plate_thickness_mm: 6.0,",
+    );
+    assert!(
+        text.contains("end_plate_thickness_mm"),
+        "sample layout changed"
+    );
+    text.replace("cycles:", "radial_load_n: 120.0,\n        cycles:")
+}
+
+#[test]
+fn sharing_fields_read_write_and_stay_out_when_absent() {
+    // Contract (shared/contract.md, "New fields and outputs"): the fields are optional and
+    // a file without them gives exactly today's results; here, today's text on a rewrite.
+    let plain = sample("drain-crawler-anchor-100mm.ron");
+    assert_eq!(plain.duty.radial_load_n, 0.0);
+    assert_eq!(plain.bore.out_of_round_mm, 0.0);
+    assert_eq!(plain.bore.bend, None);
+    assert_eq!(plain.end_plate_thickness_mm, 0.0);
+    let whole = design::to_ron(&plain).expect("writes");
+    for key in [
+        "radial_load_n",
+        "out_of_round_mm",
+        "bend",
+        "end_plate_thickness_mm",
+    ] {
+        assert!(!whole.contains(key), "{key} written for a file without it");
+    }
+    let text = with_sharing_fields();
+    let d = design::parse(&text).expect("loads");
+    assert_eq!(d.duty.radial_load_n, 120.0);
+    assert_eq!(d.bore.out_of_round_mm, 1.5);
+    assert_eq!(d.bore.bend, Some(Bend::RadiusMm(250.0)));
+    assert_eq!(d.end_plate_thickness_mm, 6.0);
+    // Round trip through the whole writer.
+    let back = design::parse(&design::to_ron(&d).expect("writes")).expect("reads back");
+    assert_eq!(back, d);
+    for bend in [Bend::LongRadius, Bend::ShortRadius] {
+        let e = Design {
+            bore: design::Bore {
+                bend: Some(bend),
+                ..d.bore.clone()
+            },
+            ..d.clone()
+        };
+        let ron = design::to_ron(&e).expect("writes");
+        assert_eq!(design::parse(&ron).expect("reads back"), e);
+    }
+    // In place: a changed value is replaced where it is written, comments kept.
+    let mut e = d.clone();
+    e.duty.radial_load_n = 80.0;
+    e.bore.out_of_round_mm = 0.75;
+    e.end_plate_thickness_mm = 4.0;
+    e.bore.bend = Some(Bend::RadiusMm(300.0));
+    let edited = design::edit_in_place(&text, &e).expect("in place");
+    assert!(edited.contains("// Sample design (invented)"));
+    assert!(edited.contains("radial_load_n: 80.0"));
+    assert!(edited.contains("RadiusMm(300.0)"));
+    assert_eq!(design::parse(&edited).expect("reads"), e);
+    // Adding a field the file does not write is a whole rewrite, said so.
+    let mut f = plain.clone();
+    f.duty.radial_load_n = 50.0;
+    let save = design::save_text(Some(&whole), &f).expect("save text");
+    assert_eq!(design::parse(save.text()).expect("reads"), f);
+}
+
+#[test]
+fn sharing_fields_out_of_range_say_where_and_the_range() {
+    // Contract: duty.radial_load_n 0 to 1e7 N, bore.out_of_round_mm 0 to a tenth of the
+    // bore; the message names the field, its line and the allowed range in one line.
+    let text = with_sharing_fields();
+    for (from, to, field, range) in [
+        (
+            "radial_load_n: 120.0",
+            "radial_load_n: -1.0",
+            "duty.radial_load_n",
+            "0 to 1e7 N",
+        ),
+        (
+            "radial_load_n: 120.0",
+            "radial_load_n: 2e7",
+            "duty.radial_load_n",
+            "0 to 1e7 N",
+        ),
+        (
+            "out_of_round_mm: 1.5",
+            "out_of_round_mm: 10.5",
+            "bore.out_of_round_mm",
+            "0 to 10 mm",
+        ),
+        (
+            "RadiusMm(250.0)",
+            "RadiusMm(0.0)",
+            "bore.bend",
+            "1 to 100000 mm",
+        ),
+        (
+            "end_plate_thickness_mm: 6.0",
+            "end_plate_thickness_mm: -2.0",
+            "end_plate_thickness_mm",
+            "0 to 1000 mm",
+        ),
+    ] {
+        let bad = text.replace(from, to);
+        let err = design::parse(&bad).expect_err("out of range");
+        let msg = err.to_string();
+        assert!(msg.contains(field), "{msg}");
+        assert!(err.position().is_some(), "{field}: no position in {msg}");
+        assert!(msg.contains(range), "{field}: {msg}");
+        assert!(!msg.contains('\n'), "{msg}");
+    }
+}
