@@ -14,8 +14,14 @@
 //! points along `(cos theta, sin theta)`. With no load, a round bore and equal strips the
 //! results are the centred model's ([`crate::segment::BorePath`]) exactly.
 
+mod entry;
 mod geometry;
 mod solve;
+
+pub use entry::{
+    CaseChoice, CheckInputs, LoadedPoint, SharingChecks, StripRow, bend_passage, checks_at,
+    design_uses_sharing, loaded_point, loading_of,
+};
 
 use std::cell::OnceCell;
 use std::f64::consts::PI;
@@ -862,8 +868,20 @@ pub fn governing(
     stroke_mm: f64,
     judge: Judge,
 ) -> Result<Governing, SharingError> {
+    governing_of(segment, loading, &cases(loading), bore_mm, stroke_mm, judge)
+}
+
+/// The worse of the given cases (not empty) by `judge`.
+fn governing_of(
+    segment: &Segment,
+    loading: &Loading,
+    cases: &[(Clocking, MajorAxis)],
+    bore_mm: f64,
+    stroke_mm: f64,
+    judge: Judge,
+) -> Result<Governing, SharingError> {
     let mut best: Option<(Clocking, MajorAxis, SharedState)> = None;
-    for (clocking, major_axis) in cases(loading) {
+    for &(clocking, major_axis) in cases {
         let case = Loading {
             clocking,
             major_axis,
@@ -890,7 +908,11 @@ pub fn governing(
         }
     }
     let Some((clocking, major_axis, state)) = best else {
-        unreachable!("cases() is never empty")
+        return Err(SharingError::BadInput {
+            what: "cases",
+            value: 0.0,
+            allowed: "at least one clocking and major axis".into(),
+        });
     };
     let what = match judge {
         Judge::HighestStress => format!(

@@ -666,3 +666,113 @@ fn sharing_fields_out_of_range_say_where_and_the_range() {
         assert!(!msg.contains('\n'), "{msg}");
     }
 }
+
+#[test]
+fn design_entry_gives_the_governing_case_and_its_check_inputs() {
+    // Issue 17 / contract ("New fields and outputs"): both clockings and both major axes
+    // are judged and the worse governs; without the new fields the entry gives the centred
+    // model's state (mechanics note, "Load sharing": W = 0, round, equal strips).
+    let plain = sample("drain-crawler-anchor-100mm.ron");
+    assert!(!sharing::design_uses_sharing(&plain));
+    let seg = Segment::new(&plain).expect("valid");
+    let bore = seg.bore_largest_mm;
+    let stroke = seg.design.operating_stroke_mm;
+    let centred = seg.at_bore(bore).expect("fits").state(stroke);
+    let p = sharing::loaded_point(
+        &seg,
+        bore,
+        stroke,
+        sharing::CaseChoice::default(),
+        Judge::HighestStress,
+    )
+    .expect("solves");
+    assert_eq!(p.segment_state, centred);
+    assert_eq!(p.hub_offset_mm, [0.0, 0.0]);
+
+    let mut heavy = plain.clone();
+    heavy.duty.radial_load_n = 300.0;
+    heavy.bore.out_of_round_mm = 1.0;
+    assert!(sharing::design_uses_sharing(&heavy));
+    let seg = Segment::new(&heavy).expect("valid");
+    // Well inside the model at both bores (the sample's operating stroke is past it at the
+    // smallest bore).
+    let stroke = 0.6
+        * seg
+            .at_bore(seg.bore_smallest_mm)
+            .expect("fits")
+            .limit_stroke_mm();
+    let loading = sharing::loading_of(&heavy);
+    let checks = sharing::checks_at(&seg, stroke).expect("solves");
+    // The stress case is the worst over the four cases, each solved on its own.
+    let mut worst = f64::NEG_INFINITY;
+    for (clocking, major_axis) in sharing::cases(&loading) {
+        let one = sharing::loaded_point(
+            &seg,
+            seg.bore_smallest_mm,
+            stroke,
+            sharing::CaseChoice {
+                clocking: Some(clocking),
+                major_axis: Some(major_axis),
+            },
+            Judge::HighestStress,
+        )
+        .expect("solves");
+        assert_eq!((one.clocking, one.major_axis), (clocking, major_axis));
+        let c = one.checks.expect("within the limit");
+        worst = worst.max(c.worst_strip_stress_mpa);
+        // Holding is friction times the contact forces summed over the strips.
+        let sum: f64 = one.strips.iter().map(|s| s.contact_force_n).sum();
+        assert!((c.holding_force_n - heavy.friction * sum).abs() <= 1e-9 * c.holding_force_n);
+        assert_eq!(one.strips.len(), heavy.strip.count as usize);
+    }
+    let s = checks.stress.checks.as_ref().expect("within the limit");
+    assert_eq!(s.worst_strip_stress_mpa, worst);
+    assert!(checks.stress.governing.contains("governing case"));
+    assert!(
+        checks.stress.hub_offset_mm[0] < 0.0,
+        "a weight sags the hub"
+    );
+    // The top strip: free exactly when its row says so.
+    let t = &checks.top_strip;
+    let c = t.checks.as_ref().expect("within the limit");
+    let top = t
+        .strips
+        .iter()
+        .map(|s| s.clock_deg.to_radians().cos())
+        .fold(f64::NEG_INFINITY, f64::max);
+    let touching = t
+        .strips
+        .iter()
+        .filter(|s| s.clock_deg.to_radians().cos() >= top - 1e-9)
+        .all(|s| s.contact_force_n > 0.0);
+    assert_eq!(c.top_strip_touches, touching);
+    assert!(checks.bend.is_none());
+}
+
+#[test]
+fn design_bend_uses_the_rim_and_the_rigid_length() {
+    // Mechanics note, "Bends", with the hand values of `bend_rule_against_hand_values`:
+    // NPS 4 schedule 40 (bore 102.26 mm, ASME B36.10M), rigid length 150 + 2 x 5 = 160 mm,
+    // rim 80 mm (the end plates): long radius passes with 5.878232 mm to spare.
+    let mut d = sample("drain-crawler-anchor-100mm.ron");
+    d.bore.pipe = Some(design::PipeRef {
+        nps: "4".into(),
+        schedule: "40".into(),
+    });
+    d.bore.minus_mm = 0.0;
+    d.strip.free_length_mm = 150.0;
+    d.end_plate_thickness_mm = 5.0;
+    d.end_plate_diameter_mm = 80.0;
+    d.bore.bend = Some(Bend::LongRadius);
+    let seg = Segment::new(&d).expect("valid");
+    assert!(seg.relaxed_diameter_mm() <= 80.0);
+    let pass = sharing::bend_passage(&seg)
+        .expect("a bend is given")
+        .expect("judged");
+    assert!(pass.passes);
+    assert!(
+        (pass.margin_mm - 5.878232).abs() < 1e-6,
+        "{}",
+        pass.margin_mm
+    );
+}

@@ -1,0 +1,276 @@
+//! What the front ends call for load sharing: from a segment built from its design, the
+//! governing loaded state at a bore and stroke (both clockings and, for an out-of-round
+//! bore, both major-axis orientations; the worse governs and the answer says which), the
+//! per-strip rows, the bore-level strokes, and the inputs of the checks that load sharing
+//! changes or adds (holding over the strips in contact, the worst strip's stress, whether
+//! the top strip touches, passing the bend). Mechanics only: no GUI, PDF or file code.
+
+use serde::Serialize;
+
+use crate::bend::{self, BendError, BendPassage};
+use crate::design::Design;
+use crate::elastica::Phase;
+use crate::segment::{Segment, SegmentState};
+
+use super::{
+    BoreStrokes, Clocking, Governing, Judge, Loading, MajorAxis, SharedState, SharingError,
+};
+
+/// The loading a design file asks for: its radial load and out-of-roundness, equal strips
+/// (the clocking and major axis are chosen per case).
+pub fn loading_of(design: &Design) -> Loading {
+    Loading {
+        radial_load_n: design.duty.radial_load_n,
+        out_of_round_mm: design.bore.out_of_round_mm,
+        ..Loading::default()
+    }
+}
+
+/// Whether the design uses any load-sharing field (a radial load, an out-of-round bore or
+/// a bend): then the front ends add the per-strip outputs and the new checks. A design
+/// without them keeps today's outputs exactly.
+pub fn design_uses_sharing(design: &Design) -> bool {
+    design.duty.radial_load_n > 0.0
+        || design.bore.out_of_round_mm > 0.0
+        || design.bore.bend.is_some()
+}
+
+/// Which case to evaluate: a fixed clocking and/or major axis, or (`None`) the worse of
+/// both.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct CaseChoice {
+    /// `Some`: only this clocking (`--clocking strip|gap`); `None`: both, the worse governs.
+    pub clocking: Option<Clocking>,
+    /// `Some`: only this orientation (`--major-axis vertical|horizontal`); `None`: both
+    /// when the bore is out of round.
+    pub major_axis: Option<MajorAxis>,
+}
+
+/// One strip at a loaded state, as the contract names its keys.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct StripRow {
+    /// Clock angle from the top, clockwise, degrees in `[0, 360)`.
+    pub clock_deg: f64,
+    /// Gap from the relaxed strip to the wall at this hub offset (edge contact), mm.
+    pub gap_mm: f64,
+    /// Phase (`free`, `point-contact`, `line-contact`).
+    pub phase: Phase,
+    /// Wall contact force, N.
+    pub contact_force_n: f64,
+    /// Axial compression, N.
+    pub axial_force_n: f64,
+    /// Peak stress, bending plus axial, MPa.
+    pub max_stress_mpa: f64,
+}
+
+/// What the checks read from a loaded state.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct CheckInputs {
+    /// Holding force: friction times the sum of the contact forces of the strips in
+    /// contact, N.
+    pub holding_force_n: f64,
+    /// The worst strip's peak stress, MPa.
+    pub worst_strip_stress_mpa: f64,
+    /// The worst strip's clock angle, degrees.
+    pub worst_strip_clock_deg: f64,
+    /// The least static factor of safety over the strips.
+    pub static_safety_factor: f64,
+    /// The least fatigue factor of safety over the strips.
+    pub fatigue_safety_factor: f64,
+    /// Strips touching the wall.
+    pub strips_in_contact: usize,
+    /// Strips in all.
+    pub strips: usize,
+    /// Whether the top strip (both, when a gap is at the top) touches the wall.
+    pub top_strip_touches: bool,
+    /// Whether the hub still rests on its rim (the strips do not carry all the load).
+    pub on_support: bool,
+}
+
+/// The governing loaded state at one bore and stroke.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct LoadedPoint {
+    /// Bore diameter (nominal of the ellipse), mm.
+    pub bore_mm: f64,
+    /// End-plate travel, mm.
+    pub stroke_mm: f64,
+    /// The clocking of the case reported.
+    pub clocking: Clocking,
+    /// The major axis of the case reported.
+    pub major_axis: MajorAxis,
+    /// One line saying which case governs and why.
+    pub governing: String,
+    /// Hub offset from the bore's centre `[y, z]`, mm (`y` up: a weight gives `y < 0`).
+    pub hub_offset_mm: [f64; 2],
+    /// Whether a strip is past its own limit (then no strip rows and no check inputs).
+    pub beyond_limit: bool,
+    /// One row per strip in order of clock angle from the top (empty beyond the limit).
+    pub strips: Vec<StripRow>,
+    /// Stroke at which the first strip touches, mm (`None`: out of reach).
+    pub first_strip_contact_stroke_mm: Option<f64>,
+    /// Stroke at which the strips lift the hub off its rest, mm.
+    pub lift_off_stroke_mm: Option<f64>,
+    /// Stroke at which the last strip touches, mm (`None`: not before the limit).
+    pub last_strip_contact_stroke_mm: Option<f64>,
+    /// Where the model stops: the first strip reaches its own limit, mm.
+    pub limit_stroke_mm: f64,
+    /// The check inputs (`None` beyond the limit).
+    pub checks: Option<CheckInputs>,
+    /// The state in the centred model's terms (means over the strips, the worst strip's
+    /// stress): what the existing keys and columns show.
+    #[serde(skip)]
+    pub segment_state: SegmentState,
+}
+
+/// The check inputs of a state that is not beyond the limit.
+fn check_inputs(st: &SharedState) -> Option<CheckInputs> {
+    if st.beyond_limit || st.strips.is_empty() {
+        return None;
+    }
+    // The top strip: the largest cos(clock) (two of them when a gap is at the top).
+    let top = st
+        .strips
+        .iter()
+        .map(|s| s.clock_deg.to_radians().cos())
+        .fold(f64::NEG_INFINITY, f64::max);
+    let top_strip_touches = st
+        .strips
+        .iter()
+        .filter(|s| s.clock_deg.to_radians().cos() >= top - 1e-9)
+        .all(|s| s.phase != Phase::Free);
+    let t = &st.totals;
+    Some(CheckInputs {
+        holding_force_n: t.holding_force_n,
+        worst_strip_stress_mpa: t.max_stress_mpa,
+        worst_strip_clock_deg: st.strips[t.worst_strip].clock_deg,
+        static_safety_factor: t.static_safety_factor,
+        fatigue_safety_factor: t.fatigue_safety_factor,
+        strips_in_contact: t.strips_in_contact,
+        strips: st.strips.len(),
+        top_strip_touches,
+        on_support: st.on_support,
+    })
+}
+
+/// The loaded state of the case `case` (`clocking`, `major_axis`) with its strokes.
+fn point_of(
+    segment: &Segment,
+    loading: &Loading,
+    bore_mm: f64,
+    stroke_mm: f64,
+    gov: Governing,
+) -> Result<LoadedPoint, SharingError> {
+    let case = Loading {
+        clocking: gov.clocking,
+        major_axis: gov.major_axis,
+        ..loading.clone()
+    };
+    let loaded = segment.loaded_at_bore(bore_mm, &case)?;
+    let strokes: BoreStrokes = loaded.strokes()?;
+    let segment_state = loaded.segment_state(stroke_mm)?;
+    let st = gov.state;
+    Ok(LoadedPoint {
+        bore_mm,
+        stroke_mm,
+        clocking: gov.clocking,
+        major_axis: gov.major_axis,
+        governing: gov.reason,
+        hub_offset_mm: st.hub_offset_mm,
+        beyond_limit: st.beyond_limit,
+        strips: st
+            .strips
+            .iter()
+            .map(|s| StripRow {
+                clock_deg: s.clock_deg,
+                gap_mm: s.gap_mm,
+                phase: s.phase,
+                contact_force_n: s.contact_force_n,
+                axial_force_n: s.axial_force_n,
+                max_stress_mpa: s.max_stress_mpa,
+            })
+            .collect(),
+        first_strip_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
+        lift_off_stroke_mm: strokes.lift_off_stroke_mm,
+        last_strip_contact_stroke_mm: strokes.last_strip_contact_stroke_mm,
+        limit_stroke_mm: strokes.limit_stroke_mm,
+        checks: check_inputs(&st),
+        segment_state,
+    })
+}
+
+/// The governing loaded state of the segment's design at `bore_mm` and `stroke_mm`: the
+/// design's radial load and out-of-roundness, the cases `choice` leaves open judged by
+/// `judge` (the worse governs; a state beyond the limit governs any that is not). For
+/// `point`, `Judge::HighestStress`; the checks pass their own judge (see [`checks_at`]).
+pub fn loaded_point(
+    segment: &Segment,
+    bore_mm: f64,
+    stroke_mm: f64,
+    choice: CaseChoice,
+    judge: Judge,
+) -> Result<LoadedPoint, SharingError> {
+    let loading = loading_of(&segment.design);
+    let cases: Vec<(Clocking, MajorAxis)> = super::cases(&loading)
+        .into_iter()
+        .filter(|(c, a)| {
+            choice.clocking.is_none_or(|x| x == *c) && choice.major_axis.is_none_or(|x| x == *a)
+        })
+        .collect();
+    let cases = if cases.is_empty() {
+        // A major axis asked for on a round bore: the orientation does not matter.
+        vec![(
+            choice.clocking.unwrap_or(Clocking::Strip),
+            choice.major_axis.unwrap_or(MajorAxis::Vertical),
+        )]
+    } else {
+        cases
+    };
+    let gov = super::governing_of(segment, &loading, &cases, bore_mm, stroke_mm, judge)?;
+    point_of(segment, &loading, bore_mm, stroke_mm, gov)
+}
+
+/// The load-sharing check inputs of a design at its operating stroke, each at its own bore
+/// and judged by its own worst case.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SharingChecks {
+    /// At the smallest bore, the case with the highest worst-strip stress (static,
+    /// fatigue and limit are judged on it).
+    pub stress: LoadedPoint,
+    /// At the largest bore, the case with the least holding force (holding and reach: the
+    /// strips must lift the hub off its rest within the actuator's stroke).
+    pub holding: LoadedPoint,
+    /// At the largest bore, the case with the fewest strips touching (the top-strip check).
+    pub top_strip: LoadedPoint,
+    /// The bend passage when the design gives a bend (`None`: no bend check).
+    #[serde(skip)]
+    pub bend: Option<Result<BendPassage, BendError>>,
+}
+
+/// The inputs of the load-sharing checks at `stroke_mm` (the operating stroke).
+pub fn checks_at(segment: &Segment, stroke_mm: f64) -> Result<SharingChecks, SharingError> {
+    let all = CaseChoice::default();
+    let (small, large) = (segment.bore_smallest_mm, segment.bore_largest_mm);
+    Ok(SharingChecks {
+        stress: loaded_point(segment, small, stroke_mm, all, Judge::HighestStress)?,
+        holding: loaded_point(segment, large, stroke_mm, all, Judge::LeastHolding)?,
+        top_strip: loaded_point(segment, large, stroke_mm, all, Judge::FewestInContact)?,
+        bend: bend_passage(segment),
+    })
+}
+
+/// The bend rule for the design's bend, if it gives one: the relaxed rim (the larger of
+/// the plates and the relaxed strips) of rigid length free length plus both plates, in the
+/// smallest bore.
+pub fn bend_passage(segment: &Segment) -> Option<Result<BendPassage, BendError>> {
+    let d = &segment.design;
+    let bend = d.bore.bend?;
+    let nps = d.bore.pipe.as_ref().map(|p| p.nps.as_str());
+    let rigid_mm = d.strip.free_length_mm + 2.0 * d.end_plate_thickness_mm;
+    Some(bend::passage(
+        bend,
+        nps,
+        segment.bore_smallest_mm,
+        segment.relaxed_diameter_mm(),
+        rigid_mm,
+    ))
+}
