@@ -6,7 +6,7 @@ use std::hint::black_box;
 
 use bowgrip::design::Design;
 use bowgrip::segment::Segment;
-use bowgrip::sharing::{Loading, MajorAxis};
+use bowgrip::sharing::{Loading, MajorAxis, StripDeviation};
 use criterion::{Criterion, criterion_group, criterion_main};
 
 fn bench(c: &mut Criterion) {
@@ -29,6 +29,22 @@ fn bench(c: &mut Criterion) {
     assert!(st.hub_offset_mm[0] < 0.0 && !st.on_support);
     c.bench_function("loaded state, 12 strips, weight + oval bore", |b| {
         b.iter(|| loaded.state(black_box(stroke)))
+    });
+    // Unequal strips (invented deviations of a few hundredths of a mm): the nested
+    // bracketed roots on both offset components. No target; reported for comparison.
+    let unequal = Loading {
+        deviations: (0..12)
+            .map(|i| StripDeviation {
+                thickness_mm: 0.004 * (f64::from(i) - 5.5) / 5.5,
+                ..StripDeviation::default()
+            })
+            .collect(),
+        ..loading.clone()
+    };
+    let loaded2 = seg.loaded_at_bore(bore, &unequal).expect("demo fits");
+    loaded2.state(stroke).expect("solves");
+    c.bench_function("loaded state, 12 unequal strips, weight + oval bore", |b| {
+        b.iter(|| loaded2.state(black_box(stroke)))
     });
 }
 
