@@ -118,8 +118,9 @@ pub enum SolveFailure {
         /// The bound that was reached.
         iterations: usize,
     },
-    /// The two-component Newton iteration (unequal strips) stalled on a kink of the force
-    /// balance, where a strip's two edges are equally near the wall.
+    /// The nested roots (unequal strips) closed in on an offset where the force balance
+    /// jumps without crossing zero short of any strip's limit (not seen in the tests; kept
+    /// so that such a point is reported, never passed off as a state).
     #[error(
         "the hub-offset solve for unequal strips stalled at stroke {stroke_mm} mm with {residual_n:.3e} N out of balance"
     )]
