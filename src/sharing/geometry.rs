@@ -61,8 +61,10 @@ impl Ellipse {
         [ay2 * lam * c - r * c, az2 * lam * s - r * s]
     }
 
+    /// (Kept for the tests: an independent check of the reach's boundary.)
     /// Distance from a point inside the ellipse to its wall, mm (Eberly, "Distance from a
     /// point to an ellipse", by bisection on the Lagrange parameter; 200 steps at most).
+    #[cfg(test)]
     pub fn distance_inside(&self, p: [f64; 2]) -> f64 {
         // Put the larger semi-axis first, the point in the first quadrant.
         let (e0, e1, y0, y1) = if self.a_y >= self.a_z {
@@ -100,11 +102,6 @@ impl Ellipse {
         } else {
             (e0 - y0).abs()
         }
-    }
-
-    /// Whether `p` is inside the wall.
-    pub fn contains(&self, p: [f64; 2]) -> bool {
-        (p[0] / self.a_y).powi(2) + (p[1] / self.a_z).powi(2) < 1.0
     }
 }
 

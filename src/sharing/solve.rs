@@ -340,27 +340,30 @@ impl LoadedBore<'_> {
         Ok((Some(r), e))
     }
 
-    /// Whether the rim at offset `d` clears the wall.
-    fn rim_clears(&self, d: [f64; 2]) -> bool {
-        self.bore.contains(d) && self.bore.distance_inside(d) >= self.rim_radius_mm
-    }
-
-    /// Half the width along `z` of the rim centre's reach at height `y`, mm (bisection on
-    /// the rim's clearance; the reach is convex and symmetric about `z = 0`).
+    /// Half the width along `z` of the rim centre's reach at height `y`, mm: the point of
+    /// the inner parallel curve (convex while the rim is no larger than the wall's least
+    /// radius of curvature, which the caller has checked) at that height, by bisection on
+    /// its normal angle, whose height falls from the top (`phi = 0`) to the bottom.
     fn reach_z(&self, y: f64) -> f64 {
-        if !self.rim_clears([y, 0.0]) {
+        let rim = self.rim_radius_mm;
+        let (mut lo, mut hi) = (0.0, PI);
+        if y >= self.bore.inner_parallel(lo, rim)[0] || y <= self.bore.inner_parallel(hi, rim)[0] {
             return 0.0;
         }
-        let (mut lo, mut hi) = (0.0, self.bore.a_z);
-        for _ in 0..BISECT {
+        for _ in 0..BISECT + 16 {
             let mid = 0.5 * (lo + hi);
-            if self.rim_clears([y, mid]) {
+            if mid <= lo || mid >= hi {
+                break;
+            }
+            if self.bore.inner_parallel(mid, rim)[0] > y {
                 lo = mid;
             } else {
                 hi = mid;
             }
         }
-        lo
+        // The inner side of the bracket, so the rim clears the wall.
+        let z = self.bore.inner_parallel(lo, rim)[1].min(self.bore.inner_parallel(hi, rim)[1]);
+        z.max(0.0)
     }
 
     /// The force balance at `d` for the nested roots: the residual when every strip has a
