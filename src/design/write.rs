@@ -63,6 +63,7 @@ impl SaveText {
 /// What saving `design` over a file whose text was `original` writes: the original with
 /// the changed values replaced when every change has a place there, else the whole design.
 pub fn save_text(original: Option<&str>, design: &Design) -> Result<SaveText, DesignError> {
+    let design = &with_pipe_bore(design);
     let whole = to_ron(design)?;
     let Some(original) = original else {
         return Ok(SaveText::Whole {
@@ -70,7 +71,17 @@ pub fn save_text(original: Option<&str>, design: &Design) -> Result<SaveText, De
             why: None,
         });
     };
-    match edit_in_place(original, design) {
+    match edit_in_place(original, design).or_else(|e| {
+        // A file that leaves `bore.diameter_mm` out beside its pipe size keeps it out.
+        let mut kept = design.clone();
+        kept.bore.diameter_mm = parse(original.strip_prefix('\u{feff}').unwrap_or(original))
+            .ok()
+            .filter(|before| before.bore.pipe.is_some() && design.bore.pipe.is_some())
+            .ok_or_else(|| e.clone())?
+            .bore
+            .diameter_mm;
+        edit_in_place(original, &kept).map_err(|_| e)
+    }) {
         Ok(text) => Ok(SaveText::InPlace(text)),
         // Nothing to lose when the original is what a rewrite writes anyway.
         Err(_) if original.strip_prefix('\u{feff}').unwrap_or(original) == whole => {
@@ -81,6 +92,19 @@ pub fn save_text(original: Option<&str>, design: &Design) -> Result<SaveText, De
             why: Some(why),
         }),
     }
+}
+
+/// `design` with `bore.diameter_mm` set to the bore its pipe size gives, when it names a
+/// known one: the field is ignored then, and a saved file should not show a stale value
+/// (such as the demo's 70 mm beside a pipe whose bore is 77.92 mm).
+fn with_pipe_bore(design: &Design) -> Design {
+    let mut design = design.clone();
+    if design.bore.pipe.is_some()
+        && let Ok(bore_mm) = design.bore.nominal_mm()
+    {
+        design.bore.diameter_mm = bore_mm;
+    }
+    design
 }
 
 /// Leaf values of a text written by [`to_ron`], by path, and the shape around them (every
