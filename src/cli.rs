@@ -20,6 +20,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 use crate::checks::{self, Check};
 use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
+use crate::sharing;
 use crate::sheet::{self, Paper};
 
 /// Default number of strokes on a `sweep`.
@@ -93,6 +94,30 @@ pub struct PointArgs {
     /// Print one JSON object instead of a table.
     #[arg(long)]
     pub json: bool,
+    /// Load sharing: what sits on the load line at the bottom [default: the governing case].
+    #[arg(long, value_enum)]
+    pub clocking: Option<ClockingArg>,
+    /// Load sharing: the out-of-round bore's largest diameter [default: the governing case].
+    #[arg(long = "major-axis", value_enum)]
+    pub major_axis: Option<MajorAxisArg>,
+}
+
+/// `--clocking`: a strip, or the middle of a gap, at the bottom of the load line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ClockingArg {
+    /// A strip on the load line.
+    Strip,
+    /// The middle of a gap between two strips on the load line.
+    Gap,
+}
+
+/// `--major-axis`: the largest diameter of an out-of-round bore.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum MajorAxisArg {
+    /// Along the load (vertical).
+    Vertical,
+    /// Across the load (horizontal).
+    Horizontal,
 }
 
 /// Arguments of `sweep`.
@@ -477,16 +502,122 @@ fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64)
 // point
 
 fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
-    let (_, seg) = load(&a.file)?;
+    let (design, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
-    let state = path.state(a.stroke_mm);
+    let shared =
+        sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
+    if !shared {
+        let state = path.state(a.stroke_mm);
+        if a.json {
+            serde_json::to_writer(&mut *out, &state)?;
+            writeln!(out)?;
+        } else {
+            write!(out, "{}", point_table(&seg, &state))?;
+        }
+        return Ok(Status::Done);
+    }
+    let choice = sharing::CaseChoice {
+        clocking: a.clocking.map(|c| match c {
+            ClockingArg::Strip => sharing::Clocking::Strip,
+            ClockingArg::Gap => sharing::Clocking::Gap,
+        }),
+        major_axis: a.major_axis.map(|m| match m {
+            MajorAxisArg::Vertical => sharing::MajorAxis::Vertical,
+            MajorAxisArg::Horizontal => sharing::MajorAxis::Horizontal,
+        }),
+    };
+    let bore = path.bore_mm();
+    let loaded = sharing::loaded_point(
+        &seg,
+        bore,
+        a.stroke_mm,
+        choice,
+        sharing::Judge::HighestStress,
+    )
+    .map_err(|e| {
+        anyhow!(
+            "{}: load sharing at bore {} mm: {e}",
+            a.file.display(),
+            show_number(bore)
+        )
+    })?;
     if a.json {
-        serde_json::to_writer(&mut *out, &state)?;
+        serde_json::to_writer(&mut *out, &loaded_json(&loaded)?)?;
         writeln!(out)?;
     } else {
-        write!(out, "{}", point_table(&seg, &state))?;
+        write!(out, "{}", point_table(&seg, &loaded.segment_state))?;
+        write!(out, "{}", strips_table(&loaded))?;
     }
     Ok(Status::Done)
+}
+
+/// The state's keys (means over the strips, the worst strip's stress), then the load
+/// sharing keys the contract adds: the hub offset, one object per strip and the three
+/// bore-level strokes.
+fn loaded_json(p: &sharing::LoadedPoint) -> anyhow::Result<serde_json::Value> {
+    let mut v = serde_json::to_value(&p.segment_state)?;
+    let obj = v
+        .as_object_mut()
+        .ok_or_else(|| anyhow!("a state did not serialise as an object"))?;
+    obj.insert(
+        "hub_offset_mm".into(),
+        serde_json::to_value(p.hub_offset_mm)?,
+    );
+    obj.insert("strips".into(), serde_json::to_value(&p.strips)?);
+    for (key, value) in [
+        (
+            "first_strip_contact_stroke_mm",
+            p.first_strip_contact_stroke_mm,
+        ),
+        ("lift_off_stroke_mm", p.lift_off_stroke_mm),
+        (
+            "last_strip_contact_stroke_mm",
+            p.last_strip_contact_stroke_mm,
+        ),
+    ] {
+        obj.insert(key.into(), serde_json::to_value(value)?);
+    }
+    Ok(v)
+}
+
+/// The per-strip table under the state table of `point` when the strips share unequally.
+fn strips_table(p: &sharing::LoadedPoint) -> String {
+    let mut t = String::new();
+    let stroke = |v: Option<f64>| fixed(v, 3);
+    let _ = writeln!(t);
+    let _ = writeln!(t, "load sharing ({})", p.governing);
+    let _ = writeln!(
+        t,
+        "  hub offset        y {:+.4} mm (up), z {:+.4} mm",
+        p.hub_offset_mm[0], p.hub_offset_mm[1]
+    );
+    let _ = writeln!(
+        t,
+        "  first strip touches at {} mm, lifts the hub off its rest at {} mm, last strip touches at {} mm",
+        stroke(p.first_strip_contact_stroke_mm),
+        stroke(p.lift_off_stroke_mm),
+        stroke(p.last_strip_contact_stroke_mm)
+    );
+    if p.strips.is_empty() {
+        let _ = writeln!(
+            t,
+            "  a strip is past its own limit at this stroke: no per-strip state"
+        );
+        return t;
+    }
+    let _ = writeln!(
+        t,
+        "  {:>9}  {:>9}  {:<13}  {:>11}  {:>11}  {:>11}",
+        "clock deg", "gap mm", "phase", "contact N", "axial N", "stress MPa"
+    );
+    for r in &p.strips {
+        let _ = writeln!(
+            t,
+            "  {:>9.1}  {:>9.4}  {:<13}  {:>11.3}  {:>11.3}  {:>11.1}",
+            r.clock_deg, r.gap_mm, r.phase, r.contact_force_n, r.axial_force_n, r.max_stress_mpa
+        );
+    }
+    t
 }
 
 /// Fixed decimals for tables; `-` where the quantity does not exist.

@@ -776,3 +776,96 @@ fn design_bend_uses_the_rim_and_the_rigid_length() {
         pass.margin_mm
     );
 }
+
+/// `point --json` on a design with a radial load (contract, "New fields and outputs"): the
+/// state's keys stay, `axial_force_per_strip_n` and `contact_force_per_strip_n` are the means
+/// over the strips and `max_stress_mpa` the worst strip's; `hub_offset_mm` is `[y, z]` with
+/// `y < 0` under a weight; `strips` has one object per strip in order of clock angle from the
+/// top, with the contract's keys; the three bore-level strokes are present. Without a load the
+/// output has none of the new keys (checked on the sample itself).
+#[test]
+fn point_json_reports_the_hub_offset_and_every_strip() {
+    let sample = FsPath::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("riser-climber-2in-sch40.ron");
+    let text = std::fs::read_to_string(&sample).unwrap_or_else(|e| panic!("{e}"));
+    let loaded = text.replace(
+        "holding_force_n: 24.5,",
+        "holding_force_n: 24.5, radial_load_n: 40.0,",
+    );
+    assert_ne!(loaded, text, "the sample's duty line moved");
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let file = dir.path().join("loaded.ron");
+    std::fs::write(&file, &loaded).unwrap_or_else(|e| panic!("{e}"));
+    let run = |path: &FsPath, extra: &[&str]| -> serde_json::Value {
+        let out = assert_cmd::Command::cargo_bin("bowgrip")
+            .unwrap_or_else(|e| panic!("{e}"))
+            .arg("point")
+            .arg(path)
+            .args(["--stroke-mm", "1.3", "--json"])
+            .args(extra)
+            .output()
+            .unwrap_or_else(|e| panic!("{e}"));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        serde_json::from_slice(&out.stdout).unwrap_or_else(|e| panic!("{e}"))
+    };
+    let v = run(&file, &[]);
+    let hub = v["hub_offset_mm"]
+        .as_array()
+        .expect("hub_offset_mm is [y, z]");
+    assert_eq!(hub.len(), 2);
+    assert!(
+        hub[0].as_f64().is_some_and(|y| y < 0.0),
+        "a weight lowers the hub: {hub:?}"
+    );
+    let strips = v["strips"].as_array().expect("strips");
+    assert_eq!(strips.len(), 12);
+    let f = |s: &serde_json::Value, k: &str| s[k].as_f64().unwrap_or_else(|| panic!("{k}: {s}"));
+    let clocks: Vec<f64> = strips.iter().map(|s| f(s, "clock_deg")).collect();
+    assert!(clocks.windows(2).all(|w| w[0] < w[1]), "{clocks:?}");
+    for s in strips {
+        for key in [
+            "gap_mm",
+            "contact_force_n",
+            "axial_force_n",
+            "max_stress_mpa",
+        ] {
+            f(s, key);
+        }
+        assert!(s["phase"].is_string());
+    }
+    let mean = |k: &str| strips.iter().map(|s| f(s, k)).sum::<f64>() / 12.0;
+    let close = |a: f64, b: f64| (a - b).abs() <= 1e-9 * b.abs().max(1.0);
+    assert!(close(
+        f(&v, "contact_force_per_strip_n"),
+        mean("contact_force_n")
+    ));
+    assert!(close(
+        f(&v, "axial_force_per_strip_n"),
+        mean("axial_force_n")
+    ));
+    let worst = strips
+        .iter()
+        .map(|s| f(s, "max_stress_mpa"))
+        .fold(f64::MIN, f64::max);
+    assert!(close(f(&v, "max_stress_mpa"), worst));
+    // The bottom strips press harder than the top ones (the weight hangs on them).
+    assert!(f(&strips[6], "contact_force_n") > f(&strips[0], "contact_force_n"));
+    for key in [
+        "first_strip_contact_stroke_mm",
+        "lift_off_stroke_mm",
+        "last_strip_contact_stroke_mm",
+    ] {
+        assert!(v.get(key).is_some(), "{key} missing");
+    }
+    // The options pick one case; both parse.
+    let gap = run(&file, &["--clocking", "gap", "--major-axis", "horizontal"]);
+    assert_eq!(gap["strips"].as_array().map(Vec::len), Some(12));
+    // Without a load the sample's output has none of the new keys.
+    let plain = run(&sample, &[]);
+    assert!(plain.get("hub_offset_mm").is_none() && plain.get("strips").is_none());
+}
