@@ -788,5 +788,57 @@ pub fn run(file: Option<PathBuf>) -> anyhow::Result<()> {
         options,
         Box::new(move |_cc| Ok(Box::new(EframeApp(app)))),
     )
-    .map_err(|e| anyhow::anyhow!("the window could not be opened: {e}"))
+    .map_err(|e| {
+        anyhow::anyhow!(
+            "the window could not be opened: {}",
+            without_source_paths(&e.to_string())
+        )
+    })
+}
+
+/// `message` without the dependency source locations some windowing errors carry
+/// (" at /home/.../winit-0.30/src/platform_impl/linux/mod.rs:765"): they mean nothing
+/// to a user. Every " at PATH.rs:LINE" (with an optional ":COLUMN") is dropped.
+fn without_source_paths(message: &str) -> String {
+    let mut out = String::with_capacity(message.len());
+    let mut rest = message;
+    while let Some(i) = rest.find(" at ") {
+        let after = &rest[i + 4..];
+        let end = after
+            .find(|c: char| c.is_whitespace())
+            .unwrap_or(after.len());
+        let word = after[..end].trim_end_matches([':', ',', '.']);
+        let is_source = word.split(".rs:").nth(1).is_some_and(|tail| {
+            !tail.is_empty() && tail.chars().all(|c| c.is_ascii_digit() || c == ':')
+        });
+        if is_source {
+            out.push_str(&rest[..i]);
+            // Keep the punctuation that followed the location.
+            let punct_len = after[..end].len() - word.len();
+            rest = &after[end - punct_len..];
+        } else {
+            out.push_str(&rest[..i + 4]);
+            rest = after;
+        }
+    }
+    out.push_str(rest);
+    out
+}
+
+#[cfg(test)]
+mod source_path_tests {
+    use super::without_source_paths;
+
+    /// The message winit gives without a display (as printed on this machine's CI).
+    #[test]
+    fn dependency_source_locations_are_dropped() {
+        let raw = "winit EventLoopError: os error at /root/.cargo/registry/src/index.crates.io-1949cf8c6b5b557f/winit-0.30.13/src/platform_impl/linux/mod.rs:765: neither WAYLAND_DISPLAY nor WAYLAND_SOCKET nor DISPLAY is set.";
+        assert_eq!(
+            without_source_paths(raw),
+            "winit EventLoopError: os error: neither WAYLAND_DISPLAY nor WAYLAND_SOCKET nor DISPLAY is set."
+        );
+        // Words after " at " that are not source locations stay.
+        let plain = "no state at 3.2 mm at the largest bore";
+        assert_eq!(without_source_paths(plain), plain);
+    }
 }

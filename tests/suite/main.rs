@@ -2,6 +2,7 @@
 mod app;
 mod calibration;
 mod cli;
+mod command_words;
 mod data_tables;
 mod design_file;
 mod elastica_reference;
