@@ -78,6 +78,9 @@ pub enum Command {
     Compare(crate::compare::CompareArgs),
     /// The design map: two inputs over a grid, each design's limiting check and margin.
     Map(crate::map::command::MapArgs),
+    /// Print a completion script for a shell, e.g. `bowgrip completions bash >
+    /// ~/.local/share/bash-completion/completions/bowgrip`.
+    Completions(CompletionsArgs),
 }
 
 /// Arguments of `point`.
@@ -100,6 +103,35 @@ pub struct PointArgs {
     /// Load sharing: the out-of-round bore's largest diameter [default: the governing case].
     #[arg(long = "major-axis", value_enum)]
     pub major_axis: Option<MajorAxisArg>,
+}
+
+/// Arguments of `completions`.
+#[derive(Debug, Args)]
+pub struct CompletionsArgs {
+    /// The shell to complete for.
+    #[arg(value_enum)]
+    pub shell: ShellArg,
+}
+
+/// Shells `completions` writes a script for.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ShellArg {
+    /// GNU Bash.
+    Bash,
+    /// Z shell.
+    Zsh,
+    /// fish.
+    Fish,
+}
+
+impl ShellArg {
+    fn generator(self) -> clap_complete::Shell {
+        match self {
+            ShellArg::Bash => clap_complete::Shell::Bash,
+            ShellArg::Zsh => clap_complete::Shell::Zsh,
+            ShellArg::Fish => clap_complete::Shell::Fish,
+        }
+    }
 }
 
 /// `--clocking`: a strip, or the middle of a gap, at the bottom of the load line.
@@ -441,6 +473,11 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Sheet(a) => write_sheet(&a)?,
         Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
+        Command::Completions(a) => {
+            let mut command = <Cli as clap::CommandFactory>::command();
+            clap_complete::generate(a.shell.generator(), &mut command, "bowgrip", &mut out);
+            Status::Done
+        }
     };
     out.flush()?;
     Ok(status)

@@ -38,3 +38,43 @@ fn the_no_display_message_has_no_source_path() {
     assert_eq!(out.status.code(), Some(2), "{err}");
     assert!(!err.contains(".rs:"), "{err}");
 }
+
+/// `bowgrip completions SHELL` prints a script naming every sub-command; the bash one is
+/// valid bash (`bash -n`, the shell's own syntax check) and registers itself with `complete`.
+#[test]
+fn completion_scripts_name_every_sub_command() {
+    for shell in ["bash", "zsh", "fish"] {
+        let out = run(&["completions", shell]);
+        assert!(
+            out.status.success(),
+            "{shell}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let script = String::from_utf8_lossy(&out.stdout).to_string();
+        for name in [
+            "point", "sweep", "bores", "check", "sheet", "compare", "map",
+        ] {
+            assert!(script.contains(name), "{shell} script lacks {name}");
+        }
+        if shell == "bash" {
+            assert!(script.contains("complete -F _bowgrip"), "{script}");
+            let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+            let file = dir.path().join("bowgrip.bash");
+            std::fs::write(&file, &script).unwrap_or_else(|e| panic!("{e}"));
+            let check = std::process::Command::new("bash")
+                .arg("-n")
+                .arg(&file)
+                .output()
+                .unwrap_or_else(|e| panic!("bash: {e}"));
+            assert!(
+                check.status.success(),
+                "{}",
+                String::from_utf8_lossy(&check.stderr)
+            );
+        }
+    }
+    // An unknown shell is refused with the allowed values.
+    let bad = run(&["completions", "tcsh"]);
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("bash"));
+}
