@@ -173,19 +173,23 @@ pub struct SweepArgs {
 pub struct BoresArgs {
     /// Design file (.ron).
     pub file: PathBuf,
-    /// First bore diameter, mm.
+    /// First bore diameter, mm [default: the smallest bore of the design's tolerance].
     #[arg(long = "from-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
-    pub from_mm: f64,
-    /// Last bore diameter, mm (included).
+    pub from_mm: Option<f64>,
+    /// Last bore diameter, mm (included) [default: the largest bore of the design's
+    /// tolerance].
     #[arg(long = "to-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
-    pub to_mm: f64,
+    pub to_mm: Option<f64>,
     /// Number of bores, both ends included.
-    #[arg(long, value_name = "N", value_parser = points, allow_negative_numbers = true)]
+    #[arg(long, value_name = "N", default_value_t = BORES_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
     #[arg(long)]
     pub csv: bool,
 }
+
+/// Bores in a `bores` table when `--points` is not given.
+const BORES_POINTS: usize = 21;
 
 /// Arguments of `check`.
 #[derive(Debug, Args)]
@@ -837,7 +841,9 @@ fn spaced(from: f64, to: f64, i: usize, n: usize) -> f64 {
 
 fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
-    let rows = (0..a.points).map(|i| seg.bore_row(spaced(a.from_mm, a.to_mm, i, a.points)));
+    let from_mm = a.from_mm.unwrap_or(seg.bore_smallest_mm);
+    let to_mm = a.to_mm.unwrap_or(seg.bore_largest_mm);
+    let rows = (0..a.points).map(|i| seg.bore_row(spaced(from_mm, to_mm, i, a.points)));
     if a.csv {
         writeln!(out, "{}", BORE_ROW_COLUMNS.join(","))?;
         for r in rows {

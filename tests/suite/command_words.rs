@@ -78,3 +78,54 @@ fn completion_scripts_name_every_sub_command() {
     assert_eq!(bad.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&bad.stderr).contains("bash"));
 }
+
+/// `bores` without a range runs over the design's own tolerance band: the riser sample is
+/// NPS 2 Schedule 40 (OD 60.3 mm, wall 3.91 mm, ASME B36.10M: bore 52.48 mm) with -0.2/+0.4
+/// mm, so 21 bores from 52.28 to 52.88 mm (issue 16, item 8).
+#[test]
+fn bores_defaults_to_the_design_tolerance_band() {
+    let sample = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("riser-climber-2in-sch40.ron");
+    let sample = sample.to_str().expect("utf-8 path");
+    let out = run(&["bores", sample, "--csv"]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8_lossy(&out.stdout).to_string();
+    let bores: Vec<f64> = text
+        .lines()
+        .skip(1)
+        .map(|l| {
+            l.split(',')
+                .next()
+                .and_then(|c| c.parse().ok())
+                .expect("a bore")
+        })
+        .collect();
+    assert_eq!(bores.len(), 21);
+    assert!(
+        (bores[0] - 52.28).abs() < 1e-9 && (bores[20] - 52.88).abs() < 1e-9,
+        "{bores:?}"
+    );
+    // One end given: the other still comes from the design.
+    let out = run(&[
+        "bores",
+        sample,
+        "--from-mm",
+        "52.0",
+        "--points",
+        "3",
+        "--csv",
+    ]);
+    let text = String::from_utf8_lossy(&out.stdout).to_string();
+    let last: f64 = text
+        .lines()
+        .last()
+        .and_then(|l| l.split(',').next())
+        .and_then(|c| c.parse().ok())
+        .expect("a bore");
+    assert!((last - 52.88).abs() < 1e-9, "{text}");
+}
