@@ -545,6 +545,16 @@ fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64)
 fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (design, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
+    if a.stroke_mm > seg.max_stroke_mm() {
+        // A note, not an error: the model state is still asked for. On stderr, so the JSON
+        // and the table stay as they were.
+        eprintln!(
+            "bowgrip: note: stroke {} mm is past the actuator's maximum stroke of {} mm; the \
+             actuator cannot reach it",
+            show_number(a.stroke_mm),
+            show_number(seg.max_stroke_mm())
+        );
+    }
     let shared =
         sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
     if !shared {

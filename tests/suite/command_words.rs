@@ -129,3 +129,27 @@ fn bores_defaults_to_the_design_tolerance_band() {
         .expect("a bore");
     assert!((last - 52.88).abs() < 1e-9, "{text}");
 }
+
+/// `point` at a stroke past the actuator's maximum (the riser sample's lead screw: 5 turns
+/// of a 1 mm lead, 5 mm) says so on stderr, while stdout keeps the state (issue 16, item 8).
+#[test]
+fn point_flags_a_stroke_past_the_actuator_travel() {
+    let sample = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("riser-climber-2in-sch40.ron");
+    let sample = sample.to_str().expect("utf-8 path");
+    let past = run(&["point", sample, "--stroke-mm", "5.5", "--json"]);
+    assert!(past.status.success());
+    let err = String::from_utf8_lossy(&past.stderr);
+    assert!(
+        err.contains("past the actuator's maximum stroke of 5 mm"),
+        "{err}"
+    );
+    assert!(serde_json::from_slice::<serde_json::Value>(&past.stdout).is_ok());
+    let within = run(&["point", sample, "--stroke-mm", "1.35", "--json"]);
+    assert!(
+        within.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&within.stderr)
+    );
+}
