@@ -45,13 +45,14 @@ follow local codes and licensed engineering practice.";
     version,
     about = "Size bowed-strip expanding segments: strips, stroke, grip and stress across a bore tolerance",
     long_about = "Size bowed-strip expanding segments: strips, stroke, grip and stress across a \
-                  bore tolerance.\n\nWithout a sub-command the desktop app opens, on FILE or on a \
-                  built-in demo design.",
+                  bore tolerance.\n\nWithout a sub-command the desktop app opens: on FILE, else on \
+                  the last design you had open, else on a built-in demo design.",
     args_conflicts_with_subcommands = true,
     after_help = CAUTION
 )]
 pub struct Cli {
-    /// Design file (.ron) to open in the app; without it the app starts on a demo design.
+    /// Design file (.ron) to open in the app; without it the app reopens the last design
+    /// (the built-in demo on a first start).
     pub file: Option<PathBuf>,
     /// What to compute; none opens the app.
     #[command(subcommand)]
