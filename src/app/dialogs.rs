@@ -53,6 +53,8 @@ pub struct Dialogs {
     print_path: String,
     /// The window should close now (the quit was confirmed).
     pub quit_requested: bool,
+    /// The Help menu's windows.
+    help: super::help::HelpWindows,
 }
 
 impl Dialogs {
@@ -155,11 +157,9 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
                         app.store_session();
                     }
                 }
-                ui.separator();
-                if ui.button("Safety cautions").clicked() {
-                    app.dialogs.show_cautions = true;
-                }
             });
+            let dialogs = &mut app.dialogs;
+            super::help::help_menu_ui(&mut dialogs.help, &mut dialogs.show_cautions, ui);
         });
     });
 }
@@ -226,6 +226,8 @@ pub fn windows(app: &mut GripApp, ctx: &Context) {
     fit_window(app, ctx);
     export_window(app, ctx);
     print_window(app, ctx);
+    let dialogs = &mut app.dialogs;
+    super::help::help_windows(&mut dialogs.help, &mut dialogs.show_cautions, ctx);
     let mut open = app.dialogs.show_cautions;
     egui::Window::new("Safety cautions")
         .open(&mut open)

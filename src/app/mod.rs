@@ -11,6 +11,7 @@
 mod dialogs;
 pub mod export;
 pub mod fit;
+mod help;
 mod inputs;
 mod outputs;
 pub mod state;

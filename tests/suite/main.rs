@@ -7,6 +7,7 @@ mod data_tables;
 mod design_file;
 mod elastica_reference;
 mod elliptic_reference;
+mod help_menu;
 mod hostile;
 mod inverse_queries;
 mod load_sharing;
