@@ -115,7 +115,7 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
                     }
                 });
                 ui.separator();
-                if ui.button("Quit").clicked() {
+                if ui.button("Quit                  Ctrl+Q").clicked() {
                     app.push(Command::Quit);
                 }
             });
@@ -131,6 +131,7 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
                 }
                 if ui
                     .add_enabled(!app.doc.redo.is_empty(), egui::Button::new("Redo   Ctrl+Y"))
+                    .on_hover_text("Also Ctrl+Shift+Z")
                     .clicked()
                 {
                     app.push(Command::Redo);

@@ -373,10 +373,16 @@ impl GripApp {
         type Action = fn(&mut GripApp);
         use egui::{Key, KeyboardShortcut, Modifiers};
         let shift = Modifiers::COMMAND | Modifiers::SHIFT;
-        // Most specific first: Ctrl+Shift+S before Ctrl+S.
-        let table: [(KeyboardShortcut, Action); 6] = [
+        // Most specific first: Ctrl+Shift+S before Ctrl+S, Ctrl+Shift+Z before Ctrl+Z.
+        let table: [(KeyboardShortcut, Action); 8] = [
             (KeyboardShortcut::new(shift, Key::S), |a| {
                 a.dialogs.open_save_as(a.doc.path.as_deref())
+            }),
+            (KeyboardShortcut::new(shift, Key::Z), |a| {
+                a.push(Command::Redo)
+            }),
+            (KeyboardShortcut::new(Modifiers::COMMAND, Key::Q), |a| {
+                a.push(Command::Quit)
             }),
             (KeyboardShortcut::new(Modifiers::COMMAND, Key::S), |a| {
                 a.push(Command::Save)

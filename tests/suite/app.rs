@@ -129,10 +129,28 @@ fn inputs_drive_the_checks() {
         Some(d0.strip.thickness_mm.to_string()),
         "the field follows the undo"
     );
-    // Redo brings the last edit back.
+    // Redo brings the last edit back, by Ctrl+Y or Ctrl+Shift+Z.
     h.key_press_modifiers(Modifiers::COMMAND, Key::Y);
     h.run();
     assert_eq!(h.state().design().strip.thickness_mm, 0.15);
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run();
+    assert_eq!(*h.state().design(), d0);
+    h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
+    h.run();
+    assert_eq!(h.state().design().strip.thickness_mm, 0.15);
+}
+
+/// Ctrl+Q quits; with nothing unsaved it needs no question.
+#[test]
+fn ctrl_q_quits_a_saved_design() {
+    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    assert!(!h.state().is_quitting());
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Q);
+    h.run();
+    assert!(h.state().is_quitting());
 }
 
 fn open_through_the_window(h: &mut Harness<'static, GripApp>, path: &Path) {
