@@ -779,6 +779,54 @@ impl eframe::App for EframeApp {
     }
 }
 
+/// The desktop application id (Wayland app id, X11 WM_CLASS), matching a desktop entry
+/// named `bowgrip.desktop`.
+pub const APP_ID: &str = "bowgrip";
+
+/// Side of the window icon, pixels.
+const ICON_PX: u32 = 64;
+
+/// The window icon, drawn here rather than shipped as an image: a grey pipe wall in section,
+/// eight orange strip crests pressing on it, and the hub in the middle.
+pub fn window_icon() -> egui::IconData {
+    let n = ICON_PX as usize;
+    let centre = (ICON_PX as f32 - 1.0) / 2.0;
+    let mut rgba = vec![0u8; n * n * 4];
+    let crests: Vec<[f32; 2]> = (0..8)
+        .map(|i| {
+            let a = std::f32::consts::TAU * i as f32 / 8.0;
+            [centre + 20.0 * a.cos(), centre + 20.0 * a.sin()]
+        })
+        .collect();
+    for y in 0..n {
+        for x in 0..n {
+            let (dx, dy) = (x as f32 - centre, y as f32 - centre);
+            let r = dx.hypot(dy);
+            let near_crest = crests
+                .iter()
+                .any(|c| (x as f32 - c[0]).hypot(y as f32 - c[1]) <= 5.0);
+            let colour = if (25.0..=30.0).contains(&r) {
+                Some([120, 126, 134])
+            } else if near_crest {
+                Some([230, 159, 0])
+            } else if r <= 9.0 {
+                Some([86, 180, 233])
+            } else {
+                None
+            };
+            if let Some([red, green, blue]) = colour {
+                let at = 4 * (y * n + x);
+                rgba[at..at + 4].copy_from_slice(&[red, green, blue, 255]);
+            }
+        }
+    }
+    egui::IconData {
+        rgba,
+        width: ICON_PX,
+        height: ICON_PX,
+    }
+}
+
 /// Opens the app on `file`, or on the last session's file, or on the built-in demo.
 pub fn run(file: Option<PathBuf>) -> anyhow::Result<()> {
     let app = GripApp::new(state::default_state_dir(), file).with_system_dialogs(true);
@@ -787,7 +835,9 @@ pub fn run(file: Option<PathBuf>) -> anyhow::Result<()> {
         viewport: egui::ViewportBuilder::default()
             .with_title(title)
             .with_inner_size([1500.0, 940.0])
-            .with_min_inner_size([900.0, 600.0]),
+            .with_min_inner_size([900.0, 600.0])
+            .with_app_id(APP_ID)
+            .with_icon(std::sync::Arc::new(window_icon())),
         ..Default::default()
     };
     eframe::run_native(
@@ -834,7 +884,20 @@ fn without_source_paths(message: &str) -> String {
 
 #[cfg(test)]
 mod source_path_tests {
-    use super::without_source_paths;
+    use super::{ICON_PX, window_icon, without_source_paths};
+
+    /// The icon is a full square RGBA image with both the wall and the crests drawn and a
+    /// transparent background.
+    #[test]
+    fn the_window_icon_is_drawn() {
+        let icon = window_icon();
+        assert_eq!((icon.width, icon.height), (ICON_PX, ICON_PX));
+        assert_eq!(icon.rgba.len(), (4 * ICON_PX * ICON_PX) as usize);
+        let pixels: Vec<&[u8]> = icon.rgba.chunks(4).collect();
+        assert_eq!(pixels[0][3], 0, "corner transparent");
+        assert!(pixels.iter().any(|p| p == &[230, 159, 0, 255]), "crests");
+        assert!(pixels.iter().any(|p| p == &[120, 126, 134, 255]), "wall");
+    }
 
     /// The message winit gives without a display (as printed on this machine's CI).
     #[test]
