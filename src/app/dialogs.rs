@@ -184,7 +184,7 @@ pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
                     "There are changes not yet saved; a recovery copy is kept every few seconds.",
                 );
             }
-            if let Some(s) = &app.status {
+            if let Some(s) = app.shown_status() {
                 let text = RichText::new(&s.text);
                 ui.label(if s.is_error {
                     text.color(error_color(ui))

@@ -164,6 +164,9 @@ pub struct GripApp {
     /// Unsaved-changes prompt.
     guard: Option<Pending>,
     quit_confirmed: bool,
+    /// The status line reports a save: it goes as soon as the design differs from the
+    /// saved one, so "unsaved" never stands beside "Saved".
+    status_is_save: bool,
     system_dialogs: bool,
     last_recovery_write_s: Option<f64>,
     sent_title: String,
@@ -209,6 +212,7 @@ impl GripApp {
             rewrite_prompt: None,
             guard: None,
             quit_confirmed: false,
+            status_is_save: false,
             system_dialogs: false,
             last_recovery_write_s: None,
             sent_title: String::new(),
@@ -269,6 +273,14 @@ impl GripApp {
     /// Whether there are unsaved changes.
     pub fn is_dirty(&self) -> bool {
         self.doc.dirty
+    }
+
+    /// The status line's message as shown: a save report is withdrawn once the design has
+    /// changed again.
+    pub fn shown_status(&self) -> Option<&Status> {
+        self.status
+            .as_ref()
+            .filter(|_| !(self.status_is_save && self.doc.dirty))
     }
 
     /// The status line's message.
@@ -666,6 +678,7 @@ impl GripApp {
                 self.store_session();
                 self.clear_own_copy();
                 self.say(format!("Saved {}.", path.display()));
+                self.status_is_save = true;
             }
             Err(e) => self.fail(format!(
                 "Not saved; the design is still open with its changes. {e}"
@@ -749,6 +762,7 @@ impl GripApp {
     }
 
     fn say(&mut self, text: String) {
+        self.status_is_save = false;
         self.status = Some(Status {
             text,
             is_error: false,
@@ -756,6 +770,7 @@ impl GripApp {
     }
 
     fn fail(&mut self, text: String) {
+        self.status_is_save = false;
         self.status = Some(Status {
             text,
             is_error: true,

@@ -480,3 +480,38 @@ fn strips_that_swing_behind_the_plates_raise_a_geometry_caution() {
         3
     );
 }
+
+/// Issue 16, item 9: the status bar never shows "unsaved" beside "Saved". After Ctrl+S the
+/// save is reported; the next edit withdraws that report while the unsaved mark shows.
+#[test]
+fn a_save_report_goes_with_the_next_edit() {
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let file = dir.path().join("design.ron");
+    std::fs::write(
+        &file,
+        design::to_ron(&Design::default()).unwrap_or_else(|e| panic!("{e}")),
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(dir.path().join("state"), Some(file.clone())));
+    h.run();
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.26");
+    h.run();
+    h.key_press_modifiers(Modifiers::COMMAND, Key::S);
+    h.run();
+    assert!(!h.state().is_dirty());
+    let saved = h.state().shown_status().map(|s| s.text.clone());
+    assert!(
+        saved.as_deref().is_some_and(|t| t.starts_with("Saved")),
+        "{saved:?}"
+    );
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.27");
+    h.run();
+    assert!(h.state().is_dirty());
+    assert!(h.query_by_label_contains("unsaved").is_some());
+    assert!(
+        h.state().shown_status().is_none() && h.query_by_label_contains("Saved ").is_none(),
+        "a stale save report beside the unsaved mark"
+    );
+}
