@@ -563,7 +563,7 @@ impl Path {
 }
 
 /// A state without a solution (`BeyondLimit` or `SolveFailed`): force and stress fields NaN.
-fn no_state(phase: Phase, stroke: f64) -> StripState {
+pub fn no_state(phase: Phase, stroke: f64) -> StripState {
     StripState {
         phase,
         stroke,

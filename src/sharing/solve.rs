@@ -60,19 +60,7 @@ impl Eval {
 
 /// A strip state that is past the limit (or has no clearance).
 fn beyond_state(stroke: f64) -> StripState {
-    StripState {
-        phase: Phase::BeyondLimit,
-        stroke,
-        k: f64::NAN,
-        phi0: f64::NAN,
-        arc: f64::NAN,
-        axial: f64::NAN,
-        contact: f64::NAN,
-        crest_height: f64::NAN,
-        flat_length: f64::NAN,
-        kappa_max: f64::NAN,
-        energy: f64::NAN,
-    }
+    crate::elastica::no_state(Phase::BeyondLimit, stroke)
 }
 
 impl LoadedBore<'_> {
