@@ -556,11 +556,27 @@ impl<'a> LoadedBore<'a> {
     }
 
     /// The loaded state at `stroke_mm`. Centred cases come from the centred model.
+    ///
+    /// Past the segment's limit (the first stroke at which any strip reaches its own limit,
+    /// [`BoreStrokes::limit_stroke_mm`]) the state is beyond the limit, even where the solver
+    /// would find a balance again further on: a hub resting on its support can press its
+    /// lowest strips past their limit before they lift it, and a balance found at a larger
+    /// stroke lies on a branch the model does not reach.
     pub fn state(&self, stroke_mm: f64) -> Result<SharedState, SharingError> {
         check_stroke(stroke_mm)?;
         match &self.centred {
             Some(path) => Ok(self.centred_state(path, stroke_mm)),
-            None => Ok(self.solve(stroke_mm)?),
+            None => {
+                let st = self.solve(stroke_mm)?;
+                let limit = self.strokes()?.limit_stroke_mm;
+                // The limit is the valid end of a bracket 1e-12 wide: a stroke that rounds
+                // onto it is at the limit, not past it.
+                if st.beyond_limit || stroke_mm <= limit * (1.0 + 1e-9) {
+                    Ok(st)
+                } else {
+                    Ok(self.beyond(stroke_mm, st.hub_offset_mm, st.evaluations))
+                }
+            }
         }
     }
 

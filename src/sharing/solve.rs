@@ -149,7 +149,7 @@ impl LoadedBore<'_> {
         Ok((e.force[0] + w, e))
     }
 
-    fn beyond(&self, stroke_mm: f64, d: [f64; 2], evaluations: usize) -> SharedState {
+    pub(super) fn beyond(&self, stroke_mm: f64, d: [f64; 2], evaluations: usize) -> SharedState {
         SharedState {
             stroke_mm,
             hub_offset_mm: d,

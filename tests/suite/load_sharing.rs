@@ -690,7 +690,10 @@ fn design_entry_gives_the_governing_case_and_its_check_inputs() {
     assert_eq!(p.hub_offset_mm, [0.0, 0.0]);
 
     let mut heavy = plain.clone();
-    heavy.duty.radial_load_n = 300.0;
+    // 100 N: the hub lifts off its rim before any strip reaches its limit in all four
+    // cases (at 150 N the bottom strip's flat run reaches its limit first; see
+    // `no_state_is_reported_past_the_segments_limit`).
+    heavy.duty.radial_load_n = 100.0;
     heavy.bore.out_of_round_mm = 1.0;
     assert!(sharing::design_uses_sharing(&heavy));
     let seg = Segment::new(&heavy).expect("valid");
@@ -791,7 +794,8 @@ fn point_json_reports_the_hub_offset_and_every_strip() {
     let text = std::fs::read_to_string(&sample).unwrap_or_else(|e| panic!("{e}"));
     let loaded = text.replace(
         "holding_force_n: 24.5,",
-        "holding_force_n: 24.5, radial_load_n: 40.0,",
+        // 20 N: the hub lifts off its rest within the limit (at 40 N it does not).
+        "holding_force_n: 24.5, radial_load_n: 20.0,",
     );
     assert_ne!(loaded, text, "the sample's duty line moved");
     let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
@@ -868,4 +872,40 @@ fn point_json_reports_the_hub_offset_and_every_strip() {
     // Without a load the sample's output has none of the new keys.
     let plain = run(&sample, &[]);
     assert!(plain.get("hub_offset_mm").is_none() && plain.get("strips").is_none());
+}
+
+#[test]
+fn no_state_is_reported_past_the_segments_limit() {
+    // mechanics.md, "Load sharing": the segment's limit is the first stroke at which any
+    // strip reaches its own limit. A 40 N load on the riser sample rests the hub on its rim,
+    // and the two strips nearest the bottom reach line contact at a small gap and their flat
+    // run's limit before they lift the hub; further on the solver finds a balance with the
+    // hub lifted, on a branch the model does not reach. Every state past the limit must say
+    // so, with no strip results (the model's own definition, not a number to match).
+    let seg = Segment::new(&sample("riser-climber-2in-sch40.ron")).expect("valid");
+    let loading = Loading {
+        radial_load_n: 40.0,
+        clocking: Clocking::Gap,
+        ..Loading::default()
+    };
+    let loaded = seg
+        .loaded_at_bore(seg.bore_smallest_mm, &loading)
+        .expect("fits");
+    let limit = loaded.strokes().expect("strokes").limit_stroke_mm;
+    let at_limit = loaded.state(limit).expect("solves");
+    assert!(
+        !at_limit.beyond_limit,
+        "the limit stroke itself has a state"
+    );
+    for j in 1..=20 {
+        let stroke = limit + 0.1 * j as f64;
+        let st = loaded.state(stroke).expect("solves");
+        assert!(
+            st.beyond_limit,
+            "a state at {stroke} mm past the limit {limit} mm"
+        );
+        assert!(st.strips.is_empty());
+        let row = loaded.segment_state(stroke).expect("solves");
+        assert_eq!(row.phase, bowgrip::elastica::Phase::BeyondLimit);
+    }
 }
