@@ -536,7 +536,10 @@ impl Path {
             phi0,
             arc: 0.5,
             axial: q.axial.v * self.scale_force,
-            contact: q.contact.v * self.scale_force,
+            // The wall only pushes. States are reported up to the limit, which stops where
+            // the contact force returns to zero (`LimitReason::LeavesWall`); a state solved
+            // afresh at that stroke can land a rounding error below zero (-3e-13 N seen).
+            contact: (q.contact.v * self.scale_force).max(0.0),
             crest_height: self.gap,
             flat_length: 0.0,
             kappa_max: q.kappa.v * self.scale_curvature,
