@@ -240,6 +240,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         bore_mm: None,
         stroke_mm: Some(0.0),
     });
+    crate::sharing::checks::amend(seg, &mut out);
     out
 }
 

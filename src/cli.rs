@@ -96,8 +96,12 @@ pub struct PointArgs {
     #[arg(long = "bore-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
     pub bore_mm: Option<f64>,
     /// Print one JSON object instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "csv")]
     pub json: bool,
+    /// Print the strips as CSV instead of a table: one row per strip in order of clock angle
+    /// from the top (clock_deg, gap_mm, phase, contact_force_n, axial_force_n, max_stress_mpa).
+    #[arg(long)]
+    pub csv: bool,
     /// Load sharing: what sits on the load line at the bottom [default: the governing case].
     #[arg(long, value_enum)]
     pub clocking: Option<ClockingArg>,
@@ -560,7 +564,14 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
     if !shared {
         let state = path.state(a.stroke_mm);
-        if a.json {
+        if a.csv {
+            // Every strip carries the same share: the centred state, once per strip.
+            let st = seg
+                .loaded_at_bore(path.bore_mm(), &sharing::Loading::default())
+                .and_then(|l| l.state(a.stroke_mm))
+                .map_err(|e| anyhow!("{}: {e}", a.file.display()))?;
+            write!(out, "{}", sharing::strips_csv(&sharing::strip_rows(&st)))?;
+        } else if a.json {
             serde_json::to_writer(&mut *out, &state)?;
             writeln!(out)?;
         } else {
@@ -593,7 +604,9 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             show_number(bore)
         )
     })?;
-    if a.json {
+    if a.csv {
+        write!(out, "{}", sharing::strips_csv(&loaded.strips))?;
+    } else if a.json {
         serde_json::to_writer(&mut *out, &loaded_json(&loaded)?)?;
         writeln!(out)?;
     } else {
@@ -662,11 +675,22 @@ fn strips_table(p: &sharing::LoadedPoint) -> String {
         "  {:>9}  {:>9}  {:<13}  {:>11}  {:>11}  {:>11}",
         "clock deg", "gap mm", "phase", "contact N", "axial N", "stress MPa"
     );
+    let num = |v: f64, d: usize| fixed(v.is_finite().then_some(v), d);
     for r in &p.strips {
+        let phase = if r.phase.has_state() {
+            r.phase.to_string()
+        } else {
+            "off the wall".to_string()
+        };
         let _ = writeln!(
             t,
-            "  {:>9.1}  {:>9.4}  {:<13}  {:>11.3}  {:>11.3}  {:>11.1}",
-            r.clock_deg, r.gap_mm, r.phase, r.contact_force_n, r.axial_force_n, r.max_stress_mpa
+            "  {:>9.1}  {:>9.4}  {:<13}  {:>11.3}  {:>11}  {:>11}",
+            r.clock_deg,
+            r.gap_mm,
+            phase,
+            r.contact_force_n,
+            num(r.axial_force_n, 3),
+            num(r.max_stress_mpa, 1)
         );
     }
     t

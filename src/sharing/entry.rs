@@ -63,6 +63,59 @@ pub struct StripRow {
     pub max_stress_mpa: f64,
 }
 
+/// The columns of the `strips` CSV (`point --csv`), in order: the contract's names.
+pub const STRIP_COLUMNS: [&str; 6] = [
+    "clock_deg",
+    "gap_mm",
+    "phase",
+    "contact_force_n",
+    "axial_force_n",
+    "max_stress_mpa",
+];
+
+/// The `strips` CSV: a header of [`STRIP_COLUMNS`], then one row per strip in order of
+/// clock angle from the top. Numbers print with full round-trip precision; a quantity the
+/// model does not give (a strip off the wall has no axial force or stress) is an empty cell.
+/// Beyond the limit there are no strip rows, only the header.
+pub fn strips_csv(rows: &[StripRow]) -> String {
+    let cell = |v: f64| {
+        if v.is_finite() {
+            v.to_string()
+        } else {
+            String::new()
+        }
+    };
+    let mut out = STRIP_COLUMNS.join(",");
+    out.push('\n');
+    for r in rows {
+        out.push_str(&format!(
+            "{},{},{},{},{},{}\n",
+            cell(r.clock_deg),
+            cell(r.gap_mm),
+            r.phase,
+            cell(r.contact_force_n),
+            cell(r.axial_force_n),
+            cell(r.max_stress_mpa)
+        ));
+    }
+    out
+}
+
+/// The per-strip rows of a loaded state.
+pub fn strip_rows(st: &SharedState) -> Vec<StripRow> {
+    st.strips
+        .iter()
+        .map(|s| StripRow {
+            clock_deg: s.clock_deg,
+            gap_mm: s.gap_mm,
+            phase: s.phase,
+            contact_force_n: s.contact_force_n,
+            axial_force_n: s.axial_force_n,
+            max_stress_mpa: s.max_stress_mpa,
+        })
+        .collect()
+}
+
 /// What the checks read from a loaded state.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct CheckInputs {
@@ -85,6 +138,9 @@ pub struct CheckInputs {
     pub top_strip_touches: bool,
     /// Whether the hub still rests on its rim (the strips do not carry all the load).
     pub on_support: bool,
+    /// Strips off the wall (past their own limit while the hub rests): their stress is not
+    /// modelled, so the stress checks cannot pass.
+    pub strips_off_wall: usize,
 }
 
 /// The governing loaded state at one bore and stroke.
@@ -137,7 +193,7 @@ fn check_inputs(st: &SharedState) -> Option<CheckInputs> {
         .strips
         .iter()
         .filter(|s| s.clock_deg.to_radians().cos() >= top - 1e-9)
-        .all(|s| s.phase != Phase::Free);
+        .all(|s| matches!(s.phase, Phase::PointContact | Phase::LineContact));
     let t = &st.totals;
     Some(CheckInputs {
         holding_force_n: t.holding_force_n,
@@ -149,6 +205,7 @@ fn check_inputs(st: &SharedState) -> Option<CheckInputs> {
         strips: st.strips.len(),
         top_strip_touches,
         on_support: st.on_support,
+        strips_off_wall: t.strips_off_wall,
     })
 }
 
@@ -177,18 +234,7 @@ fn point_of(
         governing: gov.reason,
         hub_offset_mm: st.hub_offset_mm,
         beyond_limit: st.beyond_limit,
-        strips: st
-            .strips
-            .iter()
-            .map(|s| StripRow {
-                clock_deg: s.clock_deg,
-                gap_mm: s.gap_mm,
-                phase: s.phase,
-                contact_force_n: s.contact_force_n,
-                axial_force_n: s.axial_force_n,
-                max_stress_mpa: s.max_stress_mpa,
-            })
-            .collect(),
+        strips: strip_rows(&st),
         first_strip_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
         lift_off_stroke_mm: strokes.lift_off_stroke_mm,
         last_strip_contact_stroke_mm: strokes.last_strip_contact_stroke_mm,

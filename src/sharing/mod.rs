@@ -14,13 +14,14 @@
 //! points along `(cos theta, sin theta)`. With no load, a round bore and equal strips the
 //! results are the centred model's ([`crate::segment::BorePath`]) exactly.
 
+pub mod checks;
 mod entry;
 mod geometry;
 mod solve;
 
 pub use entry::{
-    CaseChoice, CheckInputs, LoadedPoint, SharingChecks, StripRow, bend_passage, checks_at,
-    design_uses_sharing, loaded_point, loading_of,
+    CaseChoice, CheckInputs, LoadedPoint, STRIP_COLUMNS, SharingChecks, StripRow, bend_passage,
+    checks_at, design_uses_sharing, loaded_point, loading_of, strip_rows, strips_csv,
 };
 
 use std::cell::OnceCell;
@@ -244,9 +245,14 @@ pub struct Totals {
     pub mean_contact_force_per_strip_n: f64,
     /// Reaction of the rest support on the hub `[y, z]`, N (zero when the strips carry the load).
     pub support_reaction_n: [f64; 2],
-    /// Strips touching the wall.
+    /// Strips touching the wall with a state (point or line contact).
     pub strips_in_contact: usize,
-    /// Index (clock order) of the strip with the highest stress.
+    /// Strips past their own limit while the hub rests on its rim: they have left the wall
+    /// (their flat run buckled away) and carry nothing; the rim carries the load. Their
+    /// axial force and stress are not modelled, so the totals that need them are NaN.
+    pub strips_off_wall: usize,
+    /// Index (clock order) of the strip with the highest stress (an off-wall strip, whose
+    /// stress is unknown, when there is one).
     pub worst_strip: usize,
     /// Strain energy in all strips, J.
     pub strain_energy_j: f64,
@@ -627,6 +633,7 @@ impl<'a> LoadedBore<'a> {
             mean_contact_force_per_strip_n: s.contact_force_per_strip_n.unwrap_or(0.0),
             support_reaction_n: [0.0, 0.0],
             strips_in_contact: if in_contact && !beyond { n } else { 0 },
+            strips_off_wall: 0,
             worst_strip: 0,
             strain_energy_j: s.strain_energy_j.unwrap_or(0.0),
         };
@@ -642,7 +649,11 @@ impl<'a> LoadedBore<'a> {
         }
     }
 
-    /// Builds the per-strip results and totals from solved strip states.
+    /// Builds the per-strip results and totals from solved strip states. A strip state
+    /// past its limit is a strip that has left the wall while the hub rests on its rim (the
+    /// solver only passes such states together with a support reaction): no contact force,
+    /// and its axial force, stress and shape are unknown (NaN), as are the totals that need
+    /// them.
     fn assemble(
         &self,
         stroke_mm: f64,
@@ -659,14 +670,23 @@ impl<'a> LoadedBore<'a> {
         for (i, (gap_mm, s)) in strips.iter().enumerate() {
             let p = &self.places[i];
             let k = &self.classes[p.class];
+            let off_wall = !s.phase.has_state();
             let stress = k.stress_per_kappa * s.kappa_max + k.stress_per_axial * s.axial;
-            let contact = s.contact * k.force_unit_n;
+            let contact = if off_wall {
+                0.0
+            } else {
+                s.contact * k.force_unit_n
+            };
             force[0] += contact * p.u[0];
             force[1] += contact * p.u[1];
             results.push(StripResult {
                 clock_deg: clock_deg(p.clock_rad),
                 gap_mm: *gap_mm,
-                phase: s.phase,
+                phase: if off_wall {
+                    Phase::BeyondLimit
+                } else {
+                    s.phase
+                },
                 contact_force_n: contact,
                 axial_force_n: s.axial * k.force_unit_n,
                 max_stress_mpa: stress,
@@ -678,29 +698,44 @@ impl<'a> LoadedBore<'a> {
             });
         }
         let n = results.len() as f64;
+        let off_wall = results
+            .iter()
+            .filter(|r| r.phase == Phase::BeyondLimit)
+            .count();
         let sum = |f: fn(&StripResult) -> f64| results.iter().map(f).sum::<f64>();
+        // An off-wall strip's stress is unknown: it is the worst until shown otherwise.
         let worst_strip = (0..results.len())
             .max_by(|&a, &b| {
-                results[a]
-                    .max_stress_mpa
-                    .total_cmp(&results[b].max_stress_mpa)
+                let key = |r: &StripResult| {
+                    if r.phase == Phase::BeyondLimit {
+                        f64::INFINITY
+                    } else {
+                        r.max_stress_mpa
+                    }
+                };
+                key(&results[a]).total_cmp(&key(&results[b]))
             })
             .unwrap_or(0);
         let radial = sum(|r| r.contact_force_n);
         let axial = sum(|r| r.axial_force_n);
         let min_of =
             |f: fn(&StripResult) -> f64| results.iter().map(f).fold(f64::INFINITY, f64::min);
+        let known = |v: f64| if off_wall > 0 { f64::NAN } else { v };
         let totals = Totals {
             actuator_force_n: axial,
             radial_force_n: radial,
             holding_force_n: mu * radial,
-            max_stress_mpa: results.get(worst_strip).map_or(0.0, |r| r.max_stress_mpa),
-            static_safety_factor: min_of(|r| r.static_safety_factor),
-            fatigue_safety_factor: min_of(|r| r.fatigue_safety_factor),
+            max_stress_mpa: known(results.get(worst_strip).map_or(0.0, |r| r.max_stress_mpa)),
+            static_safety_factor: known(min_of(|r| r.static_safety_factor)),
+            fatigue_safety_factor: known(min_of(|r| r.fatigue_safety_factor)),
             mean_axial_force_per_strip_n: axial / n,
             mean_contact_force_per_strip_n: radial / n,
             support_reaction_n: support,
-            strips_in_contact: results.iter().filter(|r| r.phase != Phase::Free).count(),
+            strips_in_contact: results
+                .iter()
+                .filter(|r| matches!(r.phase, Phase::PointContact | Phase::LineContact))
+                .count(),
+            strips_off_wall: off_wall,
             worst_strip,
             strain_energy_j: sum(|r| r.strain_energy_j),
         };
@@ -762,6 +797,9 @@ impl<'a> LoadedBore<'a> {
             })
             .fold(f64::NEG_INFINITY, f64::max);
         let t = &st.totals;
+        // Strips off the wall (past their limit while the hub rests on its rim): the pull,
+        // the stress and the energy need their unknown states.
+        let known = |v: f64| (ok && t.strips_off_wall == 0).then_some(v);
         let phase = if !ok {
             Phase::BeyondLimit
         } else {
@@ -778,14 +816,14 @@ impl<'a> LoadedBore<'a> {
         Ok(SegmentState {
             stroke_mm,
             phase,
-            axial_force_per_strip_n: some(t.mean_axial_force_per_strip_n),
+            axial_force_per_strip_n: known(t.mean_axial_force_per_strip_n),
             contact_force_per_strip_n: some(t.mean_contact_force_per_strip_n),
-            actuator_force_n: some(t.actuator_force_n),
+            actuator_force_n: known(t.actuator_force_n),
             radial_force_n: some(t.radial_force_n),
             holding_force_n: some(t.holding_force_n),
             outer_diameter_mm: some(outer),
             flat_length_mm: some(max_of(|s| s.flat_length_mm)),
-            max_stress_mpa: some(t.max_stress_mpa),
+            max_stress_mpa: known(t.max_stress_mpa),
             first_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
             line_contact_stroke_mm: self.line_contact_stroke_mm(d),
             bore_mm: self.bore_mm,
@@ -793,18 +831,22 @@ impl<'a> LoadedBore<'a> {
             limit_stroke_mm: strokes.limit_stroke_mm,
             limit_reason: strokes.limit_reason,
             crest_height_mm: some(max_of(|s| s.crest_height_mm)),
-            static_safety_factor: some(t.static_safety_factor),
-            fatigue_safety_factor: some(t.fatigue_safety_factor),
-            strain_energy_j: some(t.strain_energy_j),
-            actuator: ok.then(|| seg.actuator_reading(stroke_mm, t.actuator_force_n)),
-            reason: (!ok).then(|| {
-                format!(
+            static_safety_factor: known(t.static_safety_factor),
+            fatigue_safety_factor: known(t.fatigue_safety_factor),
+            strain_energy_j: known(t.strain_energy_j),
+            actuator: known(t.actuator_force_n).map(|f| seg.actuator_reading(stroke_mm, f)),
+            reason: if !ok {
+                Some(format!(
                     "beyond the model's limit at {:.3} mm: strip at {:.0} deg: {}",
                     strokes.limit_stroke_mm,
                     clock_deg(self.places[strokes.limit_strip].clock_rad),
                     strokes.limit_reason.describe()
-                )
-            }),
+                ))
+            } else if t.strips_off_wall > 0 {
+                Some(off_wall_reason(&st))
+            } else {
+                None
+            },
         })
     }
 
@@ -831,6 +873,24 @@ fn check_stroke(stroke_mm: f64) -> Result<(), SharingError> {
             allowed: "a finite number of mm >= 0".into(),
         })
     }
+}
+
+/// Why a state with strips off the wall has no pull or stress: which strips, in words.
+pub fn off_wall_reason(st: &SharedState) -> String {
+    let clocks: Vec<String> = st
+        .strips
+        .iter()
+        .filter(|s| s.phase == Phase::BeyondLimit)
+        .map(|s| format!("{:.0}", s.clock_deg))
+        .collect();
+    format!(
+        "the hub rests on its rim and the strip{} at {} deg {} past {} own limit: off the wall (the rim carries the load); {} axial force and stress are not modelled",
+        if clocks.len() == 1 { "" } else { "s" },
+        clocks.join(", "),
+        if clocks.len() == 1 { "is" } else { "are" },
+        if clocks.len() == 1 { "its" } else { "their" },
+        if clocks.len() == 1 { "its" } else { "their" },
+    )
 }
 
 /// Clock angle in degrees in `[0, 360)`.
@@ -911,7 +971,14 @@ fn governing_of(
                 (true, false) => true,
                 (false, true) | (true, true) => false,
                 (false, false) => match judge {
-                    Judge::HighestStress => st.totals.max_stress_mpa > b.totals.max_stress_mpa,
+                    // A strip off the wall has an unknown stress: it governs.
+                    Judge::HighestStress => {
+                        match (st.totals.strips_off_wall, b.totals.strips_off_wall) {
+                            (0, 0) => st.totals.max_stress_mpa > b.totals.max_stress_mpa,
+                            (_, 0) => true,
+                            _ => false,
+                        }
+                    }
                     Judge::LeastHolding => st.totals.holding_force_n < b.totals.holding_force_n,
                     Judge::FewestInContact => {
                         (st.totals.strips_in_contact, -st.totals.holding_force_n)
@@ -932,6 +999,11 @@ fn governing_of(
         });
     };
     let what = match judge {
+        Judge::HighestStress if state.totals.strips_off_wall > 0 => format!(
+            "a strip off the wall, {} of {}",
+            state.totals.strips_off_wall,
+            state.strips.len()
+        ),
         Judge::HighestStress => format!(
             "highest worst-strip stress, {:.1} MPa",
             state.totals.max_stress_mpa

@@ -167,6 +167,7 @@ impl LoadedBore<'_> {
                 mean_contact_force_per_strip_n: 0.0,
                 support_reaction_n: [0.0, 0.0],
                 strips_in_contact: 0,
+                strips_off_wall: 0,
                 worst_strip: 0,
                 strain_energy_j: 0.0,
             },
@@ -224,7 +225,7 @@ impl LoadedBore<'_> {
                 best = Some((y, r.abs()));
             }
             if r.is_nan() {
-                return Ok(self.beyond(stroke_mm, [y, 0.0], count.get()));
+                return self.rest_or_beyond(stroke_mm, [y, 0.0], count.get());
             }
             let all_free = !e.is_beyond() && e.strips.iter().all(|(_, s)| s.contact == 0.0);
             if w == 0.0 && all_free {
@@ -287,7 +288,7 @@ impl LoadedBore<'_> {
                     lo.1.is_some_and(f64::is_infinite) || hi.1.is_some_and(f64::is_infinite);
                 let at = match best {
                     Some((yb, rb)) if !across_limit || rb <= 100.0 * self.tolerance_n(&e) => yb,
-                    _ => return Ok(self.beyond(stroke_mm, [next, 0.0], count.get())),
+                    _ => return self.rest_or_beyond(stroke_mm, [next, 0.0], count.get()),
                 };
                 let (_, e) = eval(at)?;
                 return Ok(self.assemble_eval(stroke_mm, [at, 0.0], &e, [0.0, 0.0], count.get()));
@@ -298,6 +299,68 @@ impl LoadedBore<'_> {
             stroke_mm,
             iterations: MAX_ITER_1D,
         })
+    }
+
+    /// Whether the strips past their limit in `e` (the hub on its rest) have left the wall
+    /// rather than marking the segment's limit: each sits closer to the wall than with the
+    /// hub centred and has a state at this stroke there, so it is past its limit only
+    /// because the hub rests on its side, and comes back once the strips lift the hub.
+    fn off_wall_allowed(&self, e: &Eval, stroke_mm: f64) -> bool {
+        e.beyond.iter().all(|&i| {
+            let gap_rest = e.strips[i].0;
+            let gap_centre = self.gap_mm(i, [0.0, 0.0], false);
+            let l = self.classes[self.places[i].class].length_mm;
+            gap_rest < gap_centre
+                && Path::new(self.segment.design.strip.ends, gap_centre / l)
+                    .is_ok_and(|p| p.phase_at(stroke_mm / l).has_state())
+        })
+    }
+
+    /// Symmetric cases with no balance short of a strip's limit: the hub on its rest, the
+    /// strips past their own limit there off the wall (mechanics note, "Load sharing": the
+    /// rest support carries what the strips do not), when the other strips push less than
+    /// the load and those strips are past their limit only because the hub rests on their
+    /// side ([`Self::off_wall_allowed`]); else the state is beyond the segment's limit.
+    fn rest_or_beyond(
+        &self,
+        stroke_mm: f64,
+        d: [f64; 2],
+        evaluations: usize,
+    ) -> Result<SharedState, SolveFailure> {
+        let w = self.loading.radial_load_n;
+        if w > 0.0 {
+            let y = -self.clearance_y_mm;
+            let e = self.eval([y, 0.0], stroke_mm, true)?;
+            let r = e.force[0] + w;
+            if r >= 0.0 && self.off_wall_allowed(&e, stroke_mm) {
+                return Ok(self.assemble(
+                    stroke_mm,
+                    [y, 0.0],
+                    &e.strips,
+                    [r, 0.0],
+                    evaluations + 1,
+                ));
+            }
+        }
+        Ok(self.beyond(stroke_mm, d, evaluations))
+    }
+
+    /// Unequal strips with no balance short of a strip's limit: the hub on the wall with
+    /// strips off it, as [`Self::rest_or_beyond`], else beyond the limit.
+    fn wall_or_beyond(
+        &self,
+        stroke_mm: f64,
+        d: [f64; 2],
+        evaluations: usize,
+    ) -> Result<SharedState, SolveFailure> {
+        if self.loading.radial_load_n > 0.0 {
+            match self.solve_on_wall(stroke_mm, evaluations) {
+                Ok(st) => return Ok(st),
+                Err(SolveFailure::NoRestBalance { .. }) => {}
+                Err(e) => return Err(e),
+            }
+        }
+        Ok(self.beyond(stroke_mm, d, evaluations))
     }
 
     fn assemble_eval(
@@ -541,7 +604,7 @@ impl LoadedBore<'_> {
         let settle = |o: Outer, count: usize| -> Result<SharedState, SolveFailure> {
             let d = [o.y, o.inner.z];
             match o.inner.r {
-                None => Ok(self.beyond(stroke_mm, d, count)),
+                None => self.wall_or_beyond(stroke_mm, d, count),
                 Some(_) if o.inner.clamped => self.solve_on_wall(stroke_mm, count),
                 Some(r) => {
                     let tol = self.tolerance_n(&o.inner.e);
@@ -557,7 +620,7 @@ impl LoadedBore<'_> {
             }
         };
         if first.g.is_nan() {
-            return Ok(self.beyond(stroke_mm, [0.0, first.inner.z], count));
+            return self.wall_or_beyond(stroke_mm, [0.0, first.inner.z], count);
         }
         let tol_of = |o: &Outer| self.tolerance_n(&o.inner.e);
         if first.g.is_finite() && first.g.abs() <= tol_of(&first) {
@@ -566,7 +629,7 @@ impl LoadedBore<'_> {
         let y1 = if first.g > 0.0 { -cy } else { cy };
         let end = outer(y1, &mut z_prev, &mut count)?;
         if end.g.is_nan() {
-            return Ok(self.beyond(stroke_mm, [end.y, end.inner.z], count));
+            return self.wall_or_beyond(stroke_mm, [end.y, end.inner.z], count);
         }
         if end.g.signum() == first.g.signum() {
             // The strips cannot balance the load anywhere in the reach: the hub rests.
@@ -593,7 +656,7 @@ impl LoadedBore<'_> {
             };
             let o = outer(y, &mut z_prev, &mut count)?;
             if o.g.is_nan() {
-                return Ok(self.beyond(stroke_mm, [o.y, o.inner.z], count));
+                return self.wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
             }
             if o.g.is_finite() && o.g.abs() <= tol_of(&o) {
                 return settle(o, count);
@@ -601,7 +664,7 @@ impl LoadedBore<'_> {
             if b.y - a.y <= floor {
                 // At the rounding floor: a jump across a strip's limit is no state.
                 if !(fa.is_finite() && fb.is_finite()) {
-                    return Ok(self.beyond(stroke_mm, [o.y, o.inner.z], count));
+                    return self.wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
                 }
                 return settle(o, count);
             }
@@ -643,10 +706,14 @@ impl LoadedBore<'_> {
                 curvature_mm: curvature,
             });
         }
+        // On the wall, strips past their limit only because the hub rests on their side
+        // have left it and carry nothing.
         let tangential = |phi: f64| -> Result<WallPoint, SolveFailure> {
             count.set(count.get() + 1);
             let d = self.bore.inner_parallel(phi, rim);
-            let (r, e) = self.residual_2d(d, stroke_mm)?;
+            let e = self.eval(d, stroke_mm, false)?;
+            let r = (!e.is_beyond() || self.off_wall_allowed(&e, stroke_mm))
+                .then(|| [e.force[0] + self.loading.radial_load_n, e.force[1]]);
             Ok((r.map(|r| (-r[0] * phi.sin() + r[1] * phi.cos(), r)), d, e))
         };
         // The hub rests where the net push on it, taken at the centre, points: under a
@@ -692,7 +759,7 @@ impl LoadedBore<'_> {
                     return Err(SolveFailure::NoRestBalance { stroke_mm });
                 }
                 let support = [-push * c, -push * s];
-                return Ok(self.assemble_eval(stroke_mm, d, &e, support, count.get()));
+                return Ok(self.assemble(stroke_mm, d, &e.strips, support, count.get()));
             }
             if t > 0.0 {
                 hi = mid;
@@ -818,8 +885,13 @@ impl LoadedBore<'_> {
         let upper = limit_stroke_mm.max(first);
         let last = self
             .first_true(first, upper, |s| {
-                self.solve(s)
-                    .map(|st| !st.beyond_limit && st.strips.iter().all(|r| r.phase != Phase::Free))
+                self.solve(s).map(|st| {
+                    !st.beyond_limit
+                        && st
+                            .strips
+                            .iter()
+                            .all(|r| matches!(r.phase, Phase::PointContact | Phase::LineContact))
+                })
             })?
             .map(|(_, t)| t);
         let lift_off = if self.loading.radial_load_n == 0.0 {

@@ -6,7 +6,7 @@ use std::path::Path as FsPath;
 
 use bowgrip::bend::{self, Bend};
 use bowgrip::design::{self, Design};
-use bowgrip::elastica::Path;
+use bowgrip::elastica::{Path, Phase};
 use bowgrip::segment::Segment;
 use bowgrip::sharing::{self, Clocking, Judge, Loading, MajorAxis, StripDeviation};
 
@@ -875,16 +875,95 @@ fn point_json_reports_the_hub_offset_and_every_strip() {
 }
 
 #[test]
+fn a_strip_past_its_limit_while_the_hub_rests_leaves_the_wall() {
+    // mechanics.md, "Load sharing": the rest support (the relaxed rim) carries what the
+    // strips do not. A 40 N load on the riser sample rests the hub on its rim, 5 mm low, so
+    // the strips nearest the bottom sit at about 1.4 mm from the wall and reach their own
+    // flat-run limit (at about 9 g^2 / 2L = 0.08 mm of stroke, Timoshenko and Gere, chapter
+    // 1, as in the note) long before the strips lift the hub. Those strips have left the
+    // wall (their flat run buckled away) while the rim carries the load: a state, not the
+    // segment's limit. Once the strips lift the hub (their gaps open again) every strip has
+    // a state, and the limit, the lift-off and the last contact lie further on.
+    let seg = Segment::new(&sample("riser-climber-2in-sch40.ron")).expect("valid");
+    let w = 40.0;
+    for bore in [seg.bore_smallest_mm, seg.bore_largest_mm] {
+        for clocking in [Clocking::Strip, Clocking::Gap] {
+            let loading = Loading {
+                radial_load_n: w,
+                clocking,
+                ..Loading::default()
+            };
+            let loaded = seg.loaded_at_bore(bore, &loading).expect("fits");
+            let strokes = loaded.strokes().expect("strokes");
+            let what = format!("bore {bore} {clocking:?}");
+            assert!(strokes.limit_stroke_mm > 1.5, "{what}: {strokes:?}");
+            let lift = strokes.lift_off_stroke_mm.expect("the strips lift the hub");
+            assert!(lift < 0.3, "{what}: lift-off at {lift}");
+            let last = strokes
+                .last_strip_contact_stroke_mm
+                .expect("the last strip touches");
+            assert!(last > lift && last < strokes.limit_stroke_mm, "{what}");
+            // Between first contact and lift-off: resting states, some with strips off
+            // the wall; each balances, and an off-wall strip is one nearer the wall than
+            // with the hub centred, with no force, pull or stress.
+            let first = strokes.first_strip_contact_stroke_mm.expect("reach");
+            let mut seen_off = false;
+            for j in 1..40 {
+                let stroke = first + (lift - first) * j as f64 / 40.0;
+                let st = loaded.state(stroke).expect("solves");
+                let at = format!("{what} stroke {stroke}");
+                assert!(!st.beyond_limit, "{at}");
+                check_balance(&st, w, &at);
+                let off: Vec<usize> = (0..st.strips.len())
+                    .filter(|&i| st.strips[i].phase == Phase::BeyondLimit)
+                    .collect();
+                assert_eq!(off.len(), st.totals.strips_off_wall, "{at}");
+                if off.is_empty() {
+                    continue;
+                }
+                seen_off = true;
+                assert!(st.on_support, "{at}: off the wall only while resting");
+                assert!(st.totals.support_reaction_n[0] > 0.0, "{at}");
+                let centred = loaded.gaps_mm([0.0, 0.0]);
+                for &i in &off {
+                    let s = &st.strips[i];
+                    assert_eq!(s.contact_force_n, 0.0, "{at}");
+                    assert!(s.clock_deg.to_radians().cos() < 0.0, "{at}: below the hub");
+                    assert!(s.gap_mm < centred[i], "{at}");
+                    assert!(s.max_stress_mpa.is_nan() && s.axial_force_n.is_nan());
+                }
+                let row = loaded.segment_state(stroke).expect("state");
+                assert!(row.max_stress_mpa.is_none() && row.actuator_force_n.is_none());
+                assert!(row.holding_force_n.is_some());
+                assert!(row.reason.is_some_and(|r| r.contains("off the wall")));
+            }
+            assert!(
+                seen_off,
+                "{what}: the bottom strips leave the wall on the way"
+            );
+            // From 0.3 mm to 1.5 mm every strip has a state.
+            for j in 0..=12 {
+                let stroke = 0.3 + 0.1 * j as f64;
+                let st = loaded.state(stroke).expect("solves");
+                assert!(!st.beyond_limit, "{what} stroke {stroke}");
+                assert!(!st.on_support, "{what} stroke {stroke}");
+                assert!(st.strips.iter().all(|s| s.phase.has_state()));
+                check_balance(&st, w, &format!("{what} stroke {stroke}"));
+            }
+        }
+    }
+}
+
+#[test]
 fn no_state_is_reported_past_the_segments_limit() {
     // mechanics.md, "Load sharing": the segment's limit is the first stroke at which any
-    // strip reaches its own limit. A 40 N load on the riser sample rests the hub on its rim,
-    // and the two strips nearest the bottom reach line contact at a small gap and their flat
-    // run's limit before they lift the hub; further on the solver finds a balance with the
-    // hub lifted, on a branch the model does not reach. Every state past the limit must say
-    // so, with no strip results (the model's own definition, not a number to match).
-    let seg = Segment::new(&sample("riser-climber-2in-sch40.ron")).expect("valid");
+    // strip reaches its own limit with the strips carrying the load (a strip past its limit
+    // while the rim carries the load has left the wall; see the test above). Every state
+    // past the limit must say so, with no strip results (the model's own definition, not a
+    // number to match). A 150 N load on the drain-crawler sample at its smallest bore.
+    let seg = Segment::new(&sample("drain-crawler-anchor-100mm.ron")).expect("valid");
     let loading = Loading {
-        radial_load_n: 40.0,
+        radial_load_n: 150.0,
         clocking: Clocking::Gap,
         ..Loading::default()
     };
@@ -898,7 +977,7 @@ fn no_state_is_reported_past_the_segments_limit() {
         "the limit stroke itself has a state"
     );
     for j in 1..=20 {
-        let stroke = limit + 0.1 * j as f64;
+        let stroke = limit * (1.0 + 0.02 * j as f64);
         let st = loaded.state(stroke).expect("solves");
         assert!(
             st.beyond_limit,

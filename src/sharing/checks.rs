@@ -1,0 +1,451 @@
+//! The design checks that load sharing changes or adds (issue 17; the contract's "Checks"
+//! table and its last section). When a design uses a load-sharing field (a radial load, an
+//! out-of-round bore or a bend), each check is judged at its own bore on the governing case
+//! over clocking and major axis: reach becomes "the strips lift the hub off its rest within
+//! the actuator's stroke" at the largest bore; holding sums friction over the strips in
+//! contact at the largest bore; static stress, fatigue, the actuator and the operating
+//! stroke are judged on the worst strip at the smallest bore; `top-strip` says whether the
+//! top strip touches at the operating stroke (a segment gripping on only part of its strips
+//! is named as such, and fails only when holding fails); `bend` says whether the relaxed
+//! segment passes the bend. A design without those fields keeps the centred checks exactly.
+//! Mechanics only: no GUI, PDF or file code.
+
+use crate::checks::{Check, MarginUnit};
+use crate::segment::Segment;
+
+use super::entry::{LoadedPoint, checks_at, design_uses_sharing, loading_of};
+use super::{BoreStrokes, Clocking, Loading, MajorAxis, cases};
+
+/// Title of the top-strip check.
+pub const TOP_STRIP_TITLE: &str = "the top strip touches at the operating stroke";
+/// Title of the bend check.
+pub const BEND_TITLE: &str = "passes the bend when relaxed";
+/// Title of the reach check under a radial load.
+pub const LIFT_TITLE: &str = "the strips lift the hub off its rest at the largest bore";
+
+/// Replaces the centred checks that load sharing changes and appends `top-strip` and (when
+/// the design gives a bend) `bend`. Does nothing for a design without load-sharing fields,
+/// so its checks stay exactly as they were.
+pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
+    if !design_uses_sharing(&seg.design) {
+        return;
+    }
+    let op = seg.design.operating_stroke_mm;
+    let loaded = checks_at(seg, op);
+    let replace = |checks: &mut Vec<Check>, new: Check| {
+        if let Some(c) = checks.iter_mut().find(|c| c.id == new.id) {
+            *c = new;
+        }
+    };
+    match &loaded {
+        Ok(l) => {
+            replace(checks, reach(seg));
+            let hold = hold(seg, &l.holding);
+            let hold_pass = hold.pass;
+            replace(checks, hold);
+            for c in stress_checks(seg, &l.stress) {
+                replace(checks, c);
+            }
+            replace(checks, stroke(seg, &l.stress));
+            checks.push(top_strip(seg, &l.top_strip, hold_pass));
+        }
+        Err(e) => {
+            // No loaded state: every check that needs one says why and fails.
+            let why = format!("load sharing could not be solved: {e}");
+            for c in checks.iter_mut().filter(|c| {
+                matches!(
+                    c.id,
+                    "reach" | "hold" | "static" | "fatigue" | "actuator" | "stroke"
+                )
+            }) {
+                c.pass = false;
+                c.margin = None;
+                c.reason = why.clone();
+            }
+            checks.push(Check {
+                id: "top-strip",
+                title: TOP_STRIP_TITLE,
+                pass: false,
+                margin: None,
+                unit: MarginUnit::Mm,
+                reason: why,
+                bore_mm: Some(seg.bore_largest_mm),
+                stroke_mm: Some(op),
+            });
+        }
+    }
+    if let Some(b) = bend(seg) {
+        checks.push(b);
+    }
+}
+
+/// The case in words: what sits on the load line and the major axis (when out of round).
+fn case_words(loading: &Loading, clocking: Clocking, axis: MajorAxis) -> String {
+    let what = match clocking {
+        Clocking::Strip => "a strip",
+        Clocking::Gap => "a gap",
+    };
+    if loading.out_of_round_mm > 0.0 {
+        format!("{what} on the load line, major axis {}", axis.name())
+    } else {
+        format!("{what} on the load line")
+    }
+}
+
+/// Reach under load sharing, at the largest bore: the strips must lift the hub off its rest
+/// (carry all of the radial load) within the actuator's maximum stroke, in every case; with
+/// no radial load, the first strip must touch. The worst case (the latest lift-off) governs.
+fn reach(seg: &Segment) -> Check {
+    let loading = loading_of(&seg.design);
+    let large = seg.bore_largest_mm;
+    let max_stroke = seg.max_stroke_mm();
+    let loaded = loading.radial_load_n > 0.0;
+    let title = if loaded {
+        LIFT_TITLE
+    } else {
+        "reaches the wall at the largest bore"
+    };
+    let fail = |reason: String, stroke: Option<f64>| Check {
+        id: "reach",
+        title,
+        pass: false,
+        margin: None,
+        unit: MarginUnit::Mm,
+        reason,
+        bore_mm: Some(large),
+        stroke_mm: stroke,
+    };
+    // The latest lift-off over the cases (`None` in a case: never, which governs).
+    let mut worst: Option<(f64, String)> = None;
+    for (clocking, axis) in cases(&loading) {
+        let case = Loading {
+            clocking,
+            major_axis: axis,
+            ..loading.clone()
+        };
+        let words = case_words(&loading, clocking, axis);
+        let strokes: BoreStrokes = match seg.loaded_at_bore(large, &case).and_then(|b| b.strokes())
+        {
+            Ok(s) => s,
+            Err(e) => return fail(format!("{words}: {e}"), None),
+        };
+        let Some(first) = strokes.first_strip_contact_stroke_mm else {
+            return fail(
+                format!(
+                    "bore {large:.2} mm is out of reach: the strips can reach at most {:.2} mm ({words})",
+                    seg.largest_reachable_bore_mm()
+                ),
+                None,
+            );
+        };
+        let at = if loaded {
+            strokes.lift_off_stroke_mm
+        } else {
+            Some(first)
+        };
+        let Some(at) = at else {
+            return fail(
+                format!(
+                    "the strips do not lift the hub off its rest before the model's limit at {:.3} mm stroke ({words}; the first strip touches at {first:.3} mm)",
+                    strokes.limit_stroke_mm
+                ),
+                None,
+            );
+        };
+        if worst.as_ref().is_none_or(|(s, _)| at > *s) {
+            worst = Some((at, words));
+        }
+    }
+    let Some((at, words)) = worst else {
+        return fail("no case to judge".into(), None);
+    };
+    let what = if loaded {
+        format!(
+            "the strips lift the hub off its rest (they carry all {:.2} N) at {at:.3} mm stroke",
+            loading.radial_load_n
+        )
+    } else {
+        format!("the first strip touches at {at:.3} mm stroke")
+    };
+    Check {
+        id: "reach",
+        title,
+        pass: at <= max_stroke,
+        margin: Some(max_stroke - at),
+        unit: MarginUnit::Mm,
+        reason: format!("{what} vs actuator maximum {max_stroke:.3} mm (worst case: {words})"),
+        bore_mm: Some(large),
+        stroke_mm: Some(at),
+    }
+}
+
+/// Beyond the limit, or strips off the wall: the reason a state cannot be judged.
+fn no_judgement(p: &LoadedPoint) -> String {
+    if p.beyond_limit {
+        p.segment_state
+            .reason
+            .clone()
+            .unwrap_or_else(|| "beyond the model's limit at the operating stroke".into())
+    } else {
+        p.segment_state
+            .reason
+            .clone()
+            .unwrap_or_else(|| "no state at the operating stroke".into())
+    }
+}
+
+/// Holding at the largest bore: friction times the contact forces summed over the strips
+/// in contact, the case with the least holding.
+fn hold(seg: &Segment, p: &LoadedPoint) -> Check {
+    let d = &seg.design;
+    let required = d.duty.holding_force_n * d.duty.safety_factor;
+    let title = "holds the required load at the largest bore";
+    let base = Check {
+        id: "hold",
+        title,
+        pass: false,
+        margin: None,
+        unit: MarginUnit::Ratio,
+        reason: String::new(),
+        bore_mm: Some(p.bore_mm),
+        stroke_mm: Some(p.stroke_mm),
+    };
+    let Some(c) = &p.checks else {
+        return Check {
+            reason: no_judgement(p),
+            ..base
+        };
+    };
+    let h = c.holding_force_n;
+    let over = format!(
+        "summed over the {} of {} strips in contact",
+        c.strips_in_contact, c.strips
+    );
+    if required > 0.0 {
+        Check {
+            pass: h >= required,
+            margin: Some(h / required - 1.0),
+            reason: format!(
+                "holding force {h:.2} N {over} vs {:.2} N x safety factor {:.2} = {required:.2} N ({})",
+                d.duty.holding_force_n, d.duty.safety_factor, p.governing
+            ),
+            ..base
+        }
+    } else {
+        Check {
+            pass: true,
+            reason: format!("no holding force required; the segment holds {h:.2} N {over}"),
+            ..base
+        }
+    }
+}
+
+/// Static stress, fatigue and the actuator at the smallest bore, on the worst strip of the
+/// case with the highest stress.
+fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
+    let s = &p.segment_state;
+    let bore = Some(p.bore_mm);
+    let stroke = Some(p.stroke_mm);
+    let fail = |id: &'static str, title: &'static str| Check {
+        id,
+        title,
+        pass: false,
+        margin: None,
+        unit: MarginUnit::Ratio,
+        reason: no_judgement(p),
+        bore_mm: bore,
+        stroke_mm: stroke,
+    };
+    let static_title = "static stress at the smallest bore";
+    let fatigue_title = "fatigue (Goodman, zero-to-peak) at the smallest bore";
+    let actuator_title = "actuator force or torque within rating";
+    let (Some(c), Some(stress), Some(fs), Some(ff)) = (
+        &p.checks,
+        s.max_stress_mpa,
+        s.static_safety_factor,
+        s.fatigue_safety_factor,
+    ) else {
+        return vec![
+            fail("static", static_title),
+            fail("fatigue", fatigue_title),
+            fail("actuator", actuator_title),
+        ];
+    };
+    let worst = format!("worst strip at {:.0} deg", c.worst_strip_clock_deg);
+    let mut out = vec![
+        Check {
+            id: "static",
+            title: static_title,
+            pass: fs >= 1.0,
+            margin: Some(fs - 1.0),
+            unit: MarginUnit::Ratio,
+            reason: format!(
+                "{worst}: peak stress {stress:.1} MPa vs 0.75 x tensile = {:.1} MPa: factor of safety {fs:.3} ({})",
+                seg.static_allowable_mpa, p.governing
+            ),
+            bore_mm: bore,
+            stroke_mm: stroke,
+        },
+        Check {
+            id: "fatigue",
+            title: fatigue_title,
+            pass: ff >= 1.0,
+            margin: Some(ff - 1.0),
+            unit: MarginUnit::Ratio,
+            reason: format!(
+                "{worst}: peak {stress:.1} MPa, zero-to-peak, vs fatigue strength {:.1} MPa at {} cycles and tensile {:.0} MPa: Goodman factor of safety {ff:.3}",
+                seg.fatigue_strength_mpa,
+                crate::checks::grouped_count(seg.design.duty.cycles),
+                seg.material.tensile_strength_mpa
+            ),
+            bore_mm: bore,
+            stroke_mm: stroke,
+        },
+    ];
+    out.push(match s.actuator {
+        Some(reading) => {
+            let rating = seg.actuator_effort_rating();
+            let need = reading.effort;
+            let margin = if need > 0.0 {
+                rating / need - 1.0
+            } else {
+                f64::INFINITY
+            };
+            let unit = reading.effort_unit;
+            Check {
+                id: "actuator",
+                title: actuator_title,
+                pass: need <= rating,
+                margin: margin.is_finite().then_some(margin),
+                unit: MarginUnit::Ratio,
+                reason: format!(
+                    "needs {need:.3} {unit} (the strips' axial forces summed) vs rating {rating:.3} {unit}"
+                ),
+                bore_mm: bore,
+                stroke_mm: stroke,
+            }
+        }
+        None => fail("actuator", actuator_title),
+    });
+    out
+}
+
+/// The operating stroke at the smallest bore: within the actuator and short of the
+/// segment's limit (the first strip to reach its own), the earliest limit over the cases.
+fn stroke(seg: &Segment, p: &LoadedPoint) -> Check {
+    let op = seg.design.operating_stroke_mm;
+    let max_stroke = seg.max_stroke_mm();
+    let loading = loading_of(&seg.design);
+    let mut limit = p.limit_stroke_mm;
+    let mut words = String::from("the governing stress case");
+    for (clocking, axis) in cases(&loading) {
+        let case = Loading {
+            clocking,
+            major_axis: axis,
+            ..loading.clone()
+        };
+        if let Ok(s) = seg
+            .loaded_at_bore(p.bore_mm, &case)
+            .and_then(|b| b.strokes())
+            && s.limit_stroke_mm < limit
+        {
+            limit = s.limit_stroke_mm;
+            words = case_words(&loading, clocking, axis);
+        }
+    }
+    Check {
+        id: "stroke",
+        title: "operating stroke within the actuator and short of the limit",
+        pass: op <= max_stroke && op < limit,
+        margin: Some((max_stroke - op).min(limit - op)),
+        unit: MarginUnit::Mm,
+        reason: format!(
+            "operating {op:.3} mm vs actuator maximum {max_stroke:.3} mm and the segment's limit {limit:.3} mm, where the first strip reaches its own ({words})"
+        ),
+        bore_mm: Some(p.bore_mm),
+        stroke_mm: Some(op),
+    }
+}
+
+/// Whether the top strip touches at the operating stroke at the largest bore, in the case
+/// with the fewest strips touching. A segment gripping on only part of its strips is named
+/// as such and fails only when holding fails. Margin: the operating stroke minus the stroke
+/// at which the last strip touches, mm (none when it does not before the limit).
+fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
+    let base = Check {
+        id: "top-strip",
+        title: TOP_STRIP_TITLE,
+        pass: false,
+        margin: None,
+        unit: MarginUnit::Mm,
+        reason: String::new(),
+        bore_mm: Some(p.bore_mm),
+        stroke_mm: Some(p.stroke_mm),
+    };
+    let Some(c) = &p.checks else {
+        return Check {
+            reason: no_judgement(p),
+            ..base
+        };
+    };
+    let last = p.last_strip_contact_stroke_mm;
+    let margin = last.map(|s| seg.design.operating_stroke_mm - s);
+    let last_words = match last {
+        Some(s) => format!("the last strip touches at {s:.3} mm stroke"),
+        None => "the last strip does not touch before the model's limit".to_string(),
+    };
+    if c.top_strip_touches {
+        Check {
+            pass: true,
+            margin,
+            reason: format!(
+                "the top strip touches: {} of {} strips grip ({last_words})",
+                c.strips_in_contact, c.strips
+            ),
+            ..base
+        }
+    } else {
+        let held = if hold_pass {
+            "holding passes, so this is not a failure"
+        } else {
+            "and holding fails"
+        };
+        Check {
+            pass: hold_pass,
+            margin,
+            reason: format!(
+                "grips on {} of {} strips: the top strip does not touch the wall at the operating stroke ({last_words}); {held} ({})",
+                c.strips_in_contact, c.strips, p.governing
+            ),
+            ..base
+        }
+    }
+}
+
+/// The bend check when the design gives a bend.
+fn bend(seg: &Segment) -> Option<Check> {
+    let result = super::entry::bend_passage(seg)?;
+    let small = seg.bore_smallest_mm;
+    Some(match result {
+        Ok(b) => Check {
+            id: "bend",
+            title: BEND_TITLE,
+            pass: b.passes,
+            margin: Some(b.margin_mm),
+            unit: MarginUnit::Mm,
+            reason: b.reason,
+            bore_mm: Some(small),
+            stroke_mm: Some(0.0),
+        },
+        Err(e) => Check {
+            id: "bend",
+            title: BEND_TITLE,
+            pass: false,
+            margin: None,
+            unit: MarginUnit::Mm,
+            reason: e.to_string(),
+            bore_mm: Some(small),
+            stroke_mm: Some(0.0),
+        },
+    })
+}
