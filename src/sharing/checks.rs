@@ -370,7 +370,7 @@ fn stroke(seg: &Segment, p: &LoadedPoint) -> Check {
 /// Whether the top strip touches at the operating stroke at the largest bore, in the case
 /// with the fewest strips touching. A segment gripping on only part of its strips is named
 /// as such and fails only when holding fails. Margin: the operating stroke minus the stroke
-/// at which the last strip touches, mm (none when it does not before the limit).
+/// at which the last strip touches, mm, when the top strip touches; none when it does not.
 fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
     let base = Check {
         id: "top-strip",
@@ -410,9 +410,11 @@ fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
         } else {
             "and holding fails"
         };
+        // No margin: the stroke at which the top strip would touch lies past the operating
+        // stroke, and a segment that holds is not failed for it.
         Check {
             pass: hold_pass,
-            margin,
+            margin: None,
             reason: format!(
                 "grips on {} of {} strips: the top strip does not touch the wall at the operating stroke ({last_words}); {held} ({})",
                 c.strips_in_contact, c.strips, p.governing

@@ -846,13 +846,41 @@ impl LoadedBore<'_> {
                     .map(|p| p.limit().stroke * l)
             })
             .fold(0.0, f64::max);
-        let beyond = |s: f64| self.solve(s).map(|st| st.beyond_limit);
         let top = 0.999 * longest;
         let upper = (2.0 * centred_limit).min(top);
         let start = first.unwrap_or(0.0);
-        let bracket = match self.first_true(start, upper, beyond)? {
+        // Lift-off: the first stroke where the strips carry the whole load, unless a state
+        // beyond the limit comes first (a lifted balance past it is not reached).
+        let lift_off = match first {
+            None => None,
+            Some(first) if self.loading.radial_load_n == 0.0 => Some(first),
+            Some(_) => {
+                let mut event = |s: f64| self.solve(s).map(|st| st.beyond_limit || !st.on_support);
+                let found = match self.first_true(start, upper, &mut event)? {
+                    Some(b) => Some(b),
+                    None => self.first_true(upper, top, &mut event)?,
+                };
+                match found {
+                    Some((_, t)) if !self.solve(t)?.beyond_limit => Some(t),
+                    _ => None,
+                }
+            }
+        };
+        // The limit: the first state beyond it, or, once the strips have lifted the hub, the
+        // first that drops back onto the rim with strips off the wall (a strip reached its
+        // own limit while the strips carried the load).
+        let mut beyond = |s: f64| {
+            self.solve(s).map(|st| {
+                st.beyond_limit
+                    || (lift_off.is_some_and(|l| s > l)
+                        && st.on_support
+                        && st.totals.strips_off_wall > 0)
+            })
+        };
+        let from = lift_off.unwrap_or(start);
+        let bracket = match self.first_true(from, upper.max(from), &mut beyond)? {
             Some(b) => Some(b),
-            None => self.first_true(upper, top, beyond)?,
+            None => self.first_true(upper.max(from), top, &mut beyond)?,
         };
         let (limit_stroke_mm, limit_strip, limit_reason) = match bracket {
             Some((valid, _)) => {
@@ -894,14 +922,6 @@ impl LoadedBore<'_> {
                 })
             })?
             .map(|(_, t)| t);
-        let lift_off = if self.loading.radial_load_n == 0.0 {
-            Some(first)
-        } else {
-            self.first_true(first, upper, |s| {
-                self.solve(s).map(|st| !st.beyond_limit && !st.on_support)
-            })?
-            .map(|(_, t)| t)
-        };
         Ok(BoreStrokes {
             first_strip_contact_stroke_mm: Some(first),
             lift_off_stroke_mm: lift_off,

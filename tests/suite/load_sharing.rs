@@ -988,3 +988,166 @@ fn no_state_is_reported_past_the_segments_limit() {
         assert_eq!(row.phase, bowgrip::elastica::Phase::BeyondLimit);
     }
 }
+
+#[test]
+fn horizontal_drain_sample_loses_its_top_strips_at_the_largest_bore() {
+    // Issue 17: the sample of a horizontal drain crawler whose top strips lose contact at
+    // the largest bore. Its `check` (contract, "New fields and outputs": check ids
+    // `top-strip` and `bend`) names the segment gripping on part of its strips without
+    // failing it, since holding passes; the bend check is there because the file gives a
+    // bend. The per-strip state says the same: the top strip is free there, the bottom one
+    // grips (mechanics note, "Load sharing": the weight hangs on the bottom strips).
+    let d = sample("drain-crawler-horizontal-150mm.ron");
+    assert!(sharing::design_uses_sharing(&d));
+    let seg = Segment::new(&d).expect("valid");
+    let list = bowgrip::checks::run(&seg);
+    let find = |id: &str| {
+        list.iter()
+            .find(|c| c.id == id)
+            .unwrap_or_else(|| panic!("no {id} check in {list:?}"))
+    };
+    let top = find("top-strip");
+    assert_eq!(top.bore_mm, Some(seg.bore_largest_mm));
+    assert!(top.pass, "{top:?}");
+    assert!(top.reason.contains("grips on"), "{}", top.reason);
+    assert!(top.reason.contains("does not touch"), "{}", top.reason);
+    let hold = find("hold");
+    assert!(
+        hold.pass && hold.reason.contains("strips in contact"),
+        "{hold:?}"
+    );
+    assert!(find("bend").pass);
+    assert!(find("reach").title.contains("lift the hub"));
+    assert_eq!(list.len(), 10);
+    let checks = sharing::checks_at(&seg, d.operating_stroke_mm).expect("solves");
+    let t = &checks.top_strip;
+    let inputs = t.checks.as_ref().expect("within the limit");
+    assert!(!inputs.top_strip_touches);
+    assert!(inputs.strips_in_contact < inputs.strips);
+    let top_row = &t.strips[0];
+    assert_eq!(top_row.clock_deg, 0.0, "clock order starts at the top");
+    assert_eq!(top_row.phase, Phase::Free);
+    let bottom = t
+        .strips
+        .iter()
+        .find(|s| (s.clock_deg - 180.0).abs() < 1e-9)
+        .expect("a strip at the bottom in the governing case");
+    assert!(bottom.contact_force_n > 0.0);
+}
+
+#[test]
+fn centred_designs_keep_the_eight_checks() {
+    // Contract, "New fields and outputs": a file without the new fields gives exactly
+    // today's results: the same eight checks, no top-strip or bend.
+    for name in SAMPLES {
+        let seg = Segment::new(&sample(name)).expect("valid");
+        let ids: Vec<&str> = bowgrip::checks::run(&seg).iter().map(|c| c.id).collect();
+        assert_eq!(
+            ids,
+            [
+                "fit", "reach", "hold", "static", "fatigue", "actuator", "stroke", "hub"
+            ],
+            "{name}"
+        );
+    }
+}
+
+#[test]
+fn loaded_checks_read_the_worst_strip_and_the_strips_in_contact() {
+    // Issue 17, "Checks": holding sums friction over the strips in contact (the least over
+    // the cases at the largest bore), static and fatigue are judged on the worst strip (the
+    // highest over the cases at the smallest bore); the bend check comes only with a bend.
+    let mut d = sample("riser-climber-2in-sch40.ron");
+    d.duty.radial_load_n = 40.0;
+    let seg = Segment::new(&d).expect("valid");
+    let list = bowgrip::checks::run(&seg);
+    assert!(list.iter().all(|c| c.id != "bend"));
+    let op = d.operating_stroke_mm;
+    let loading = sharing::loading_of(&d);
+    let mut least_hold = f64::INFINITY;
+    let mut worst_static = f64::INFINITY;
+    for (clocking, major_axis) in sharing::cases(&loading) {
+        let case = Loading {
+            clocking,
+            major_axis,
+            ..loading.clone()
+        };
+        let large = seg
+            .loaded_at_bore(seg.bore_largest_mm, &case)
+            .expect("fits")
+            .state(op)
+            .expect("solves");
+        let sum: f64 = large
+            .strips
+            .iter()
+            .filter(|s| s.contact_force_n > 0.0)
+            .map(|s| s.contact_force_n)
+            .sum();
+        least_hold = least_hold.min(d.friction * sum);
+        let small = seg
+            .loaded_at_bore(seg.bore_smallest_mm, &case)
+            .expect("fits")
+            .state(op)
+            .expect("solves");
+        for s in &small.strips {
+            worst_static = worst_static.min(s.static_safety_factor);
+        }
+    }
+    let need = d.duty.holding_force_n * d.duty.safety_factor;
+    let hold = list.iter().find(|c| c.id == "hold").expect("hold");
+    let m = hold.margin.expect("a margin");
+    assert!(
+        (m - (least_hold / need - 1.0)).abs() <= 1e-9,
+        "{m} vs {least_hold}"
+    );
+    let st = list.iter().find(|c| c.id == "static").expect("static");
+    let m = st.margin.expect("a margin");
+    assert!(
+        (m - (worst_static - 1.0)).abs() <= 1e-9,
+        "{m} vs {worst_static}"
+    );
+    assert!(st.reason.contains("worst strip"));
+    // With a bend, a bend check.
+    d.bore.bend = Some(Bend::RadiusMm(500.0));
+    let seg = Segment::new(&d).expect("valid");
+    let list = bowgrip::checks::run(&seg);
+    let bend = list.iter().find(|c| c.id == "bend").expect("a bend check");
+    assert_eq!(bend.unit, bowgrip::checks::MarginUnit::Mm);
+}
+
+#[test]
+fn point_csv_lists_every_strip() {
+    // Contract, "New fields and outputs": `point --csv` prints the strips, one row per strip
+    // in order of clock angle from the top, with the columns of the JSON `strips` objects.
+    let file = FsPath::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("drain-crawler-horizontal-150mm.ron");
+    let out = assert_cmd::Command::cargo_bin("bowgrip")
+        .unwrap_or_else(|e| panic!("{e}"))
+        .arg("point")
+        .arg(&file)
+        .args(["--stroke-mm", "2.0", "--csv"])
+        .output()
+        .unwrap_or_else(|e| panic!("{e}"));
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout);
+    let mut lines = text.lines();
+    assert_eq!(
+        lines.next(),
+        Some("clock_deg,gap_mm,phase,contact_force_n,axial_force_n,max_stress_mpa")
+    );
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    assert_eq!(rows.len(), 8);
+    let clocks: Vec<f64> = rows
+        .iter()
+        .map(|r| r[0].parse().expect("clock_deg"))
+        .collect();
+    assert!(clocks.windows(2).all(|w| w[0] < w[1]), "{clocks:?}");
+    for r in &rows {
+        assert_eq!(r.len(), 6);
+        assert!(
+            ["free", "point-contact", "line-contact"].contains(&r[2]),
+            "{r:?}"
+        );
+    }
+}
