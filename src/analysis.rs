@@ -88,8 +88,21 @@ pub fn window_range_mm(seg: &Segment) -> (f64, f64) {
 
 /// Analyses a design.
 pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError> {
+    analyse_with(design, checks::run)
+}
+
+/// Analyses a design with the centred checks only (fast; the app adds the load-sharing
+/// checks from a worker, see `crate::sharing::checks`).
+pub fn analyse_centred(design: &crate::design::Design) -> Result<Analysis, SegmentError> {
+    analyse_with(design, checks::run_centred)
+}
+
+fn analyse_with(
+    design: &crate::design::Design,
+    run: fn(&Segment) -> Vec<Check>,
+) -> Result<Analysis, SegmentError> {
     let segment = Segment::new(design)?;
-    let checks = checks::run(&segment);
+    let checks = run(&segment);
     let cautions = checks::geometry_cautions(&segment);
     let limiting = checks::limiting(&checks);
     let op = design.operating_stroke_mm;

@@ -48,8 +48,17 @@ pub struct Check {
     pub stroke_mm: Option<f64>,
 }
 
-/// Every check of a segment, in a fixed order.
+/// Every check of a segment, in a fixed order: the centred checks, amended by load
+/// sharing when the design uses it ([`crate::sharing::checks::amend`]).
 pub fn run(seg: &Segment) -> Vec<Check> {
+    let mut out = run_centred(seg);
+    crate::sharing::checks::amend(seg, &mut out);
+    out
+}
+
+/// The eight checks of the centred model (every strip carries the same share), in a fixed
+/// order. Fast; the app shows these at once and the load-sharing ones when they are ready.
+pub fn run_centred(seg: &Segment) -> Vec<Check> {
     let d = &seg.design;
     let op = d.operating_stroke_mm;
     let small = seg.bore_smallest_mm;
@@ -240,7 +249,6 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         bore_mm: None,
         stroke_mm: Some(0.0),
     });
-    crate::sharing::checks::amend(seg, &mut out);
     out
 }
 

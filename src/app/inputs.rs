@@ -196,6 +196,9 @@ impl InputsPanel {
                     self.actuator_ui(ui, d, analysis, &mut out)
                 });
                 section(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
+                section(ui, "Weight, out-of-round bore and bends", |ui| {
+                    self.sharing_ui(ui, d, &mut out)
+                });
                 section(ui, "Operating point", |ui| self.stroke_ui(ui, d, &mut out));
             });
         out
@@ -815,6 +818,62 @@ impl InputsPanel {
             ))
             .small(),
         );
+    }
+
+    /// The load-sharing inputs (issue 17): radial load, out-of-roundness, the bend and the
+    /// end plates' thickness. Zero and "no bend" keep the centred model.
+    fn sharing_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+        let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
+        grid(ui, "sharing", |ui| {
+            #[rustfmt::skip]
+            let rows: &[(Row<'_>, Field)] = &[
+                (Row::new("duty.radial_load_n", "Radial load", "N", 0.0, 1e4, "Radial load the segment carries through its strips, acting straight down: e.g. its share of the module's weight in a horizontal line. The hub sags, the bottom strips press harder and the top ones may not touch. 0: every strip carries the same share.").log(), |d| Some(&mut d.duty.radial_load_n)),
+                (Row::new("bore.out_of_round_mm", "Out of round", "mm", 0.0, 0.1 * nominal, "Largest minus smallest bore diameter (pipe ovality within its standard's tolerance). The largest diameter is judged both along and across the load; the worse governs. 0: round."), |d| Some(&mut d.bore.out_of_round_mm)),
+                (Row::new("end_plate_thickness_mm", "Plate thickness", "mm", 0.0, 50.0, "Thickness of each end plate. The relaxed segment is a rigid body of the free length plus both plates when it passes a bend."), |d| Some(&mut d.end_plate_thickness_mm)),
+                (Row::new("bore.bend", "Bend radius", "mm", 1.0, 1e5, "Centreline radius of the bend the relaxed segment must pass.").log(), |d| match &mut d.bore.bend { Some(crate::bend::Bend::RadiusMm(r)) => Some(r), _ => None }),
+            ];
+            self.rows(ui, d, out, rows);
+        });
+        ui.horizontal(|ui| {
+            use crate::bend::Bend;
+            let label = ui.label("Bend to pass");
+            let name = |b: Option<Bend>| match b {
+                None => "none (no bend check)",
+                Some(Bend::LongRadius) => "long-radius elbow, 1.5 x NPS",
+                Some(Bend::ShortRadius) => "short-radius elbow, 1.0 x NPS",
+                Some(Bend::RadiusMm(_)) => "a radius in mm",
+            };
+            let resp = egui::ComboBox::from_id_salt("bend")
+                .selected_text(name(d.bore.bend))
+                .width(220.0)
+                .show_ui(ui, |ui| {
+                    let radius = match d.bore.bend {
+                        Some(Bend::RadiusMm(r)) => r,
+                        _ => (3.0 * nominal).clamp(1.0, 1e5),
+                    };
+                    for choice in [
+                        None,
+                        Some(Bend::LongRadius),
+                        Some(Bend::ShortRadius),
+                        Some(Bend::RadiusMm(radius)),
+                    ] {
+                        let on = std::mem::discriminant(&d.bore.bend)
+                            == std::mem::discriminant(&choice)
+                            && match (d.bore.bend, choice) {
+                                (Some(a), Some(b)) => {
+                                    std::mem::discriminant(&a) == std::mem::discriminant(&b)
+                                }
+                                _ => true,
+                            };
+                        if ui.selectable_label(on, name(choice)).clicked() && !on {
+                            Self::choice(out, d, |n| n.bore.bend = choice);
+                        }
+                    }
+                });
+            resp.response.labelled_by(label.id).on_hover_text(
+                "A bend the relaxed segment must pass (the bend check). Butt-weld elbows take their radius from the pipe size (ASME B16.9: long radius 1.5 x NPS, short radius 1.0 x NPS, in inches), so they need the bore given as a pipe size.",
+            );
+        });
     }
 
     fn duty_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {

@@ -15,6 +15,7 @@ mod help;
 mod inputs;
 mod outputs;
 pub mod state;
+mod strips;
 
 use std::path::{Path, PathBuf};
 
@@ -178,6 +179,8 @@ pub struct GripApp {
     plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
     dialogs: dialogs::Dialogs,
+    /// Load sharing, computed on a worker thread.
+    sharing: strips::SharingWork,
 }
 
 impl GripApp {
@@ -221,6 +224,7 @@ impl GripApp {
             plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
+            sharing: strips::SharingWork::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
@@ -353,6 +357,7 @@ impl GripApp {
             });
             self.applied_theme = Some(self.session.theme);
         }
+        strips::poll_ui(self, &ctx);
         self.shortcuts(&ctx);
         self.close_guard(&ctx);
         dialogs::menu_bar(self, ui);
@@ -745,7 +750,7 @@ impl GripApp {
     }
 
     fn reanalyse(&mut self) {
-        match analysis::analyse(&self.doc.design) {
+        match analysis::analyse_centred(&self.doc.design) {
             Ok(a) => {
                 self.fallback_shape = None;
                 if a.shape_mm.is_empty()
@@ -756,6 +761,7 @@ impl GripApp {
                 }
                 self.analysis = Some(a);
                 self.analysis_error = None;
+                strips::after_analysis(self);
             }
             Err(e) => self.analysis_error = Some(e.to_string()),
         }

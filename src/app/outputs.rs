@@ -142,6 +142,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let failed = a.checks.iter().filter(|c| !c.pass).count();
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
+        super::strips::status_ui(app, ui);
         ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one, or mm.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
         let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
@@ -165,7 +166,8 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                     (None, _) => "judged on the hub at rest".to_string(),
                 };
                 ui.label(RichText::new(head).color(col).strong()).on_hover_text(where_);
-                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, fmt_margin(c.margin, c.unit)));
+                let margin = if c.pass && c.margin.is_none() { "no margin in this check's terms".to_string() } else { fmt_margin(c.margin, c.unit) };
+                ui.label(format!("{}: {margin}", if c.pass { "pass" } else { "FAIL" }));
                 ui.label(RichText::new(&c.reason).small());
             });
         }
@@ -188,6 +190,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 }
             }
         }
+        super::strips::table_ui(app, ui);
         ui.separator();
         if ui.button("Safety cautions").on_hover_text("Hazards of building and using bowed-strip segments.").clicked() {
             app.dialogs.show_cautions = true;
@@ -247,6 +250,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         unit: "N",
         top: top_of(&forces).max(need),
     };
+    let marks = super::strips::stroke_marks(app);
+    let loaded = app.sharing.view_for(&app.doc.design);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
         plot_cell(
@@ -265,7 +270,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
+            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &marks),
         );
     });
     ui.horizontal(|ui| {
@@ -276,7 +281,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
             None,
-            |ui| stress_plot(ui, a, plot_h),
+            |ui| stress_plot(ui, a, plot_h, &marks),
         );
         ui.vertical(|ui| {
             ui.set_width(cell.x);
@@ -293,11 +298,17 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             if long {
                 let side_h = (h * 0.66).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
                 side_view(ui, a, shape, Vec2::new(w, side_h));
-                end_view(ui, a, shape, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
+                let size = Vec2::new(w, (h - side_h - 6.0).max(40.0));
+                if !super::strips::end_view_ui(ui, a, loaded, size) {
+                    end_view(ui, a, shape, size);
+                }
             } else {
                 ui.horizontal(|ui| {
                     side_view(ui, a, shape, Vec2::new(w * 0.62, h));
-                    end_view(ui, a, shape, Vec2::new(w * 0.36, h));
+                    let size = Vec2::new(w * 0.36, h);
+                    if !super::strips::end_view_ui(ui, a, loaded, size) {
+                        end_view(ui, a, shape, size);
+                    }
                 });
             }
         });
@@ -696,6 +707,7 @@ fn force_plot(
     rating: &Marker,
     need: f64,
     height: f32,
+    marks: &[(&'static str, f64)],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -720,13 +732,15 @@ fn force_plot(
                     .style(LineStyle::dashed_loose()),
             );
             rating.add_to(p);
+            super::strips::add_marks(p, marks);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
+    legend.extend(marks.iter().map(|m| m.0));
     band_labels(ui, &shown.transform, &bands, &legend);
 }
 
-fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
+fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str, f64)]) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
         return;
@@ -757,9 +771,11 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
                     .color(C_LINE)
                     .style(LineStyle::dashed_loose()),
             );
+            super::strips::add_marks(p, marks);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
+    legend.extend(marks.iter().map(|m| m.0));
     band_labels(ui, &shown.transform, &bands, &legend);
 }
 

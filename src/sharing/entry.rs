@@ -320,3 +320,28 @@ pub fn bend_passage(segment: &Segment) -> Option<Result<BendPassage, BendError>>
         rigid_mm,
     ))
 }
+
+/// How many times a drawing shows the hub's offset larger than it is, so that it can be
+/// seen: 1, 2, 5, 10, 20, 50, ... the least that draws it at 6 % of the bore's radius or
+/// more (1 when there is no offset).
+pub fn offset_exaggeration(offset_mm: f64, radius_mm: f64) -> f64 {
+    if !(offset_mm > 0.0 && radius_mm > 0.0) {
+        return 1.0;
+    }
+    let want = 0.06 * radius_mm / offset_mm;
+    let mut k = 1.0;
+    for step in [2.0, 2.5, 2.0].iter().cycle().take(60) {
+        if k >= want {
+            break;
+        }
+        k *= step;
+    }
+    k
+}
+
+/// The least outward travel from `c` (`[y, z]`, mm) along the unit vector `u` to the wall
+/// of an elliptical bore with semi-axes `a_y` (vertical) and `a_z`, mm: where a drawing puts
+/// a strip that touches the wall.
+pub fn wall_travel_mm(c: [f64; 2], u: [f64; 2], a_y: f64, a_z: f64) -> f64 {
+    super::geometry::Ellipse { a_y, a_z }.travel(c, u)
+}

@@ -21,7 +21,8 @@ mod solve;
 
 pub use entry::{
     CaseChoice, CheckInputs, LoadedPoint, STRIP_COLUMNS, SharingChecks, StripRow, bend_passage,
-    checks_at, design_uses_sharing, loaded_point, loading_of, strip_rows, strips_csv,
+    checks_at, design_uses_sharing, loaded_point, loading_of, offset_exaggeration, strip_rows,
+    strips_csv, wall_travel_mm,
 };
 
 use std::cell::OnceCell;

@@ -17,6 +17,9 @@ use crate::elastica::Phase;
 use crate::segment::SegmentState;
 
 /// Replaced by the page count once pagination knows it.
+#[path = "strips.rs"]
+mod strips;
+
 pub const PAGE_COUNT_SLOT: &str = "\u{1}N\u{1}";
 
 const BODY: f32 = 8.5;
@@ -44,6 +47,7 @@ pub fn build(a: &Analysis, meta: &SheetMeta, width: f32) -> Vec<Section> {
         views(a, meta, width),
         curve_plots(a, width),
     ];
+    out.extend(strips::strips_section(a, width));
     out.extend(text_sections(width));
     out
 }
