@@ -62,9 +62,13 @@ fn recompute(c: &mut Criterion) {
     group.bench_function("centred analysis (UI thread)", |b| {
         b.iter(|| bowgrip::analysis::analyse_centred(black_box(&design)))
     });
-    group.bench_function("full analysis with the load-sharing checks (worker)", |b| {
+    group.bench_function("full analysis with the load-sharing checks", |b| {
         b.iter(|| bowgrip::analysis::analyse(black_box(&design)))
     });
+    group.bench_function(
+        "the app's load-sharing worker (checks and the end view's state)",
+        |b| b.iter(|| bowgrip::app::strips::compute(black_box(&design))),
+    );
     group.finish();
 }
 

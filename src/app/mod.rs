@@ -15,7 +15,7 @@ mod help;
 mod inputs;
 mod outputs;
 pub mod state;
-mod strips;
+pub mod strips;
 
 use std::path::{Path, PathBuf};
 

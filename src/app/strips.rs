@@ -16,7 +16,7 @@ use crate::checks::{self, Check};
 use crate::design::Design;
 use crate::elastica::Phase;
 use crate::segment::Segment;
-use crate::sharing::{self, CaseChoice, Judge, Loading, LoadedPoint, SharedState};
+use crate::sharing::{self, CaseChoice, Judge, LoadedPoint, Loading, SharedState};
 
 const C_ARROW: Color32 = Color32::from_rgb(220, 60, 60);
 const C_CREST: Color32 = Color32::from_rgb(230, 140, 20);
@@ -444,10 +444,7 @@ pub fn end_view_ui(ui: &mut Ui, a: &Analysis, view: Option<&LoadedView>, size: V
             .iter()
             .map(|&(w, h)| {
                 let rr = radius + h;
-                at(
-                    hub[0] + rr * u[0] + w * v[0],
-                    hub[1] + rr * u[1] + w * v[1],
-                )
+                at(hub[0] + rr * u[0] + w * v[0], hub[1] + rr * u[1] + w * v[1])
             })
             .collect();
             painter.add(egui::Shape::convex_polygon(pts, col, Stroke::NONE));

@@ -13,8 +13,10 @@
 use crate::checks::{Check, MarginUnit};
 use crate::segment::Segment;
 
-use super::entry::{LoadedPoint, checks_at, design_uses_sharing, loading_of};
-use super::{BoreStrokes, Clocking, Loading, MajorAxis, cases};
+use super::entry::{
+    BoreCases, CaseChoice, LoadedPoint, checks_with, design_uses_sharing, loading_of,
+};
+use super::{BoreStrokes, Clocking, Loading, MajorAxis};
 
 /// Title of the top-strip check.
 pub const TOP_STRIP_TITLE: &str = "the top strip touches at the operating stroke";
@@ -31,22 +33,32 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
         return;
     }
     let op = seg.design.operating_stroke_mm;
-    let loaded = checks_at(seg, op);
+    let all = CaseChoice::default();
+    let cases = BoreCases::new(seg, seg.bore_smallest_mm, all).and_then(|small| {
+        let large = BoreCases::new(seg, seg.bore_largest_mm, all)?;
+        Ok((small, large))
+    });
+    let loaded = match &cases {
+        Ok((small, large)) => checks_with(seg, small, large, op)
+            .map(|l| (l, small, large))
+            .map_err(|e| e.to_string()),
+        Err(e) => Err(e.to_string()),
+    };
     let replace = |checks: &mut Vec<Check>, new: Check| {
         if let Some(c) = checks.iter_mut().find(|c| c.id == new.id) {
             *c = new;
         }
     };
-    match &loaded {
-        Ok(l) => {
-            replace(checks, reach(seg));
+    match loaded {
+        Ok((l, small, large)) => {
+            replace(checks, reach(seg, large));
             let hold = hold(seg, &l.holding);
             let hold_pass = hold.pass;
             replace(checks, hold);
             for c in stress_checks(seg, &l.stress) {
                 replace(checks, c);
             }
-            replace(checks, stroke(seg, &l.stress));
+            replace(checks, stroke(seg, &l.stress, small));
             checks.push(top_strip(seg, &l.top_strip, hold_pass));
         }
         Err(e) => {
@@ -95,7 +107,7 @@ fn case_words(loading: &Loading, clocking: Clocking, axis: MajorAxis) -> String 
 /// Reach under load sharing, at the largest bore: the strips must lift the hub off its rest
 /// (carry all of the radial load) within the actuator's maximum stroke, in every case; with
 /// no radial load, the first strip must touch. The worst case (the latest lift-off) governs.
-fn reach(seg: &Segment) -> Check {
+fn reach(seg: &Segment, large_cases: &BoreCases<'_>) -> Check {
     let loading = loading_of(&seg.design);
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
@@ -117,15 +129,9 @@ fn reach(seg: &Segment) -> Check {
     };
     // The latest lift-off over the cases (`None` in a case: never, which governs).
     let mut worst: Option<(f64, String)> = None;
-    for (clocking, axis) in cases(&loading) {
-        let case = Loading {
-            clocking,
-            major_axis: axis,
-            ..loading.clone()
-        };
+    for (clocking, axis, loaded_bore) in large_cases.each() {
         let words = case_words(&loading, clocking, axis);
-        let strokes: BoreStrokes = match seg.loaded_at_bore(large, &case).and_then(|b| b.strokes())
-        {
+        let strokes: BoreStrokes = match loaded_bore.strokes() {
             Ok(s) => s,
             Err(e) => return fail(format!("{words}: {e}"), None),
         };
@@ -332,21 +338,14 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
 
 /// The operating stroke at the smallest bore: within the actuator and short of the
 /// segment's limit (the first strip to reach its own), the earliest limit over the cases.
-fn stroke(seg: &Segment, p: &LoadedPoint) -> Check {
+fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check {
     let op = seg.design.operating_stroke_mm;
     let max_stroke = seg.max_stroke_mm();
     let loading = loading_of(&seg.design);
     let mut limit = p.limit_stroke_mm;
     let mut words = String::from("the governing stress case");
-    for (clocking, axis) in cases(&loading) {
-        let case = Loading {
-            clocking,
-            major_axis: axis,
-            ..loading.clone()
-        };
-        if let Ok(s) = seg
-            .loaded_at_bore(p.bore_mm, &case)
-            .and_then(|b| b.strokes())
+    for (clocking, axis, loaded_bore) in small_cases.each() {
+        if let Ok(s) = loaded_bore.strokes()
             && s.limit_stroke_mm < limit
         {
             limit = s.limit_stroke_mm;

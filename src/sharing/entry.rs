@@ -13,7 +13,7 @@ use crate::elastica::Phase;
 use crate::segment::{Segment, SegmentState};
 
 use super::{
-    BoreStrokes, Clocking, Governing, Judge, Loading, MajorAxis, SharedState, SharingError,
+    BoreStrokes, Clocking, Judge, LoadedBore, Loading, MajorAxis, SharedState, SharingError,
 };
 
 /// The loading a design file asks for: its radial load and out-of-roundness, equal strips
@@ -209,45 +209,108 @@ fn check_inputs(st: &SharedState) -> Option<CheckInputs> {
     })
 }
 
-/// The loaded state of the case `case` (`clocking`, `major_axis`) with its strokes.
-fn point_of(
-    segment: &Segment,
-    loading: &Loading,
+/// The cases judged at one bore (both clockings, and both major axes of an out-of-round
+/// bore, or those a [`CaseChoice`] leaves open), each set up once so that its bore-level
+/// strokes are found once however many strokes and judges ask. Public for callers that
+/// evaluate many designs or strokes (the scatter, the map).
+#[derive(Debug)]
+pub struct BoreCases<'a> {
     bore_mm: f64,
-    stroke_mm: f64,
-    gov: Governing,
-) -> Result<LoadedPoint, SharingError> {
-    let case = Loading {
-        clocking: gov.clocking,
-        major_axis: gov.major_axis,
-        ..loading.clone()
-    };
-    let loaded = segment.loaded_at_bore(bore_mm, &case)?;
-    let strokes: BoreStrokes = loaded.strokes()?;
-    let segment_state = loaded.segment_state(stroke_mm)?;
-    let st = gov.state;
-    Ok(LoadedPoint {
-        bore_mm,
-        stroke_mm,
-        clocking: gov.clocking,
-        major_axis: gov.major_axis,
-        governing: gov.reason,
-        hub_offset_mm: st.hub_offset_mm,
-        beyond_limit: st.beyond_limit,
-        strips: strip_rows(&st),
-        first_strip_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
-        lift_off_stroke_mm: strokes.lift_off_stroke_mm,
-        last_strip_contact_stroke_mm: strokes.last_strip_contact_stroke_mm,
-        limit_stroke_mm: strokes.limit_stroke_mm,
-        checks: check_inputs(&st),
-        segment_state,
-    })
+    cases: Vec<(Clocking, MajorAxis, LoadedBore<'a>)>,
+}
+
+impl<'a> BoreCases<'a> {
+    /// The design's loading (radial load, out-of-roundness, equal strips) at `bore_mm`,
+    /// the cases `choice` leaves open.
+    pub fn new(
+        segment: &'a Segment,
+        bore_mm: f64,
+        choice: CaseChoice,
+    ) -> Result<BoreCases<'a>, SharingError> {
+        Self::with_loading(segment, &loading_of(&segment.design), bore_mm, choice)
+    }
+
+    /// As [`BoreCases::new`] with any loading, e.g. unequal strips (its own clocking and
+    /// major axis are replaced by each case's).
+    pub fn with_loading(
+        segment: &'a Segment,
+        loading: &Loading,
+        bore_mm: f64,
+        choice: CaseChoice,
+    ) -> Result<BoreCases<'a>, SharingError> {
+        let mut cases: Vec<(Clocking, MajorAxis)> = super::cases(loading)
+            .into_iter()
+            .filter(|(c, a)| {
+                choice.clocking.is_none_or(|x| x == *c) && choice.major_axis.is_none_or(|x| x == *a)
+            })
+            .collect();
+        if cases.is_empty() {
+            // A major axis asked for on a round bore: the orientation does not matter.
+            cases.push((
+                choice.clocking.unwrap_or(Clocking::Strip),
+                choice.major_axis.unwrap_or(MajorAxis::Vertical),
+            ));
+        }
+        let cases = cases
+            .into_iter()
+            .map(|(clocking, major_axis)| {
+                let case = Loading {
+                    clocking,
+                    major_axis,
+                    ..loading.clone()
+                };
+                Ok((
+                    clocking,
+                    major_axis,
+                    segment.loaded_at_bore(bore_mm, &case)?,
+                ))
+            })
+            .collect::<Result<Vec<_>, SharingError>>()?;
+        Ok(BoreCases { bore_mm, cases })
+    }
+
+    /// Bore diameter, mm.
+    pub fn bore_mm(&self) -> f64 {
+        self.bore_mm
+    }
+
+    /// Each case: its clocking, major axis and loaded bore.
+    pub fn each(&self) -> impl Iterator<Item = (Clocking, MajorAxis, &LoadedBore<'a>)> {
+        self.cases.iter().map(|(c, a, l)| (*c, *a, l))
+    }
+
+    /// The governing loaded state at `stroke_mm` by `judge` (the worse case governs; a
+    /// state beyond the limit governs any that is not), with its case's strokes.
+    pub fn point(&self, stroke_mm: f64, judge: Judge) -> Result<LoadedPoint, SharingError> {
+        let (gov, index) = super::governing_among(&self.cases, stroke_mm, judge)?;
+        let loaded = &self.cases[index].2;
+        let strokes: BoreStrokes = loaded.strokes()?;
+        let segment_state = loaded.segment_state(stroke_mm)?;
+        let st = gov.state;
+        Ok(LoadedPoint {
+            bore_mm: self.bore_mm,
+            stroke_mm,
+            clocking: gov.clocking,
+            major_axis: gov.major_axis,
+            governing: gov.reason,
+            hub_offset_mm: st.hub_offset_mm,
+            beyond_limit: st.beyond_limit,
+            strips: strip_rows(&st),
+            first_strip_contact_stroke_mm: strokes.first_strip_contact_stroke_mm,
+            lift_off_stroke_mm: strokes.lift_off_stroke_mm,
+            last_strip_contact_stroke_mm: strokes.last_strip_contact_stroke_mm,
+            limit_stroke_mm: strokes.limit_stroke_mm,
+            checks: check_inputs(&st),
+            segment_state,
+        })
+    }
 }
 
 /// The governing loaded state of the segment's design at `bore_mm` and `stroke_mm`: the
 /// design's radial load and out-of-roundness, the cases `choice` leaves open judged by
 /// `judge` (the worse governs; a state beyond the limit governs any that is not). For
 /// `point`, `Judge::HighestStress`; the checks pass their own judge (see [`checks_at`]).
+/// To ask several strokes or judges at one bore, set up [`BoreCases`] once.
 pub fn loaded_point(
     segment: &Segment,
     bore_mm: f64,
@@ -255,24 +318,7 @@ pub fn loaded_point(
     choice: CaseChoice,
     judge: Judge,
 ) -> Result<LoadedPoint, SharingError> {
-    let loading = loading_of(&segment.design);
-    let cases: Vec<(Clocking, MajorAxis)> = super::cases(&loading)
-        .into_iter()
-        .filter(|(c, a)| {
-            choice.clocking.is_none_or(|x| x == *c) && choice.major_axis.is_none_or(|x| x == *a)
-        })
-        .collect();
-    let cases = if cases.is_empty() {
-        // A major axis asked for on a round bore: the orientation does not matter.
-        vec![(
-            choice.clocking.unwrap_or(Clocking::Strip),
-            choice.major_axis.unwrap_or(MajorAxis::Vertical),
-        )]
-    } else {
-        cases
-    };
-    let gov = super::governing_of(segment, &loading, &cases, bore_mm, stroke_mm, judge)?;
-    point_of(segment, &loading, bore_mm, stroke_mm, gov)
+    BoreCases::new(segment, bore_mm, choice)?.point(stroke_mm, judge)
 }
 
 /// The load-sharing check inputs of a design at its operating stroke, each at its own bore
@@ -295,11 +341,22 @@ pub struct SharingChecks {
 /// The inputs of the load-sharing checks at `stroke_mm` (the operating stroke).
 pub fn checks_at(segment: &Segment, stroke_mm: f64) -> Result<SharingChecks, SharingError> {
     let all = CaseChoice::default();
-    let (small, large) = (segment.bore_smallest_mm, segment.bore_largest_mm);
+    let small = BoreCases::new(segment, segment.bore_smallest_mm, all)?;
+    let large = BoreCases::new(segment, segment.bore_largest_mm, all)?;
+    checks_with(segment, &small, &large, stroke_mm)
+}
+
+/// [`checks_at`] on cases already set up at the smallest and the largest bore.
+pub fn checks_with(
+    segment: &Segment,
+    small: &BoreCases<'_>,
+    large: &BoreCases<'_>,
+    stroke_mm: f64,
+) -> Result<SharingChecks, SharingError> {
     Ok(SharingChecks {
-        stress: loaded_point(segment, small, stroke_mm, all, Judge::HighestStress)?,
-        holding: loaded_point(segment, large, stroke_mm, all, Judge::LeastHolding)?,
-        top_strip: loaded_point(segment, large, stroke_mm, all, Judge::FewestInContact)?,
+        stress: small.point(stroke_mm, Judge::HighestStress)?,
+        holding: large.point(stroke_mm, Judge::LeastHolding)?,
+        top_strip: large.point(stroke_mm, Judge::FewestInContact)?,
         bend: bend_passage(segment),
     })
 }

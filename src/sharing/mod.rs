@@ -20,9 +20,9 @@ mod geometry;
 mod solve;
 
 pub use entry::{
-    CaseChoice, CheckInputs, LoadedPoint, STRIP_COLUMNS, SharingChecks, StripRow, bend_passage,
-    checks_at, design_uses_sharing, loaded_point, loading_of, offset_exaggeration, strip_rows,
-    strips_csv, wall_travel_mm,
+    BoreCases, CaseChoice, CheckInputs, LoadedPoint, STRIP_COLUMNS, SharingChecks, StripRow,
+    bend_passage, checks_at, checks_with, design_uses_sharing, loaded_point, loading_of,
+    offset_exaggeration, strip_rows, strips_csv, wall_travel_mm,
 };
 
 use std::cell::OnceCell;
@@ -576,7 +576,7 @@ impl<'a> LoadedBore<'a> {
             None => {
                 let st = self.solve(stroke_mm)?;
                 let limit = self.strokes()?.limit_stroke_mm;
-                // The limit is the valid end of a bracket 1e-12 wide: a stroke that rounds
+                // The limit is the valid end of a bracket 1e-10 wide: a stroke that rounds
                 // onto it is at the limit, not past it.
                 if st.beyond_limit || stroke_mm <= limit * (1.0 + 1e-9) {
                     Ok(st)
@@ -958,14 +958,35 @@ fn governing_of(
     stroke_mm: f64,
     judge: Judge,
 ) -> Result<Governing, SharingError> {
+    let bores = cases
+        .iter()
+        .map(|&(clocking, major_axis)| {
+            let case = Loading {
+                clocking,
+                major_axis,
+                ..loading.clone()
+            };
+            Ok((
+                clocking,
+                major_axis,
+                segment.loaded_at_bore(bore_mm, &case)?,
+            ))
+        })
+        .collect::<Result<Vec<_>, SharingError>>()?;
+    governing_among(&bores, stroke_mm, judge).map(|(g, _)| g)
+}
+
+/// The worse of the set-up cases (not empty) by `judge`, with its index.
+pub(crate) fn governing_among(
+    bores: &[(Clocking, MajorAxis, LoadedBore<'_>)],
+    stroke_mm: f64,
+    judge: Judge,
+) -> Result<(Governing, usize), SharingError> {
     let mut best: Option<(Clocking, MajorAxis, SharedState)> = None;
-    for &(clocking, major_axis) in cases {
-        let case = Loading {
-            clocking,
-            major_axis,
-            ..loading.clone()
-        };
-        let st = segment.loaded_at_bore(bore_mm, &case)?.state(stroke_mm)?;
+    let mut best_index = 0;
+    for (index, (clocking, major_axis, loaded)) in bores.iter().enumerate() {
+        let (clocking, major_axis) = (*clocking, *major_axis);
+        let st = loaded.state(stroke_mm)?;
         let worse = match &best {
             None => true,
             Some((_, _, b)) => match (st.beyond_limit, b.beyond_limit) {
@@ -990,6 +1011,7 @@ fn governing_of(
         };
         if worse {
             best = Some((clocking, major_axis, st));
+            best_index = index;
         }
     }
     let Some((clocking, major_axis, state)) = best else {
@@ -1031,10 +1053,13 @@ fn governing_of(
             ""
         }
     );
-    Ok(Governing {
-        clocking,
-        major_axis,
-        state,
-        reason,
-    })
+    Ok((
+        Governing {
+            clocking,
+            major_axis,
+            state,
+            reason,
+        },
+        best_index,
+    ))
 }

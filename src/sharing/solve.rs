@@ -803,7 +803,7 @@ impl LoadedBore<'_> {
             if pred(b)? {
                 let (mut x, mut y) = (a, b);
                 for _ in 0..BISECT {
-                    if y - x <= 1e-12 * hi.abs().max(1e-300) {
+                    if y - x <= 1e-10 * hi.abs().max(1e-300) {
                         break;
                     }
                     let m = 0.5 * (x + y);

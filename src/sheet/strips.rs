@@ -24,24 +24,24 @@ pub fn strips_section(a: &Analysis, width: f32) -> Option<Section> {
     let title = "Load sharing: per strip and end view";
     let bore = seg.bore_nominal_mm;
     let op = d.operating_stroke_mm;
-    let point = match sharing::loaded_point(seg, bore, op, CaseChoice::default(), Judge::HighestStress)
-    {
-        Ok(p) => p,
-        Err(e) => {
-            let mut b = Block::new();
-            let y = b.paragraph(
-                0.0,
-                10.0,
-                width,
-                BODY,
-                Weight::Regular,
-                RED,
-                &format!("Load sharing could not be solved at the nominal bore: {e}"),
-            );
-            b.height = y + 4.0;
-            return Some(section(title, width, vec![b]));
-        }
-    };
+    let point =
+        match sharing::loaded_point(seg, bore, op, CaseChoice::default(), Judge::HighestStress) {
+            Ok(p) => p,
+            Err(e) => {
+                let mut b = Block::new();
+                let y = b.paragraph(
+                    0.0,
+                    10.0,
+                    width,
+                    BODY,
+                    Weight::Regular,
+                    RED,
+                    &format!("Load sharing could not be solved at the nominal bore: {e}"),
+                );
+                b.height = y + 4.0;
+                return Some(section(title, width, vec![b]));
+            }
+        };
     let state = seg
         .loaded_at_bore(
             bore,
@@ -217,7 +217,11 @@ fn end_view(
         };
         for (rc, color, w) in [
             (d.mount_radius_mm, GREY, 0.5),
-            (d.mount_radius_mm + rise, if row.phase.has_state() { BLUE } else { GREY }, 1.2),
+            (
+                d.mount_radius_mm + rise,
+                if row.phase.has_state() { BLUE } else { GREY },
+                1.2,
+            ),
         ] {
             let corner = |s: f64, q: f64| {
                 let rr = rc + q;
@@ -260,7 +264,15 @@ fn end_view(
             "To scale.".to_string()
         }
     );
-    let y = b.paragraph(0.0, side + 9.0, side, SMALL, Weight::Regular, GREY, &caption);
+    let y = b.paragraph(
+        0.0,
+        side + 9.0,
+        side,
+        SMALL,
+        Weight::Regular,
+        GREY,
+        &caption,
+    );
     b.height = y;
     b
 }
