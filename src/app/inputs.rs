@@ -505,12 +505,12 @@ impl InputsPanel {
                         .small(),
                     )
                     .on_hover_text(format!(
-                        "Sources:\nmodulus: {}\nPoisson: {}\ntensile: {}\nyield: {}\nendurance: {}",
-                        m.sources.modulus,
-                        m.sources.poisson,
-                        m.sources.tensile,
-                        m.sources.yield_strength,
-                        m.sources.endurance
+                        "Basis of each value:\nmodulus: {}\nPoisson: {}\ntensile: {}\nyield: {}\nendurance: {}",
+                        m.basis.modulus,
+                        m.basis.poisson,
+                        m.basis.tensile,
+                        m.basis.yield_strength,
+                        m.basis.endurance
                     ));
                 }
             }

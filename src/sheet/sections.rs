@@ -582,7 +582,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
 fn material(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
     let m = &seg.material;
-    let src = &m.sources;
+    let src = &m.basis;
     let gpa = |v: f64| format!("{} GPa", f::sig(v, 4));
     let rows = vec![
         row([
@@ -623,7 +623,7 @@ fn material(a: &Analysis, width: f32) -> Section {
         &format!("{} ({})", m.name, m.id),
     ) - 6.0;
     let t = table(
-        &["Property", "Value", "Source"],
+        &["Property", "Value", "Basis (confirm before release)"],
         &[col(0.27 * width), rcol(0.13 * width), col(0.60 * width)],
         &rows,
         SMALL,
@@ -1598,7 +1598,7 @@ const REFERENCES: [&str; 7] = [
     "R. G. Budynas and J. K. Nisbett, Shigley's Mechanical Engineering Design: fatigue (S-N approximation, endurance estimate, Goodman line).",
     "ASME B36.10M, Welded and Seamless Wrought Steel Pipe: outside diameters and nominal walls by NPS and schedule.",
     "ASTM A666 (austenitic stainless strip, e.g. AISI 301 tempers) and ASTM A693 (precipitation-hardening stainless strip), as applicable to the grade entered.",
-    "Material values and their sources are listed in the material section; values marked 'from memory' or 'estimate' must be confirmed against the supplier's certificate.",
+    "Material values are typical minimums of the named standard, typical handbook values or estimates, as the material section says beside each; confirm them against the mill certificate or a test before release.",
 ];
 
 const SAFETY: [&str; 6] = [
