@@ -7,6 +7,7 @@ use std::path::Path;
 
 use bowgrip::analysis;
 use bowgrip::app::{GripApp, Recovery};
+use bowgrip::checks::CheckId;
 use bowgrip::design::{self, Design};
 use egui::accesskit::Role;
 use egui::{Key, Modifiers};
@@ -23,7 +24,7 @@ fn check_pass(app: &GripApp, id: &str) -> bool {
     let a = app.analysis().unwrap_or_else(|| panic!("no analysis"));
     a.checks
         .iter()
-        .find(|c| c.id == id)
+        .find(|c| c.id.as_str() == id)
         .unwrap_or_else(|| panic!("no {id} check"))
         .pass
 }
@@ -117,7 +118,7 @@ fn inputs_drive_the_checks() {
     let fit = a
         .checks
         .iter()
-        .find(|c| c.id == "fit")
+        .find(|c| c.id == CheckId::Fit)
         .and_then(|c| c.margin)
         .unwrap_or(f64::NAN);
     assert!(

@@ -405,7 +405,11 @@ fn failing_and_no_state_designs_render_and_say_so() {
     let (_, text) = pdf_text(&pdf);
     assert!(text.contains("CHECKS FAIL"), "{text}");
     let a = analyse(&failing).expect("analyses");
-    let fit = a.checks.iter().find(|c| c.id == "fit").expect("fit check");
+    let fit = a
+        .checks
+        .iter()
+        .find(|c| c.id == bowgrip::checks::CheckId::Fit)
+        .expect("fit check");
     assert!(!fit.pass, "the test design must fail the fit check");
 
     let no_state = pick("no-state");
