@@ -265,8 +265,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
-            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
-            None,
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
+            Some("dip after first contact: physical, see heading".to_string()),
             |ui| stress_plot(ui, a, plot_h),
         );
         ui.vertical(|ui| {

@@ -74,3 +74,25 @@ fn every_plot_fits_beside_the_checks_at_two_window_sizes() {
         }
     }
 }
+
+/// Issue 16, item 2: a long title typed into the design keeps the input panel's width (the
+/// plots do not move).
+#[test]
+fn a_long_title_keeps_the_panels_in_place() {
+    use egui::accesskit::Role;
+    use egui_kittest::kittest::Queryable;
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let app = GripApp::new(state.path().to_path_buf(), None);
+    let mut h = Harness::builder()
+        .with_size([1280.0, 720.0])
+        .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app);
+    h.run();
+    let before = h.state().plot_rects()[0].expect("window plot");
+    h.get_by_role_and_label(Role::TextInput, "Title")
+        .set_text_value_accesskit(&"A very long design title, ".repeat(7));
+    h.run();
+    h.run();
+    let after = h.state().plot_rects()[0].expect("window plot");
+    assert_eq!(h.state().design().title.len(), 26 * 7);
+    assert_eq!(before.min.x, after.min.x, "{before:?} -> {after:?}");
+}
