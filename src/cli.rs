@@ -17,7 +17,7 @@ use std::process::ExitCode;
 use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
-use crate::checks::{self, Check};
+use crate::checks::{self, Check, CheckId};
 use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sharing;
@@ -169,8 +169,12 @@ pub struct SweepArgs {
     #[arg(long, value_name = "N", default_value_t = SWEEP_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Arguments of `bores`.
@@ -189,8 +193,12 @@ pub struct BoresArgs {
     #[arg(long, value_name = "N", default_value_t = BORES_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Bores in a `bores` table when `--points` is not given.
@@ -202,8 +210,12 @@ pub struct CheckArgs {
     /// Design file (.ron).
     pub file: PathBuf,
     /// Print one JSON object instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "csv")]
     pub json: bool,
+    /// CSV instead of the table: one row per check (id, pass, margin, unit, bore_mm,
+    /// stroke_mm, reason)
+    #[arg(long)]
+    pub csv: bool,
 }
 
 /// Arguments of `sheet`.
@@ -804,11 +816,9 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
     let n = a.points;
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
-    if a.csv {
-        writeln!(out, "{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","))?;
-        for s in states {
-            writeln!(out, "{}", sweep_csv_row(&s))?;
-        }
+    if a.csv || a.json {
+        let header = format!("{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","));
+        tabular(&header, states.map(|s| sweep_csv_row(&s)), a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -879,11 +889,9 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let from_mm = a.from_mm.unwrap_or(seg.bore_smallest_mm);
     let to_mm = a.to_mm.unwrap_or(seg.bore_largest_mm);
     let rows = (0..a.points).map(|i| seg.bore_row(spaced(from_mm, to_mm, i, a.points)));
-    if a.csv {
-        writeln!(out, "{}", BORE_ROW_COLUMNS.join(","))?;
-        for r in rows {
-            writeln!(out, "{}", r.csv_line())?;
-        }
+    if a.csv || a.json {
+        let header = BORE_ROW_COLUMNS.join(",");
+        tabular(&header, rows.map(|r| r.csv_line()), a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -922,7 +930,6 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let limiting = checks::limiting(&list).map(|i| list[i].id);
     let cautions = checks::geometry_cautions(&seg);
     if a.json {
-        let items: Vec<serde_json::Value> = list.iter().map(check_json).collect();
         let doc = serde_json::json!({
             "file": a.file.display().to_string(),
             "title": design.title,
@@ -930,11 +937,26 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "limiting": limiting,
             "stiffness": seg.stiffness_used.name(),
             "stiffness_reason": seg.stiffness_reason,
-            "checks": items,
+            "checks": list,
             "geometry_cautions": cautions,
         });
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
+    } else if a.csv {
+        writeln!(out, "{}", CHECK_COLUMNS.join(","))?;
+        for c in &list {
+            writeln!(
+                out,
+                "{},{},{},{},{},{},{}",
+                c.id,
+                c.pass,
+                csv_cell(c.margin),
+                c.unit().label(),
+                csv_cell(c.bore_mm),
+                csv_cell(c.stroke_mm),
+                csv_text(&c.reason)
+            )?;
+        }
     } else {
         write!(
             out,
@@ -949,24 +971,72 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     })
 }
 
-fn check_json(c: &Check) -> serde_json::Value {
-    serde_json::json!({
-        "id": c.id,
-        "title": c.title,
-        "pass": c.pass,
-        "margin": c.margin,
-        "unit": c.unit.label(),
-        "reason": c.reason,
-        "bore_mm": c.bore_mm,
-        "stroke_mm": c.stroke_mm,
-    })
+/// Columns of `check --csv`, in order.
+pub const CHECK_COLUMNS: [&str; 7] = [
+    "id",
+    "pass",
+    "margin",
+    "unit",
+    "bore_mm",
+    "stroke_mm",
+    "reason",
+];
+
+/// A text cell for CSV (RFC 4180): quoted when it holds a comma, a quote or a line break,
+/// with quotes doubled.
+fn csv_text(t: &str) -> String {
+    if t.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", t.replace('"', "\"\""))
+    } else {
+        t.to_string()
+    }
+}
+
+/// Writes a table given as a CSV header and CSV rows: as CSV, or (`json`) as one JSON array
+/// of objects keyed by the column names, numbers as numbers, empty cells as null and other
+/// cells as strings. The rows stream; nothing is collected. One source for both forms, so
+/// the JSON has exactly the CSV's columns.
+fn tabular(
+    header: &str,
+    rows: impl Iterator<Item = String>,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<()> {
+    if !json {
+        writeln!(out, "{header}")?;
+        for r in rows {
+            writeln!(out, "{r}")?;
+        }
+        return Ok(());
+    }
+    let names: Vec<String> = header
+        .split(',')
+        .map(|n| serde_json::to_string(n))
+        .collect::<Result<_, _>>()?;
+    write!(out, "[")?;
+    for (i, r) in rows.enumerate() {
+        write!(out, "{}{{", if i == 0 { "" } else { "," })?;
+        for (j, (name, cell)) in names.iter().zip(r.split(',')).enumerate() {
+            let value = match cell {
+                "" => "null".to_string(),
+                c => match c.parse::<f64>() {
+                    Ok(v) if v.is_finite() => c.to_string(),
+                    _ => serde_json::to_string(c)?,
+                },
+            };
+            write!(out, "{}{name}:{value}", if j == 0 { "" } else { "," })?;
+        }
+        write!(out, "}}")?;
+    }
+    writeln!(out, "]")?;
+    Ok(())
 }
 
 fn check_table(
     design: &Design,
     seg: &Segment,
     list: &[Check],
-    limiting: Option<&str>,
+    limiting: Option<CheckId>,
     cautions: &[String],
 ) -> String {
     let mut t = String::new();
@@ -980,10 +1050,7 @@ fn check_table(
     );
     for c in list {
         let verdict = if c.pass { "pass" } else { "FAIL" };
-        let margin = match c.margin {
-            Some(m) => format!("{m:+.3} {}", c.unit.label()),
-            None => "-".to_string(),
-        };
+        let margin = c.margin_text().unwrap_or_else(|| "-".to_string());
         let mark = if Some(c.id) == limiting {
             " (limiting)"
         } else {
@@ -992,7 +1059,9 @@ fn check_table(
         let _ = writeln!(
             t,
             "{:<9} {verdict:<5} {margin:>14}  {}{mark}: {}",
-            c.id, c.title, c.reason
+            c.id,
+            c.title(),
+            c.reason
         );
     }
     let failed = list.iter().filter(|c| !c.pass).count();

@@ -13,7 +13,6 @@ use super::GripApp;
 use super::export::SvgSeries;
 use super::inputs::error_color;
 use crate::analysis::{Analysis, BoreCase};
-use crate::checks::MarginUnit;
 use crate::segment::SegmentState;
 
 /// A curve of a plot: legend name, colour, and its runs (a missing value breaks a run).
@@ -121,14 +120,6 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
     )
 }
 
-fn fmt_margin(m: Option<f64>, unit: MarginUnit) -> String {
-    match (m, unit) {
-        (None, _) => "no margin (no state to judge)".to_string(),
-        (Some(m), MarginUnit::Mm) => format!("margin {m:+.3} mm"),
-        (Some(m), MarginUnit::Ratio) => format!("margin {m:+.3} ({:+.1} %)", 100.0 * m),
-    }
-}
-
 /// The right panel: checks, the operating state, cautions.
 pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
@@ -143,7 +134,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
         super::strips::status_ui(app, ui);
-        ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one, or mm.").small());
+        ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
         let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
         let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
@@ -159,15 +150,15 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 egui::Frame::NONE.inner_margin(4.0)
             };
             frame.show(ui, |ui| {
-                let head = format!("{mark} {}{}", c.title, if limiting { "   [limiting]" } else { "" });
+                let head = format!("{mark} {}{}", c.title(), if limiting { "   [limiting]" } else { "" });
                 let where_ = match (c.bore_mm, c.stroke_mm) {
                     (Some(b), Some(s)) => format!("judged at bore {b:.3} mm, stroke {s:.3} mm"),
                     (Some(b), None) => format!("judged at bore {b:.3} mm"),
                     (None, _) => "judged on the hub at rest".to_string(),
                 };
                 ui.label(RichText::new(head).color(col).strong()).on_hover_text(where_);
-                let margin = if c.pass && c.margin.is_none() { "no margin in this check's terms".to_string() } else { fmt_margin(c.margin, c.unit) };
-                ui.label(format!("{}: {margin}", if c.pass { "pass" } else { "FAIL" }));
+                let none = if c.pass { "no margin in this check's terms" } else { "no margin (no state to judge)" };
+                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, c.margin_text().map_or_else(|| none.to_string(), |m| format!("margin {m}"))));
                 ui.label(RichText::new(&c.reason).small());
             });
         }
@@ -237,7 +228,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     let plot_h = cell.y - 20.0;
     let window = window_curves(a);
     let forces = force_curves(a);
-    let need = seg.design.duty.holding_force_n * seg.design.duty.safety_factor;
+    let need = seg.required_holding_force_n();
     let travel = Marker {
         name: "actuator max travel",
         value: seg.max_stroke_mm(),
@@ -279,8 +270,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
-            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
-            None,
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
+            Some("dip after first contact: physical, see heading".to_string()),
             |ui| stress_plot(ui, a, plot_h, &marks),
         );
         ui.vertical(|ui| {
@@ -289,7 +280,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
                 Some((s, shape)) => (*s, shape.as_slice(), format!(" (the operating stroke, {:.3} mm, is past the model's limit)", seg.design.operating_stroke_mm)),
                 None => (seg.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
             };
-            ui.strong(format!("To scale at {stroke:.3} mm stroke{note}")).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
+            let heading = format!("To scale at {stroke:.3} mm stroke{note}");
+            ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
             let h = plot_h;
             let w = ui.available_width();
             // A long strip reads better with the end view below it, a short one beside it.
@@ -330,7 +322,11 @@ fn plot_cell(
     ui.vertical(|ui| {
         ui.set_width(width);
         ui.horizontal(|ui| {
-            ui.strong(title).on_hover_text(tip);
+            // The heading never widens the cell: on a narrow window it is shortened, and
+            // the whole of it is in the tooltip.
+            ui.set_max_width(width);
+            ui.add(egui::Label::new(RichText::new(title).strong()).truncate())
+                .on_hover_text(format!("{title}\n\n{tip}"));
             if let Some(note) = note {
                 ui.with_layout(egui::Layout::right_to_left(egui::Align::Min), |ui| {
                     ui.add(egui::Label::new(RichText::new(&note).small().color(C_ACT)).truncate())

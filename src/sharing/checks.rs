@@ -10,20 +10,13 @@
 //! segment passes the bend. A design without those fields keeps the centred checks exactly.
 //! Mechanics only: no GUI, PDF or file code.
 
-use crate::checks::{Check, MarginUnit};
+use crate::checks::{Check, CheckId};
 use crate::segment::Segment;
 
 use super::entry::{
     BoreCases, CaseChoice, LoadedPoint, checks_with, design_uses_sharing, loading_of,
 };
 use super::{BoreStrokes, Clocking, Loading, MajorAxis};
-
-/// Title of the top-strip check.
-pub const TOP_STRIP_TITLE: &str = "the top strip touches at the operating stroke";
-/// Title of the bend check.
-pub const BEND_TITLE: &str = "passes the bend when relaxed";
-/// Title of the reach check under a radial load.
-pub const LIFT_TITLE: &str = "the strips lift the hub off its rest at the largest bore";
 
 /// Replaces the centred checks that load sharing changes and appends `top-strip` and (when
 /// the design gives a bend) `bend`. Does nothing for a design without load-sharing fields,
@@ -67,7 +60,12 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
             for c in checks.iter_mut().filter(|c| {
                 matches!(
                     c.id,
-                    "reach" | "hold" | "static" | "fatigue" | "actuator" | "stroke"
+                    CheckId::Reach
+                        | CheckId::Hold
+                        | CheckId::Static
+                        | CheckId::Fatigue
+                        | CheckId::Actuator
+                        | CheckId::Stroke
                 )
             }) {
                 c.pass = false;
@@ -75,11 +73,9 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
                 c.reason = why.clone();
             }
             checks.push(Check {
-                id: "top-strip",
-                title: TOP_STRIP_TITLE,
+                id: CheckId::TopStrip,
                 pass: false,
                 margin: None,
-                unit: MarginUnit::Mm,
                 reason: why,
                 bore_mm: Some(seg.bore_largest_mm),
                 stroke_mm: Some(op),
@@ -112,17 +108,10 @@ fn reach(seg: &Segment, large_cases: &BoreCases<'_>) -> Check {
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
     let loaded = loading.radial_load_n > 0.0;
-    let title = if loaded {
-        LIFT_TITLE
-    } else {
-        "reaches the wall at the largest bore"
-    };
     let fail = |reason: String, stroke: Option<f64>| Check {
-        id: "reach",
-        title,
+        id: CheckId::Reach,
         pass: false,
         margin: None,
-        unit: MarginUnit::Mm,
         reason,
         bore_mm: Some(large),
         stroke_mm: stroke,
@@ -174,11 +163,9 @@ fn reach(seg: &Segment, large_cases: &BoreCases<'_>) -> Check {
         format!("the first strip touches at {at:.3} mm stroke")
     };
     Check {
-        id: "reach",
-        title,
+        id: CheckId::Reach,
         pass: at <= max_stroke,
         margin: Some(max_stroke - at),
-        unit: MarginUnit::Mm,
         reason: format!("{what} vs actuator maximum {max_stroke:.3} mm (worst case: {words})"),
         bore_mm: Some(large),
         stroke_mm: Some(at),
@@ -205,13 +192,10 @@ fn no_judgement(p: &LoadedPoint) -> String {
 fn hold(seg: &Segment, p: &LoadedPoint) -> Check {
     let d = &seg.design;
     let required = d.duty.holding_force_n * d.duty.safety_factor;
-    let title = "holds the required load at the largest bore";
     let base = Check {
-        id: "hold",
-        title,
+        id: CheckId::Hold,
         pass: false,
         margin: None,
-        unit: MarginUnit::Ratio,
         reason: String::new(),
         bore_mm: Some(p.bore_mm),
         stroke_mm: Some(p.stroke_mm),
@@ -252,19 +236,14 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
     let s = &p.segment_state;
     let bore = Some(p.bore_mm);
     let stroke = Some(p.stroke_mm);
-    let fail = |id: &'static str, title: &'static str| Check {
+    let fail = |id: CheckId| Check {
         id,
-        title,
         pass: false,
         margin: None,
-        unit: MarginUnit::Ratio,
         reason: no_judgement(p),
         bore_mm: bore,
         stroke_mm: stroke,
     };
-    let static_title = "static stress at the smallest bore";
-    let fatigue_title = "fatigue (Goodman, zero-to-peak) at the smallest bore";
-    let actuator_title = "actuator force or torque within rating";
     let (Some(c), Some(stress), Some(fs), Some(ff)) = (
         &p.checks,
         s.max_stress_mpa,
@@ -272,19 +251,17 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
         s.fatigue_safety_factor,
     ) else {
         return vec![
-            fail("static", static_title),
-            fail("fatigue", fatigue_title),
-            fail("actuator", actuator_title),
+            fail(CheckId::Static),
+            fail(CheckId::Fatigue),
+            fail(CheckId::Actuator),
         ];
     };
     let worst = format!("worst strip at {:.0} deg", c.worst_strip_clock_deg);
     let mut out = vec![
         Check {
-            id: "static",
-            title: static_title,
+            id: CheckId::Static,
             pass: fs >= 1.0,
             margin: Some(fs - 1.0),
-            unit: MarginUnit::Ratio,
             reason: format!(
                 "{worst}: peak stress {stress:.1} MPa vs 0.75 x tensile = {:.1} MPa: factor of safety {fs:.3} ({})",
                 seg.static_allowable_mpa, p.governing
@@ -293,11 +270,9 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
             stroke_mm: stroke,
         },
         Check {
-            id: "fatigue",
-            title: fatigue_title,
+            id: CheckId::Fatigue,
             pass: ff >= 1.0,
             margin: Some(ff - 1.0),
-            unit: MarginUnit::Ratio,
             reason: format!(
                 "{worst}: peak {stress:.1} MPa, zero-to-peak, vs fatigue strength {:.1} MPa at {} cycles and tensile {:.0} MPa: Goodman factor of safety {ff:.3}",
                 seg.fatigue_strength_mpa,
@@ -319,11 +294,9 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
             };
             let unit = reading.effort_unit;
             Check {
-                id: "actuator",
-                title: actuator_title,
+                id: CheckId::Actuator,
                 pass: need <= rating,
                 margin: margin.is_finite().then_some(margin),
-                unit: MarginUnit::Ratio,
                 reason: format!(
                     "needs {need:.3} {unit} (the strips' axial forces summed) vs rating {rating:.3} {unit}"
                 ),
@@ -331,7 +304,7 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
                 stroke_mm: stroke,
             }
         }
-        None => fail("actuator", actuator_title),
+        None => fail(CheckId::Actuator),
     });
     out
 }
@@ -353,11 +326,9 @@ fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check 
         }
     }
     Check {
-        id: "stroke",
-        title: "operating stroke within the actuator and short of the limit",
+        id: CheckId::Stroke,
         pass: op <= max_stroke && op < limit,
         margin: Some((max_stroke - op).min(limit - op)),
-        unit: MarginUnit::Mm,
         reason: format!(
             "operating {op:.3} mm vs actuator maximum {max_stroke:.3} mm and the segment's limit {limit:.3} mm, where the first strip reaches its own ({words})"
         ),
@@ -372,11 +343,9 @@ fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check 
 /// at which the last strip touches, mm, when the top strip touches; none when it does not.
 fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
     let base = Check {
-        id: "top-strip",
-        title: TOP_STRIP_TITLE,
+        id: CheckId::TopStrip,
         pass: false,
         margin: None,
-        unit: MarginUnit::Mm,
         reason: String::new(),
         bore_mm: Some(p.bore_mm),
         stroke_mm: Some(p.stroke_mm),
@@ -429,21 +398,17 @@ fn bend(seg: &Segment) -> Option<Check> {
     let small = seg.bore_smallest_mm;
     Some(match result {
         Ok(b) => Check {
-            id: "bend",
-            title: BEND_TITLE,
+            id: CheckId::Bend,
             pass: b.passes,
             margin: Some(b.margin_mm),
-            unit: MarginUnit::Mm,
             reason: b.reason,
             bore_mm: Some(small),
             stroke_mm: Some(0.0),
         },
         Err(e) => Check {
-            id: "bend",
-            title: BEND_TITLE,
+            id: CheckId::Bend,
             pass: false,
             margin: None,
-            unit: MarginUnit::Mm,
             reason: e.to_string(),
             bore_mm: Some(small),
             stroke_mm: Some(0.0),

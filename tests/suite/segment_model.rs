@@ -133,14 +133,14 @@ fn checks_are_judged_where_the_contract_says() {
     let d = Design::default();
     let seg = Segment::new(&d).expect("valid");
     let list = checks::run(&seg);
-    let ids: Vec<_> = list.iter().map(|c| c.id).collect();
+    let ids: Vec<_> = list.iter().map(|c| c.id.as_str()).collect();
     assert_eq!(
         ids,
         [
             "fit", "reach", "hold", "static", "fatigue", "actuator", "stroke", "hub"
         ]
     );
-    let at = |id: &str| list.iter().find(|c| c.id == id).expect("present");
+    let at = |id: &str| list.iter().find(|c| c.id.as_str() == id).expect("present");
     assert_eq!(at("fit").bore_mm, Some(seg.bore_smallest_mm));
     assert_eq!(at("reach").bore_mm, Some(seg.bore_largest_mm));
     assert_eq!(at("hold").bore_mm, Some(seg.bore_largest_mm));
