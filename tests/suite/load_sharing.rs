@@ -1041,7 +1041,10 @@ fn centred_designs_keep_the_eight_checks() {
     // today's results: the same eight checks, no top-strip or bend.
     for name in SAMPLES {
         let seg = Segment::new(&sample(name)).expect("valid");
-        let ids: Vec<&str> = bowgrip::checks::run(&seg).iter().map(|c| c.id.as_str()).collect();
+        let ids: Vec<&str> = bowgrip::checks::run(&seg)
+            .iter()
+            .map(|c| c.id.as_str())
+            .collect();
         assert_eq!(
             ids,
             [
@@ -1100,7 +1103,10 @@ fn loaded_checks_read_the_worst_strip_and_the_strips_in_contact() {
         (m - (least_hold / need - 1.0)).abs() <= 1e-9,
         "{m} vs {least_hold}"
     );
-    let st = list.iter().find(|c| c.id.as_str() == "static").expect("static");
+    let st = list
+        .iter()
+        .find(|c| c.id.as_str() == "static")
+        .expect("static");
     let m = st.margin.expect("a margin");
     assert!(
         (m - (worst_static - 1.0)).abs() <= 1e-9,
@@ -1111,7 +1117,10 @@ fn loaded_checks_read_the_worst_strip_and_the_strips_in_contact() {
     d.bore.bend = Some(Bend::RadiusMm(500.0));
     let seg = Segment::new(&d).expect("valid");
     let list = bowgrip::checks::run(&seg);
-    let bend = list.iter().find(|c| c.id.as_str() == "bend").expect("a bend check");
+    let bend = list
+        .iter()
+        .find(|c| c.id.as_str() == "bend")
+        .expect("a bend check");
     assert_eq!(bend.unit(), bowgrip::checks::MarginUnit::Mm);
 }
 
