@@ -373,7 +373,7 @@ pub fn end_view_ui(ui: &mut Ui, a: &Analysis, view: Option<&LoadedView>, size: V
     };
     let text_h = 30.0;
     let area = rect.with_max_y(rect.max.y - text_h);
-    let reach = 1.12 * major;
+    let reach = 1.3 * major;
     let px = (area.width().min(area.height()) as f64 / (2.0 * reach)) as f32;
     let centre = area.center();
     // y up, z to the right; clock angle from the top, clockwise: (cos, sin) = (y, z).

@@ -163,7 +163,8 @@ fn end_view(
         sharing::MajorAxis::Vertical => (major, minor),
         sharing::MajorAxis::Horizontal => (minor, major),
     };
-    let pt = (0.5 * side as f64 / (1.1 * major)) as f32;
+    // Room for the wall and the longest arrow (a quarter of the radius) outside it.
+    let pt = (0.5 * side as f64 / (1.3 * major)) as f32;
     let (cx, cy) = (0.5 * side, 0.5 * side);
     // y up in the model, down on the page; z to the right.
     let at = |y: f64, z: f64| [cx + z as f32 * pt, cy - y as f32 * pt];
