@@ -247,6 +247,13 @@ impl GripApp {
         app
     }
 
+    /// Blocks until the load-sharing results of the shown design are in (the app itself
+    /// never waits: it shows the centred results and takes these when they arrive). For
+    /// tests.
+    pub fn wait_for_load_sharing(&mut self) {
+        strips::wait(self);
+    }
+
     /// Lets Open and Save As try the desktop's file dialog first (the typed path field
     /// is always there as well). Off by default, so tests never block on a dialog.
     pub fn with_system_dialogs(mut self, on: bool) -> GripApp {

@@ -288,7 +288,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             let d = &seg.design;
             let long = d.strip.free_length_mm * 1.15 > 1.4 * seg.bore_nominal_mm;
             if long {
-                let side_h = (h * 0.66).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
+                // Under load sharing the end view carries the force arrows: give it more room.
+                let side_share = if loaded.is_some() { 0.45 } else { 0.66 };
+                let side_h = (h * side_share).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
                 side_view(ui, a, shape, Vec2::new(w, side_h));
                 let size = Vec2::new(w, (h - side_h - 6.0).max(40.0));
                 if !super::strips::end_view_ui(ui, a, loaded, size) {

@@ -82,12 +82,17 @@ impl SharingWork {
         }
     }
 
-    /// Takes a finished result; true when one arrived.
-    fn poll(&mut self) -> bool {
+    /// Takes a finished result (`block`: waits for it); true when one arrived.
+    fn poll(&mut self, block: bool) -> bool {
         let Some((design, rx)) = &self.running else {
             return false;
         };
-        match rx.try_recv() {
+        let got = if block {
+            rx.recv().map_err(|_| TryRecvError::Disconnected)
+        } else {
+            rx.try_recv()
+        };
+        match got {
             Ok(view) => {
                 self.shown_for = Some(design.clone());
                 self.view = Some(view);
@@ -161,17 +166,33 @@ pub fn compute(design: &Design) -> LoadedView {
 /// Once a frame: takes a finished result and puts its checks into the analysis of the same
 /// design; keeps the frames coming while the worker runs.
 pub fn poll_ui(app: &mut GripApp, ctx: &egui::Context) {
-    if app.sharing.poll()
-        && app.analysis_error.is_none()
+    if app.sharing.poll(false) {
+        apply_view(app);
+    }
+    if app.sharing.busy() {
+        ctx.request_repaint_after(std::time::Duration::from_millis(30));
+    }
+}
+
+/// Waits for the worker (and any computation queued behind it) and takes its result.
+pub fn wait(app: &mut GripApp) {
+    while app.sharing.running.is_some() {
+        if app.sharing.poll(true) {
+            apply_view(app);
+        }
+    }
+}
+
+/// Puts the view's checks into the analysis when both are of the shown design.
+fn apply_view(app: &mut GripApp) {
+    if app.analysis_error.is_none()
         && let Some(view) = app.sharing.view_for(&app.doc.design)
         && let Some(a) = app.analysis.as_mut()
+        && a.segment.design == app.doc.design
         && !view.checks.is_empty()
     {
         a.checks = view.checks.clone();
         a.limiting = view.limiting;
-    }
-    if app.sharing.busy() {
-        ctx.request_repaint_after(std::time::Duration::from_millis(30));
     }
 }
 
@@ -179,13 +200,7 @@ pub fn poll_ui(app: &mut GripApp, ctx: &egui::Context) {
 /// they are known, else from the worker.
 pub fn after_analysis(app: &mut GripApp) {
     app.sharing.request(&app.doc.design);
-    if let Some(view) = app.sharing.view_for(&app.doc.design)
-        && let Some(a) = app.analysis.as_mut()
-        && !view.checks.is_empty()
-    {
-        a.checks = view.checks.clone();
-        a.limiting = view.limiting;
-    }
+    apply_view(app);
 }
 
 /// A line under the verdict while the loaded checks are being computed.

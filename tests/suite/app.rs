@@ -528,3 +528,54 @@ fn a_save_report_goes_with_the_next_edit() {
         "a stale save report beside the unsaved mark"
     );
 }
+
+/// Issue 17: a design with a radial load shows the centred checks at once and the
+/// load-sharing ones (here `top-strip` and `bend`) when the worker is done, equal to a fresh
+/// full analysis; the per-strip table and the load-sharing inputs are there with their
+/// labels.
+#[test]
+fn load_sharing_results_arrive_from_the_worker() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let file = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("drain-crawler-horizontal-150mm.ron");
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), Some(file)));
+    // One frame (the spinner repaints while the worker runs), then wait for it.
+    h.step();
+    h.state_mut().wait_for_load_sharing();
+    h.run();
+    assert_matches_fresh_analysis(h.state());
+    let ids: Vec<CheckId> = h
+        .state()
+        .analysis()
+        .unwrap_or_else(|| panic!("no analysis"))
+        .checks
+        .iter()
+        .map(|c| c.id)
+        .collect();
+    assert!(ids.contains(&CheckId::TopStrip) && ids.contains(&CheckId::Bend));
+    assert!(
+        h.query_by_label_contains("Per strip, nominal bore, operating stroke")
+            .is_some()
+    );
+    assert!(h.query_by_label_contains("contact, N").is_some());
+    for label in [
+        "Radial load",
+        "Out of round",
+        "Plate thickness",
+        "Bend radius",
+    ] {
+        assert!(
+            h.query_by_role_and_label(Role::TextInput, label).is_some(),
+            "no {label} field"
+        );
+    }
+    // An edit: the new radial load goes to the worker, and its checks follow.
+    h.get_by_role_and_label(Role::TextInput, "Radial load")
+        .set_text_value_accesskit("60");
+    h.step();
+    assert_eq!(h.state().design().duty.radial_load_n, 60.0);
+    h.state_mut().wait_for_load_sharing();
+    h.run();
+    assert_matches_fresh_analysis(h.state());
+}
