@@ -1160,3 +1160,48 @@ fn point_csv_lists_every_strip() {
         );
     }
 }
+
+#[test]
+fn unequal_strips_also_leave_the_wall_while_the_hub_rests() {
+    // As `a_strip_past_its_limit_while_the_hub_rests_leaves_the_wall`, with strips that
+    // differ by a few micrometres of thickness (invented deviations): the nested roots and
+    // the rest on the wall give the same picture (mechanics note, "Load sharing": the rest
+    // support carries what the strips do not; unequal strips need both components of d).
+    let seg = Segment::new(&sample("riser-climber-2in-sch40.ron")).expect("valid");
+    let w = 40.0;
+    let loading = Loading {
+        radial_load_n: w,
+        deviations: (0..12)
+            .map(|i| StripDeviation {
+                thickness_mm: 0.002 * (f64::from(i) - 5.5) / 5.5,
+                ..StripDeviation::default()
+            })
+            .collect(),
+        ..Loading::default()
+    };
+    let loaded = seg
+        .loaded_at_bore(seg.bore_smallest_mm, &loading)
+        .expect("fits");
+    let strokes = loaded.strokes().expect("strokes");
+    assert!(strokes.limit_stroke_mm > 1.5, "{strokes:?}");
+    let lift = strokes.lift_off_stroke_mm.expect("the strips lift the hub");
+    let first = strokes.first_strip_contact_stroke_mm.expect("reach");
+    let mut seen_off = false;
+    for j in 1..20 {
+        let stroke = first + (lift - first) * j as f64 / 20.0;
+        let st = loaded.state(stroke).expect("solves");
+        assert!(!st.beyond_limit, "stroke {stroke}");
+        check_balance(&st, w, &format!("unequal, stroke {stroke}"));
+        if st.totals.strips_off_wall > 0 {
+            seen_off = true;
+            assert!(st.on_support);
+        }
+    }
+    assert!(seen_off, "the bottom strips leave the wall on the way");
+    for j in 0..=12 {
+        let stroke = 0.3 + 0.1 * j as f64;
+        let st = loaded.state(stroke).expect("solves");
+        assert!(!st.beyond_limit && !st.on_support, "stroke {stroke}");
+        check_balance(&st, w, &format!("unequal, stroke {stroke}"));
+    }
+}
