@@ -438,6 +438,185 @@ fn nominal_factors_leave_the_model_as_it_is() {
 }
 
 // ---------------------------------------------------------------------------------------
+// The design field `calibration`.
+
+/// The riser sample's text with a calibration line added before the closing parenthesis.
+fn riser_text_with(calibration: &str) -> String {
+    let path = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let text = fs::read_to_string(&path).expect("read sample");
+    let end = text.rfind(')').expect("closing parenthesis");
+    format!("{}    {calibration},\n{}", &text[..end], &text[end..])
+}
+
+#[test]
+fn calibration_field_round_trips_and_is_written_only_when_present() {
+    // The contract: `calibration: Some((modulus_factor, stroke_offset_mm))`, each optional.
+    let text = riser_text_with("calibration: Some((modulus_factor: 0.93, stroke_offset_mm: 0.12))");
+    let d = design::parse(&text).unwrap_or_else(|e| panic!("{e}"));
+    let c = d.calibration.expect("calibration read");
+    assert_eq!((c.modulus_factor, c.stroke_offset_mm), (0.93, 0.12));
+    let written = design::to_ron(&d).expect("writes");
+    assert!(
+        written.contains("calibration: Some((") && written.contains("modulus_factor: 0.93"),
+        "{written}"
+    );
+    assert_eq!(design::parse(&written).expect("reads back"), d);
+    // Each optional: the one left out takes its neutral value.
+    let only_offset = design::parse(&riser_text_with(
+        "calibration: Some((stroke_offset_mm: -0.3))",
+    ))
+    .expect("offset only");
+    assert_eq!(only_offset.modulus_factor(), 1.0);
+    assert_eq!(only_offset.stroke_offset_mm(), -0.3);
+    // Absent: nothing written, so a file without it saves as it was.
+    let plain = riser();
+    assert_eq!(plain.calibration, None);
+    assert!(
+        !design::to_ron(&plain)
+            .expect("writes")
+            .contains("calibration")
+    );
+    // In place: a changed factor is replaced where it is written, the comments stay.
+    let mut changed = d.clone();
+    changed.calibration = Some(design::Calibration {
+        modulus_factor: 0.95,
+        ..c
+    });
+    let saved = design::save_text(Some(&text), &changed).expect("plans a save");
+    assert!(!saved.loses_layout());
+    assert!(saved.text().contains("// Sample design (invented)"));
+    assert!(saved.text().contains("modulus_factor: 0.95"));
+    assert_eq!(design::parse(saved.text()).expect("reads back"), changed);
+    // Added to a file that has none: written after its last field, the comments stay.
+    let original = fs::read_to_string(root().join("sample-designs/riser-climber-2in-sch40.ron"))
+        .expect("read sample");
+    let mut calibrated = riser();
+    calibrated.calibration = Some(c);
+    calibrated.friction = 0.37;
+    let saved = design::save_text(Some(&original), &calibrated).expect("plans a save");
+    assert!(!saved.loses_layout(), "{saved:?}");
+    assert!(saved.text().contains("// Sample design (invented)"));
+    assert!(saved.text().contains("friction: 0.37"));
+    assert_eq!(design::parse(saved.text()).expect("reads back"), calibrated);
+    // Taken out again: a structural change, the whole design is written (after a prompt).
+    let removed = design::save_text(Some(saved.text()), &riser()).expect("plans a save");
+    assert!(removed.loses_layout());
+    assert_eq!(
+        design::parse(removed.text())
+            .expect("reads back")
+            .calibration,
+        None
+    );
+}
+
+#[test]
+fn calibration_values_outside_their_range_are_refused_where_written() {
+    // The limits table's rows, printed in the message with the allowed range.
+    for (line, field, range) in [
+        (
+            "calibration: Some((modulus_factor: 7.0))",
+            "calibration.modulus_factor",
+            "0.2 to 5",
+        ),
+        (
+            "calibration: Some((stroke_offset_mm: -150.0))",
+            "calibration.stroke_offset_mm",
+            "-100 to 100 mm",
+        ),
+    ] {
+        let text = riser_text_with(line);
+        let e = design::parse(&text).expect_err("out of range");
+        let (l, c) = e.position().unwrap_or_else(|| panic!("no position: {e}"));
+        let at_line = text.lines().nth(l - 1).expect("line exists");
+        assert!(
+            at_line.contains(field.rsplit('.').next().unwrap_or(field)),
+            "{e}"
+        );
+        assert!(c > 1, "{e}");
+        let msg = e.to_string();
+        assert!(msg.contains(field) && msg.contains(range), "{msg}");
+        assert!(design::limit(field).is_some());
+    }
+    // An unknown name inside is refused too.
+    assert!(design::parse(&riser_text_with("calibration: Some((stiffness: 1.0))")).is_err());
+}
+
+#[test]
+fn a_calibrated_design_predicts_the_factor_adjusted_model() {
+    // The design's modulus factor multiplies E: every force of the model scales by it
+    // (the elastica is displacement driven, forces go as the bending stiffness B = E I:
+    // Timoshenko and Gere, Theory of Elastic Stability, the elastica), shapes do not.
+    let plain = riser();
+    let factor = 0.93;
+    let mut calibrated = plain.clone();
+    calibrated.calibration = Some(design::Calibration {
+        modulus_factor: factor,
+        stroke_offset_mm: 0.12,
+    });
+    let a = bowgrip::analysis::analyse(&plain).expect("plain");
+    let b = bowgrip::analysis::analyse(&calibrated).expect("calibrated");
+    assert_eq!(a.curve.len(), b.curve.len());
+    for (p, q) in a.curve.iter().zip(&b.curve) {
+        assert_eq!(p.stroke_mm, q.stroke_mm);
+        assert_eq!(p.outer_diameter_mm, q.outer_diameter_mm);
+        for (x, y) in [
+            (p.actuator_force_n, q.actuator_force_n),
+            (p.holding_force_n, q.holding_force_n),
+            (p.radial_force_n, q.radial_force_n),
+        ] {
+            if let (Some(x), Some(y)) = (x, y) {
+                assert!((y - factor * x).abs() <= 1e-9 * x.abs().max(1.0), "{x} {y}");
+            } else {
+                assert_eq!(x.is_some(), y.is_some());
+            }
+        }
+    }
+    // The residuals of the calibrated design are those of the plain design with the same
+    // factors given to the fit's model (measured stroke + offset = model stroke).
+    let bench = bench_data::load(&root().join(SAMPLE_BENCH)).expect("sample bench file");
+    let factors = Factors {
+        modulus_factor: factor,
+        stroke_offset_mm: 0.12,
+        ..Factors::nominal(&plain)
+    };
+    assert_eq!(Factors::nominal(&calibrated), factors);
+    let via_design = calibrate::residuals(&calibrated, &bench, &Factors::nominal(&calibrated))
+        .expect("residuals");
+    let via_factors = calibrate::residuals(&plain, &bench, &factors).expect("residuals");
+    assert_eq!(via_design, via_factors);
+    // And by hand: each prediction is the state of the scaled segment at stroke + offset.
+    let seg = calibrate::segment_with(&plain, &factors).expect("segment");
+    for q in &via_design {
+        for p in &q.points {
+            let s = seg
+                .at_bore(p.bore_mm)
+                .expect("path")
+                .state(p.stroke_mm + 0.12);
+            let want = match q.quantity {
+                Quantity::OuterDiameter => s.outer_diameter_mm,
+                Quantity::ActuatorForce => s.actuator_force_n,
+                Quantity::SlipForce => s.holding_force_n,
+            };
+            assert_eq!(Some(p.predicted), want, "line {}", p.line);
+        }
+    }
+    // Applying the factors as "apply" does: free length and friction into their own
+    // fields, the other two into `calibration`.
+    let applied = calibrate::design_with(&plain, &truth(&plain));
+    assert_eq!(applied.strip.free_length_mm, truth(&plain).free_length_mm);
+    assert_eq!(applied.friction, 0.36);
+    assert_eq!(
+        applied.calibration,
+        Some(design::Calibration {
+            modulus_factor: 0.93,
+            stroke_offset_mm: 0.12
+        })
+    );
+    assert_eq!(Factors::nominal(&applied), truth(&plain));
+    applied.validate().expect("applied factors are in range");
+}
+
+// ---------------------------------------------------------------------------------------
 // Malformed measurement files.
 
 fn refused_at(text: &str) -> ((usize, usize), String) {
