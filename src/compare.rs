@@ -37,7 +37,7 @@ pub struct CompareArgs {
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct FitList(pub Vec<Factor>);
 
-fn fit_list(text: &str) -> Result<FitList, String> {
+pub fn fit_list(text: &str) -> Result<FitList, String> {
     let allowed = "a comma-separated list of modulus, offset, length, friction";
     let mut out = Vec::new();
     for name in text.split(',').map(str::trim) {

@@ -855,3 +855,106 @@ fn compare_table_and_bad_input() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bad.csv:2:5:"), "{err}");
 }
+
+// ---------------------------------------------------------------------------------------
+// The sheet's bench page.
+
+/// All text of a PDF by lopdf, whitespace collapsed (as `sheet.rs` reads sheets).
+fn pdf_text(pdf: &[u8]) -> String {
+    let doc = lopdf::Document::load_mem(pdf).expect("the sheet parses as PDF");
+    let pages: Vec<u32> = doc.get_pages().keys().copied().collect();
+    let text = doc.extract_text(&pages).expect("text extracts");
+    text.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+/// A number as the sheet prints it: fixed decimals, a true minus sign.
+fn printed(v: f64, decimals: usize) -> String {
+    format!("{v:.decimals$}").replace('-', "\u{2212}")
+}
+
+#[test]
+fn sheet_with_measurements_prints_the_bench_page_and_its_residuals() {
+    let design_path = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let bench = root().join(SAMPLE_BENCH);
+    let dir = tempfile::tempdir().expect("temp dir");
+    let out = dir.path().join("sheet.pdf");
+    let run = bowgrip()
+        .args([
+            "sheet",
+            s(&design_path),
+            "-o",
+            s(&out),
+            "--measured",
+            s(&bench),
+        ])
+        .args(["--fit", "modulus,friction"])
+        .output()
+        .expect("run");
+    assert_eq!(
+        run.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let text = pdf_text(&fs::read(&out).expect("sheet written"));
+    assert!(
+        text.contains(bowgrip::sheet::BENCH_TITLE),
+        "the page is there"
+    );
+    // The residuals of calibrate, printed to 3 decimals with their unit, and where.
+    let d = riser();
+    let data = bench_data::load(&bench).expect("bench");
+    let before = calibrate::residuals(&d, &data, &Factors::nominal(&d)).expect("residuals");
+    let fit = calibrate::calibrate(&d, &data, &[Factor::Modulus, Factor::Friction]).expect("fit");
+    for q in &before {
+        let sm = q.summary();
+        let unit = q.quantity.unit();
+        for want in [
+            format!("{} {unit}", printed(sm.rms, 3)),
+            format!("{} {unit}", printed(sm.max_signed, 3)),
+            format!(
+                "line {}, stroke {}",
+                sm.max_line,
+                printed(sm.max_stroke_mm, 3)
+            ),
+        ] {
+            assert!(text.contains(&want), "sheet lacks {want:?}");
+        }
+    }
+    for f in &fit.fitted {
+        assert!(
+            text.contains(&printed(f.value, 5)),
+            "sheet lacks {} {}",
+            f.factor,
+            f.value
+        );
+    }
+    assert!(text.contains("Caution"));
+
+    // Without --measured, no such page; a malformed file is refused (exit 2, one line).
+    let plain = dir.path().join("plain.pdf");
+    let run = bowgrip()
+        .args(["sheet", s(&design_path), "-o", s(&plain)])
+        .output()
+        .expect("run");
+    assert_eq!(run.status.code(), Some(0));
+    assert!(!pdf_text(&fs::read(&plain).expect("written")).contains(bowgrip::sheet::BENCH_TITLE));
+    let bad = dir.path().join("bad.csv");
+    fs::write(&bad, "stroke_mm,actuator_force_n\n1.0,x\n").expect("write");
+    let refused = dir.path().join("refused.pdf");
+    let run = bowgrip()
+        .args([
+            "sheet",
+            s(&design_path),
+            "-o",
+            s(&refused),
+            "--measured",
+            s(&bad),
+        ])
+        .output()
+        .expect("run");
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(2), "{err}");
+    assert!(err.contains("bad.csv:2:5:"), "{err}");
+    assert!(!refused.exists(), "nothing written");
+}
