@@ -342,6 +342,31 @@ impl GripApp {
 // ---------------------------------------------------------------------------------------
 // Drawing.
 
+/// Under the strip inputs, when the design carries a bench calibration: what it does,
+/// and a button that takes it out (one undoable edit).
+pub fn calibration_note_ui(ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+    let Some(c) = d.calibration else { return };
+    ui.horizontal_wrapped(|ui| {
+        ui.label(
+            RichText::new(format!(
+                "Bench calibration: modulus factor {:.4} on E; stroke offset {:+.4} mm (model stroke = measured stroke + offset).",
+                c.modulus_factor, c.stroke_offset_mm
+            ))
+            .small(),
+        )
+        .on_hover_text("Fitted to bench measurements and written into the design file as `calibration`. The modulus factor scales every force and the bending stress; the offset applies where measured strokes meet the model (bench comparisons).");
+        if ui
+            .small_button("Remove")
+            .on_hover_text("Take the calibration out of the design (Undo puts it back).")
+            .clicked()
+        {
+            let mut next = d.clone();
+            next.calibration = None;
+            out.push(Command::Edit(Box::new(next), Gesture::Done));
+        }
+    });
+}
+
 /// The File menu's entries for measurements.
 pub fn file_menu_ui(app: &mut GripApp, ui: &mut Ui) {
     if ui
@@ -612,7 +637,8 @@ fn bench_plot(id: &str, y_label: &str, width: f32, height: f32) -> Plot<'static>
             Legend::default()
                 .position(egui_plot::Corner::LeftTop)
                 .background_alpha(0.6)
-                .text_style(egui::TextStyle::Small),
+                .text_style(egui::TextStyle::Small)
+                .follow_insertion_order(true),
         )
         .x_axis_label("measured stroke, mm")
         .y_axis_label(y_label.to_string())

@@ -45,9 +45,19 @@ pub fn residual_cells(q: &QuantityResiduals) -> [String; 5] {
         q.quantity.column().to_string(),
         s.points.to_string(),
         format!("{} {u}", fixed(s.rms, 3)),
-        format!("{} {u}", fixed(s.max_signed, 3)),
+        format!("{} {u}", signed(s.max_signed, 3)),
         format!("line {}, stroke {}", s.max_line, fixed(s.max_stroke_mm, 3)),
     ]
+}
+
+/// `v` to `decimals` places with its sign: `+1.039`, `−0.026`.
+fn signed(v: f64, decimals: usize) -> String {
+    let s = fixed(v, decimals);
+    if v > 0.0 && !s.chars().all(|c| c == '0' || c == '.') {
+        format!("+{s}")
+    } else {
+        s
+    }
 }
 
 /// A plain table: a bold header, then rows; columns at the given widths.
@@ -168,6 +178,37 @@ pub(super) fn section(a: &Analysis, m: &Measured, width: f32) -> Section {
     }
 }
 
+/// The title of the short section a calibrated design prints.
+pub const CALIBRATION_TITLE: &str = "Bench calibration in this design";
+
+/// When the design carries a bench calibration, a short section saying so and what it
+/// changes (printed with or without measurements); `None` otherwise.
+pub(super) fn calibration_section(a: &Analysis, width: f32) -> Option<Section> {
+    let c = a.segment.design.calibration?;
+    let mut b = heading(width, None);
+    b.marks.clear();
+    b.text(0.0, 11.0, 11.0, Weight::Bold, CALIBRATION_TITLE);
+    b.line([0.0, 15.0], [width, 15.0], 0.8, INK);
+    let body = text_block(
+        width,
+        BODY,
+        INK,
+        &format!(
+            "The design carries factors fitted to bench measurements of a prototype. Modulus factor {} on Young's modulus: the model uses E' = {} GPa (the material's value times the factor), so every force and the bending stress scale with it. Stroke offset {} mm: the model's stroke is a measured stroke plus the offset; it applies where bench measurements are compared with the model, and the design's own strokes are counted from straight strips. Fitted factors describe one prototype on one bench: confirm them by a second test.",
+            fixed(c.modulus_factor, 4),
+            sig(a.segment.modulus_pa * 1e-9, 4),
+            signed(c.stroke_offset_mm, 3),
+        ),
+    );
+    let h = b.height;
+    b.append(&body, 0.0, h);
+    b.height += body.height;
+    Some(Section {
+        title: CALIBRATION_TITLE.to_string(),
+        blocks: vec![b],
+    })
+}
+
 fn residual_table(all: &[QuantityResiduals], width: f32) -> Block {
     let widths = [0.24, 0.1, 0.18, 0.18, 0.30].map(|f| f * width);
     let rows: Vec<Vec<String>> = all.iter().map(|q| residual_cells(q).to_vec()).collect();
@@ -216,7 +257,7 @@ fn correlation_table(c: &Calibration, width: f32) -> Block {
         .zip(&c.correlation)
         .map(|(f, row)| {
             let mut cells = vec![f.factor.key().to_string()];
-            cells.extend(row.iter().map(|r| fixed(*r, 3)));
+            cells.extend(row.iter().map(|r| signed(*r, 3)));
             cells
         })
         .collect();
@@ -293,7 +334,7 @@ fn plot(
         y_range: padded(ys.into_iter()),
         items,
     }
-    .layout(width, 150.0)
+    .layout(width, 100.0)
 }
 
 fn diameter_plot(a: &Analysis, m: &Measured, width: f32) -> Block {

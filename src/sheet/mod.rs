@@ -29,7 +29,7 @@ use crate::design::Design;
 use draw::{Block, GREY, INK, Mark};
 use font::Weight;
 
-pub use bench::{Measured, TITLE as BENCH_TITLE};
+pub use bench::{CALIBRATION_TITLE, Measured, TITLE as BENCH_TITLE};
 pub use format::{civil_from_days, utc_stamp};
 
 /// Paper size of the sheet.
@@ -232,6 +232,7 @@ pub fn layout_measured(
     let printable = [MARGIN_PT, MARGIN_PT, w - MARGIN_PT, h - MARGIN_PT];
     let content_w = printable[2] - printable[0];
     let mut sections = sections::build(&analysis, &meta, content_w);
+    sections.extend(bench::calibration_section(&analysis, content_w));
     if let Some(m) = measured {
         sections.push(bench::section(&analysis, m, content_w));
     }

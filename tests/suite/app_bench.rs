@@ -153,6 +153,11 @@ fn open_fit_apply_and_undo() {
     h.state_mut().push(Command::Redo);
     h.run();
     assert_eq!(*h.state().design(), after);
+    // The inputs say the design carries a calibration.
+    assert!(label_shown(
+        &h,
+        &format!("modulus factor {modulus:.4} on E")
+    ));
 
     // Saved in place: the file reads back with the calibration, its comments kept.
     h.state_mut().push(Command::Save);

@@ -872,6 +872,11 @@ fn printed(v: f64, decimals: usize) -> String {
     format!("{v:.decimals$}").replace('-', "\u{2212}")
 }
 
+/// A signed number as the sheet prints it: `+1.039`, `\u{2212}0.026`.
+fn printed_signed(v: f64, decimals: usize) -> String {
+    format!("{v:+.decimals$}").replace('-', "\u{2212}")
+}
+
 #[test]
 fn sheet_with_measurements_prints_the_bench_page_and_its_residuals() {
     let design_path = root().join("sample-designs/riser-climber-2in-sch40.ron");
@@ -911,7 +916,7 @@ fn sheet_with_measurements_prints_the_bench_page_and_its_residuals() {
         let unit = q.quantity.unit();
         for want in [
             format!("{} {unit}", printed(sm.rms, 3)),
-            format!("{} {unit}", printed(sm.max_signed, 3)),
+            format!("{} {unit}", printed_signed(sm.max_signed, 3)),
             format!(
                 "line {}, stroke {}",
                 sm.max_line,
@@ -957,4 +962,28 @@ fn sheet_with_measurements_prints_the_bench_page_and_its_residuals() {
     assert_eq!(run.status.code(), Some(2), "{err}");
     assert!(err.contains("bad.csv:2:5:"), "{err}");
     assert!(!refused.exists(), "nothing written");
+
+    // A calibrated design's sheet says so, with the modulus the model used; a design
+    // without calibration prints no such section.
+    let mut calibrated = d.clone();
+    calibrated.calibration = Some(design::Calibration {
+        modulus_factor: 0.93,
+        stroke_offset_mm: 0.12,
+    });
+    let pdf = bowgrip::sheet::render(&calibrated, "c.ron", b"c", bowgrip::sheet::Paper::A4)
+        .expect("renders");
+    let text = pdf_text(&pdf);
+    let e_used = bowgrip::segment::Segment::new(&calibrated)
+        .expect("segment")
+        .modulus_pa
+        * 1e-9;
+    assert!(text.contains(bowgrip::sheet::CALIBRATION_TITLE));
+    assert!(text.contains("Modulus factor 0.9300"), "{text}");
+    assert!(
+        text.contains(&format!("E' = {:.1} GPa", e_used)),
+        "{e_used}"
+    );
+    let pdf =
+        bowgrip::sheet::render(&d, "d.ron", b"d", bowgrip::sheet::Paper::A4).expect("renders");
+    assert!(!pdf_text(&pdf).contains(bowgrip::sheet::CALIBRATION_TITLE));
 }
