@@ -994,7 +994,7 @@ fn tabular(
     }
     let names: Vec<String> = header
         .split(',')
-        .map(|n| serde_json::to_string(n))
+        .map(serde_json::to_string)
         .collect::<Result<_, _>>()?;
     write!(out, "[")?;
     for (i, r) in rows.enumerate() {
