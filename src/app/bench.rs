@@ -196,6 +196,8 @@ impl GripApp {
                 });
                 self.bench.cache = None;
                 self.bench.outcome = None;
+                // A fit still running is for the old file: its answer is dropped.
+                self.bench.job = None;
                 self.bench.show = true;
                 self.bench.refresh(&self.doc.design);
                 self.say(format!(
