@@ -200,13 +200,30 @@ fn a_malformed_file_is_refused_where_it_is_wrong_and_nothing_changes() {
     assert!(label_shown(&h, "line 2, column 5"));
 }
 
+/// A file dropped on the window, as a desktop integration hands it to egui.
+#[derive(Debug)]
+struct Dropped(PathBuf);
+
+impl egui::DroppedFile for Dropped {
+    fn path(&self) -> &std::path::Path {
+        &self.0
+    }
+
+    fn bytes(&self) -> Result<Vec<u8>, String> {
+        fs::read(&self.0).map_err(|e| e.to_string())
+    }
+}
+
 #[test]
 fn dropped_files_open_by_kind() {
     let (dir, design_path, bench_path, app) = riser_app();
     let mut h = harness(app);
     h.run();
-    // A dropped .csv opens as measurements.
-    h.state_mut().open_dropped(vec![bench_path.clone()]);
+    // A dropped .csv opens as measurements: through the window's own input, as a desktop
+    // delivers a drop.
+    h.input_mut()
+        .dropped_files
+        .push(std::sync::Arc::new(Dropped(bench_path.clone())));
     h.run();
     assert_eq!(h.state().measurements().map(|d| d.rows.len()), Some(16));
     // A dropped .ron with unsaved changes asks first (the unsaved-changes guard).
