@@ -186,6 +186,13 @@ fn table(
         measured.display(),
         data.rows.len()
     );
+    if let Some(c) = design.calibration {
+        let _ = writeln!(
+            t,
+            "The design's calibration: modulus factor {}, stroke offset {} mm (model stroke = measured stroke + offset)",
+            c.modulus_factor, c.stroke_offset_mm
+        );
+    }
     let _ = writeln!(t);
     let _ = writeln!(
         t,

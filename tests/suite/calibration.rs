@@ -854,6 +854,40 @@ fn compare_table_and_bad_input() {
         .expect("run");
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bad.csv:2:5:"), "{err}");
+
+    // A calibrated design: the table names its calibration, and the residuals are those
+    // of the model with it.
+    let calibrated = dir.path().join("calibrated.ron");
+    fs::write(
+        &calibrated,
+        riser_text_with("calibration: Some((modulus_factor: 0.93, stroke_offset_mm: 0.12))"),
+    )
+    .expect("write");
+    let out = bowgrip()
+        .args(["compare", s(&calibrated), "--measured", s(&bench), "--json"])
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("JSON");
+    let d = design::load(&calibrated).expect("loads");
+    let data = bench_data::load(&bench).expect("bench");
+    let want = calibrate::residuals(&d, &data, &Factors::nominal(&d)).expect("residuals");
+    for q in &want {
+        let rms = v["residuals"][q.quantity.column()]["rms"]
+            .as_f64()
+            .expect("rms");
+        let exact = q.summary().rms;
+        assert!((rms - exact).abs() <= 1e-12 * exact, "{rms} {exact}");
+    }
+    let out = bowgrip()
+        .args(["compare", s(&calibrated), "--measured", s(&bench)])
+        .output()
+        .expect("run");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("calibration: modulus factor 0.93, stroke offset 0.12 mm"),
+        "{text}"
+    );
 }
 
 // ---------------------------------------------------------------------------------------
