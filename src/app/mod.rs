@@ -8,6 +8,7 @@
 //! undo steps and re-analyses (once per change, never per frame). [`GripApp::ui`] serves
 //! both eframe and the kittest tests.
 
+mod bench;
 mod dialogs;
 pub mod export;
 pub mod fit;
@@ -181,6 +182,8 @@ pub struct GripApp {
     dialogs: dialogs::Dialogs,
     /// Load sharing, computed on a worker thread.
     sharing: strips::SharingWork,
+    /// Bench measurements and the calibration fit.
+    bench: bench::BenchPanel,
 }
 
 impl GripApp {
@@ -225,6 +228,7 @@ impl GripApp {
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
             sharing: strips::SharingWork::default(),
+            bench: bench::BenchPanel::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
@@ -390,6 +394,8 @@ impl GripApp {
             .show(ui, |ui| outputs::verdict_ui(self, ui));
         egui::CentralPanel::default().show(ui, |ui| outputs::results_ui(self, ui));
         dialogs::windows(self, &ctx);
+        bench::windows(self, &ctx);
+        bench::take_dropped(self, &ctx);
         self.apply();
         self.autosave(&ctx);
         let title = self.title();
@@ -812,6 +818,7 @@ impl GripApp {
             }
             Err(e) => self.analysis_error = Some(e.to_string()),
         }
+        self.bench.refresh(&self.doc.design);
     }
 
     fn say(&mut self, text: String) {

@@ -243,6 +243,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     };
     let marks = super::strips::stroke_marks(app);
     let loaded = app.sharing.view_for(&app.doc.design);
+    let bench = app
+        .bench
+        .nominal_force_points(&seg.design, seg.bore_nominal_mm);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
         plot_cell(
@@ -261,7 +264,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &marks),
+            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &marks, &bench),
         );
     });
     ui.horizontal(|ui| {
@@ -706,6 +709,7 @@ fn force_plot(
     need: f64,
     height: f32,
     marks: &[(&'static str, f64)],
+    bench: &[super::bench::Overlay],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -731,6 +735,7 @@ fn force_plot(
             );
             rating.add_to(p);
             super::strips::add_marks(p, marks);
+            super::bench::overlay_ui(p, bench);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
