@@ -701,6 +701,8 @@ fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
     });
 }
 
+// The plot's inputs are each a different overlay; bundling them would only rename them.
+#[allow(clippy::too_many_arguments)]
 fn force_plot(
     ui: &mut Ui,
     a: &Analysis,
