@@ -6,6 +6,8 @@ use std::f64::consts::PI;
 
 use serde::Serialize;
 
+use crate::actuation;
+use crate::design::Operating;
 use crate::segment::{Segment, SegmentError, SegmentState};
 
 /// Unit of a check's margin.
@@ -51,7 +53,12 @@ pub struct Check {
 /// Every check of a segment, in a fixed order.
 pub fn run(seg: &Segment) -> Vec<Check> {
     let d = &seg.design;
-    let op = d.operating_stroke_mm;
+    // The set stroke under displacement control; under force control each bore has its
+    // own operating stroke (`actuation::operating_state`).
+    let set_op = match d.operating() {
+        Operating::Stroke(s) => Some(s),
+        _ => None,
+    };
     let small = seg.bore_smallest_mm;
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
@@ -84,15 +91,17 @@ pub fn run(seg: &Segment) -> Vec<Check> {
             Some(fc) => Check {
                 id: "reach",
                 title: "reaches the wall at the largest bore",
-                pass: fc <= max_stroke,
-                margin: Some(max_stroke - fc),
+                pass: actuation::travel_at_mm(p, fc) <= max_stroke,
+                margin: Some(max_stroke - actuation::travel_at_mm(p, fc)),
                 unit: MarginUnit::Mm,
                 reason: match p.stress_limit_stroke_mm().ok().filter(|&s| s < fc) {
                     Some(s) => format!(
-                        "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall"
+                        "first contact at {fc:.3} mm stroke{} vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall",
+                        actuation::travel_note(p, fc)
                     ),
                     None => format!(
-                        "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm"
+                        "first contact at {fc:.3} mm stroke{} vs actuator maximum {max_stroke:.3} mm",
+                        actuation::travel_note(p, fc)
                     ),
                 },
                 bore_mm: Some(large),
@@ -127,7 +136,8 @@ pub fn run(seg: &Segment) -> Vec<Check> {
     let required = d.duty.holding_force_n * d.duty.safety_factor;
     let hold = match &large_path {
         Ok(p) => {
-            let s = p.state(op);
+            let operating = actuation::operating_state(p);
+            let (op, s) = (operating.stroke_mm, operating.state);
             match s.holding_force_n {
                 Some(h) if required > 0.0 => Check {
                     id: "hold",
@@ -140,7 +150,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                         s.phase, d.duty.holding_force_n, d.duty.safety_factor
                     ),
                     bore_mm: Some(large),
-                    stroke_mm: Some(op),
+                    stroke_mm: op,
                 },
                 Some(h) => Check {
                     id: "hold",
@@ -150,7 +160,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                     unit: MarginUnit::Ratio,
                     reason: format!("no holding force required; the segment holds {h:.2} N"),
                     bore_mm: Some(large),
-                    stroke_mm: Some(op),
+                    stroke_mm: op,
                 },
                 None => beyond(
                     "hold",
@@ -166,7 +176,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
             "holds the required load at the largest bore",
             MarginUnit::Ratio,
             large,
-            Some(op),
+            set_op,
             e,
         ),
     };
@@ -175,25 +185,41 @@ pub fn run(seg: &Segment) -> Vec<Check> {
     // 4-7 at the smallest bore and the operating stroke.
     match seg.at_bore(small) {
         Ok(p) => {
-            let s = p.state(op);
-            out.push(stress_check(seg, &s, small, op, true));
-            out.push(stress_check(seg, &s, small, op, false));
-            out.push(actuator_check(seg, &s, small, op));
-            let limit = p.limit_stroke_mm();
-            let margin = (max_stroke - op).min(limit - op);
-            let pass = op <= max_stroke && op < limit;
-            out.push(Check {
-                id: "stroke",
-                title: "operating stroke within the actuator and short of the limit",
-                pass,
-                margin: Some(margin),
-                unit: MarginUnit::Mm,
-                reason: format!(
-                    "operating {op:.3} mm vs actuator maximum {max_stroke:.3} mm and model limit {limit:.3} mm ({})",
-                    p.limit_reason().describe()
-                ),
-                bore_mm: Some(small),
-                stroke_mm: Some(op),
+            let operating = actuation::operating_state(&p);
+            let (op, s) = (operating.stroke_mm, &operating.state);
+            out.push(stress_check(seg, s, small, op, true));
+            out.push(stress_check(seg, s, small, op, false));
+            out.push(actuator_check(seg, s, small, op));
+            out.push(match (op, operating.travel_mm) {
+                (Some(op), Some(travel)) => {
+                    let limit = p.limit_stroke_mm();
+                    let margin = (max_stroke - travel).min(limit - op);
+                    let pass = travel <= max_stroke && op < limit;
+                    Check {
+                        id: "stroke",
+                        title: "operating stroke within the actuator and short of the limit",
+                        pass,
+                        margin: Some(margin),
+                        unit: MarginUnit::Mm,
+                        reason: format!(
+                            "operating {op:.3} mm{} vs actuator maximum {max_stroke:.3} mm and model limit {limit:.3} mm ({})",
+                            actuation::travel_note(&p, op),
+                            p.limit_reason().describe()
+                        ),
+                        bore_mm: Some(small),
+                        stroke_mm: Some(op),
+                    }
+                }
+                _ => Check {
+                    unit: MarginUnit::Mm,
+                    ..beyond(
+                        "stroke",
+                        "operating stroke within the actuator and short of the limit",
+                        small,
+                        op,
+                        s,
+                    )
+                },
             });
         }
         Err(e) => {
@@ -219,7 +245,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                     MarginUnit::Mm,
                 ),
             ] {
-                out.push(no_state(id, title, unit, small, Some(op), &e));
+                out.push(no_state(id, title, unit, small, set_op, &e));
             }
         }
     }
@@ -240,10 +266,20 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         bore_mm: None,
         stroke_mm: Some(0.0),
     });
+    // 9. Stable at the operating point: only for force control or a compliant drive.
+    if d.uses_actuation() {
+        out.push(actuation::stable_check(seg));
+    }
     out
 }
 
-fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: bool) -> Check {
+fn stress_check(
+    seg: &Segment,
+    s: &SegmentState,
+    bore: f64,
+    op: Option<f64>,
+    is_static: bool,
+) -> Check {
     let (id, title) = if is_static {
         ("static", "static stress at the smallest bore")
     } else {
@@ -283,11 +319,11 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
         unit: MarginUnit::Ratio,
         reason,
         bore_mm: Some(bore),
-        stroke_mm: Some(op),
+        stroke_mm: op,
     }
 }
 
-fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check {
+fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: Option<f64>) -> Check {
     let title = "actuator force or torque within rating";
     let Some(reading) = s.actuator else {
         return beyond("actuator", title, bore, op, s);
@@ -308,11 +344,17 @@ fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check 
         unit: MarginUnit::Ratio,
         reason: format!("needs {need:.3} {unit} vs rating {rating:.3} {unit}"),
         bore_mm: Some(bore),
-        stroke_mm: Some(op),
+        stroke_mm: op,
     }
 }
 
-fn beyond(id: &'static str, title: &'static str, bore: f64, op: f64, s: &SegmentState) -> Check {
+fn beyond(
+    id: &'static str,
+    title: &'static str,
+    bore: f64,
+    op: Option<f64>,
+    s: &SegmentState,
+) -> Check {
     Check {
         id,
         title,
@@ -324,7 +366,7 @@ fn beyond(id: &'static str, title: &'static str, bore: f64, op: f64, s: &Segment
             .clone()
             .unwrap_or_else(|| "no state at the operating stroke".to_string()),
         bore_mm: Some(bore),
-        stroke_mm: Some(op),
+        stroke_mm: op,
     }
 }
 
@@ -374,7 +416,6 @@ pub fn all_pass(checks: &[Check]) -> bool {
 /// they do not. Not a check of the contract: the checks judge the mechanics note's model;
 /// these say where its states stop being physical.
 pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
-    let op = seg.design.operating_stroke_mm;
     [
         ("smallest", seg.bore_smallest_mm),
         ("nominal", seg.bore_nominal_mm),
@@ -383,6 +424,7 @@ pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
     .iter()
     .filter_map(|&(label, bore)| {
         let path = seg.at_bore(bore).ok()?;
+        let op = actuation::operating_stroke_mm(&path)?;
         let (onset, kind) = path.overlap_mm(op)?;
         Some(format!(
             "at the {label} bore ({bore:.3} mm) and the operating stroke ({op:.3} mm) {}, from {onset:.3} mm of stroke on: states there are not physical",

@@ -9,6 +9,7 @@
 //! both eframe and the kittest tests.
 
 mod dialogs;
+mod drive;
 pub mod export;
 pub mod fit;
 mod help;

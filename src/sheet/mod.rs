@@ -15,6 +15,7 @@
 mod draw;
 mod font;
 mod format;
+mod operating;
 mod plot;
 mod sections;
 
