@@ -14,7 +14,7 @@ use std::f64::consts::PI;
 
 use serde::Serialize;
 
-use crate::checks::{Check, MarginUnit};
+use crate::checks::{Check, CheckId};
 use crate::design::{Actuator, Operating};
 use crate::segment::{BorePath, Segment, SegmentState};
 
@@ -430,63 +430,23 @@ pub fn stability(path: &BorePath, op: &OperatingState) -> Stability {
 /// operating point lies on the rising branch of the pull, short of its peak; under
 /// position control through a compliant drive the stroke stays short of where the
 /// segment jumps. Judged at the smallest and the largest bore; the worse one is reported.
-/// The margin is the stroke from the operating point to the snap, mm.
+/// The margin is a ratio, capacity over demand minus one: the peak pull over the set pull
+/// under force control, the snap stroke over the operating stroke under position control
+/// (none where the pull rises all the way, or the travel never stops rising).
 pub fn stable_check(seg: &Segment) -> Check {
-    let id = "stable";
-    let title = "stable at the operating point";
     let drive = Drive::of(seg);
     let mut worst: Option<Check> = None;
     for bore in [seg.bore_smallest_mm, seg.bore_largest_mm] {
         let check = match seg.at_bore(bore) {
-            Err(e) => Check {
-                id,
-                title,
-                pass: false,
-                margin: None,
-                unit: MarginUnit::Mm,
-                reason: e.to_string(),
-                bore_mm: Some(bore),
-                stroke_mm: None,
-            },
-            Ok(path) => {
-                let op = operating_state(&path);
-                let s = stability(&path, &op);
-                let margin = match (s.stroke_mm, s.snap_stroke_mm) {
-                    (Some(op), Some(at)) => Some(at - op),
-                    _ => None,
-                };
-                let reason = match (&op.unreached, s.stroke_mm, s.snap_stroke_mm) {
-                    (Some(why), _, _) => why.describe(drive.set_pull_n.unwrap_or(0.0)),
-                    (None, Some(st), Some(at)) if drive.is_force_controlled() => format!(
-                        "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke, the pull peaks at {at:.3} mm: {}",
-                        if st < at {
-                            "on the rising branch"
-                        } else {
-                            "past the peak, where the segment snaps through"
-                        }
-                    ),
-                    (None, Some(st), None) if drive.is_force_controlled() => format!(
-                        "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke; the pull rises all the way to the model's limit"
-                    ),
-                    (None, Some(st), Some(at)) => format!(
-                        "at bore {bore:.3} mm the drive's give ({:.3} N/mm) lets the segment jump at {at:.3} mm of stroke, where its own stiffness reaches minus the drive's; operating stroke {st:.3} mm",
-                        drive.stiffness_n_per_mm.unwrap_or(f64::INFINITY)
-                    ),
-                    (None, _, _) => format!(
-                        "at bore {bore:.3} mm the actuator travel keeps rising with the stroke up to the model's limit: no jump"
-                    ),
-                };
-                Check {
-                    id,
-                    title,
-                    pass: s.stable,
-                    margin,
-                    unit: MarginUnit::Mm,
-                    reason,
-                    bore_mm: Some(bore),
-                    stroke_mm: s.stroke_mm,
-                }
-            }
+            Err(e) => Check::new(
+                CheckId::Stable,
+                false,
+                None,
+                e.to_string(),
+                Some(bore),
+                None,
+            ),
+            Ok(path) => stable_at(&path, &drive),
         };
         let worse = match &worst {
             None => true,
@@ -501,16 +461,70 @@ pub fn stable_check(seg: &Segment) -> Check {
             worst = Some(check);
         }
     }
-    worst.unwrap_or_else(|| Check {
-        id,
-        title,
-        pass: false,
-        margin: None,
-        unit: MarginUnit::Mm,
-        reason: "no bore to judge".to_string(),
-        bore_mm: None,
-        stroke_mm: None,
+    worst.unwrap_or_else(|| {
+        Check::new(
+            CheckId::Stable,
+            false,
+            None,
+            "no bore to judge".to_string(),
+            None,
+            None,
+        )
     })
+}
+
+/// The `stable` check at the bore of one path.
+fn stable_at(path: &BorePath, drive: &Drive) -> Check {
+    let bore = path.bore_mm();
+    let op = operating_state(path);
+    let s = stability(path, &op);
+    let set_pull = drive.set_pull_n.unwrap_or(0.0);
+    let (margin, reason) = match (&op.unreached, s.stroke_mm, s.snap_stroke_mm) {
+        (Some(why), _, _) => (
+            match why {
+                Unreached::PastPeak { peak_pull_n, .. } if set_pull > 0.0 => {
+                    Some(peak_pull_n / set_pull - 1.0)
+                }
+                _ => None,
+            },
+            format!("at bore {bore:.3} mm {}", why.describe(set_pull)),
+        ),
+        (None, Some(st), Some(at)) if drive.is_force_controlled() => (
+            pull_n(path, at)
+                .filter(|_| set_pull > 0.0)
+                .map(|peak| peak / set_pull - 1.0),
+            format!(
+                "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke, on the rising branch; the pull peaks at {at:.3} mm, past which the segment would snap through"
+            ),
+        ),
+        (None, Some(st), None) if drive.is_force_controlled() => (
+            None,
+            format!(
+                "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke; the pull rises all the way to the model's limit"
+            ),
+        ),
+        (None, Some(st), Some(at)) => (
+            (st > 0.0).then(|| at / st - 1.0),
+            format!(
+                "at bore {bore:.3} mm the drive's give ({:.3} N/mm) lets the segment jump at {at:.3} mm of stroke, where its own stiffness reaches minus the drive's; operating stroke {st:.3} mm",
+                drive.stiffness_n_per_mm.unwrap_or(f64::INFINITY)
+            ),
+        ),
+        (None, _, _) => (
+            None,
+            format!(
+                "at bore {bore:.3} mm the actuator travel keeps rising with the stroke up to the model's limit: no jump"
+            ),
+        ),
+    };
+    Check::new(
+        CheckId::Stable,
+        s.stable,
+        margin,
+        reason,
+        Some(bore),
+        s.stroke_mm,
+    )
 }
 
 /// The operating state at a bore as the analysis keeps it: the state, or why there is

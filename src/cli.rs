@@ -18,7 +18,7 @@ use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::actuation::{self, Drive};
-use crate::checks::{self, Check};
+use crate::checks::{self, Check, CheckId};
 use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sharing;
@@ -167,8 +167,12 @@ pub struct SweepArgs {
     #[arg(long, value_name = "N", default_value_t = SWEEP_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Arguments of `bores`.
@@ -187,8 +191,12 @@ pub struct BoresArgs {
     #[arg(long, value_name = "N", default_value_t = BORES_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Bores in a `bores` table when `--points` is not given.
@@ -200,8 +208,12 @@ pub struct CheckArgs {
     /// Design file (.ron).
     pub file: PathBuf,
     /// Print one JSON object instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "csv")]
     pub json: bool,
+    /// CSV instead of the table: one row per check (id, pass, margin, unit, bore_mm,
+    /// stroke_mm, reason)
+    #[arg(long)]
+    pub csv: bool,
 }
 
 /// Arguments of `sheet`.
@@ -869,12 +881,11 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
     // Designs with a set pull or torque, or a compliant drive, get the actuator travel.
     let drive = seg.design.uses_actuation().then(|| Drive::of(&seg));
-    if a.csv {
+    if a.csv || a.json {
         let travel = if drive.is_some() { ",travel_mm" } else { "" };
-        writeln!(out, "{},{SWEEP_EXTRA}{travel}", STATE_COLUMNS.join(","))?;
-        for s in states {
-            writeln!(out, "{}", sweep_csv_row(&s, drive.as_ref()))?;
-        }
+        let header = format!("{},{SWEEP_EXTRA}{travel}", STATE_COLUMNS.join(","));
+        let rows = states.map(|s| sweep_csv_row(&s, drive.as_ref()));
+        tabular(&header, rows, a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -981,21 +992,22 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         Ok(op) => (op.stroke_mm, op.travel_mm),
         Err(_) => (None, None),
     };
-    if a.csv {
+    if a.csv || a.json {
         let extra = if operating {
             ",operating_stroke_mm,travel_mm"
         } else {
             ""
         };
-        writeln!(out, "{}{extra}", BORE_ROW_COLUMNS.join(","))?;
-        for r in rows {
+        let header = format!("{}{extra}", BORE_ROW_COLUMNS.join(","));
+        let rows = rows.map(|r| {
             if operating {
                 let (s, t) = op_cells(r.bore_mm);
-                writeln!(out, "{},{},{}", r.csv_line(), csv_cell(s), csv_cell(t))?;
+                format!("{},{},{}", r.csv_line(), csv_cell(s), csv_cell(t))
             } else {
-                writeln!(out, "{}", r.csv_line())?;
+                r.csv_line()
             }
-        }
+        });
+        tabular(&header, rows, a.json, out)?;
         return Ok(Status::Done);
     }
     if operating {
@@ -1052,7 +1064,6 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let limiting = checks::limiting(&list).map(|i| list[i].id);
     let cautions = checks::geometry_cautions(&seg);
     if a.json {
-        let items: Vec<serde_json::Value> = list.iter().map(check_json).collect();
         let mut doc = serde_json::json!({
             "file": a.file.display().to_string(),
             "title": design.title,
@@ -1060,7 +1071,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "limiting": limiting,
             "stiffness": seg.stiffness_used.name(),
             "stiffness_reason": seg.stiffness_reason,
-            "checks": items,
+            "checks": list,
             "geometry_cautions": cautions,
         });
         if design.uses_actuation()
@@ -1071,6 +1082,21 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         }
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
+    } else if a.csv {
+        writeln!(out, "{}", CHECK_COLUMNS.join(","))?;
+        for c in &list {
+            writeln!(
+                out,
+                "{},{},{},{},{},{},{}",
+                c.id,
+                c.pass,
+                csv_cell(c.margin),
+                c.unit().label(),
+                csv_cell(c.bore_mm),
+                csv_cell(c.stroke_mm),
+                csv_text(&c.reason)
+            )?;
+        }
     } else {
         write!(
             out,
@@ -1119,24 +1145,72 @@ fn operating_json(seg: &Segment) -> serde_json::Value {
         .collect()
 }
 
-fn check_json(c: &Check) -> serde_json::Value {
-    serde_json::json!({
-        "id": c.id,
-        "title": c.title,
-        "pass": c.pass,
-        "margin": c.margin,
-        "unit": c.unit.label(),
-        "reason": c.reason,
-        "bore_mm": c.bore_mm,
-        "stroke_mm": c.stroke_mm,
-    })
+/// Columns of `check --csv`, in order.
+pub const CHECK_COLUMNS: [&str; 7] = [
+    "id",
+    "pass",
+    "margin",
+    "unit",
+    "bore_mm",
+    "stroke_mm",
+    "reason",
+];
+
+/// A text cell for CSV (RFC 4180): quoted when it holds a comma, a quote or a line break,
+/// with quotes doubled.
+fn csv_text(t: &str) -> String {
+    if t.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", t.replace('"', "\"\""))
+    } else {
+        t.to_string()
+    }
+}
+
+/// Writes a table given as a CSV header and CSV rows: as CSV, or (`json`) as one JSON array
+/// of objects keyed by the column names, numbers as numbers, empty cells as null and other
+/// cells as strings. The rows stream; nothing is collected. One source for both forms, so
+/// the JSON has exactly the CSV's columns.
+fn tabular(
+    header: &str,
+    rows: impl Iterator<Item = String>,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<()> {
+    if !json {
+        writeln!(out, "{header}")?;
+        for r in rows {
+            writeln!(out, "{r}")?;
+        }
+        return Ok(());
+    }
+    let names: Vec<String> = header
+        .split(',')
+        .map(serde_json::to_string)
+        .collect::<Result<_, _>>()?;
+    write!(out, "[")?;
+    for (i, r) in rows.enumerate() {
+        write!(out, "{}{{", if i == 0 { "" } else { "," })?;
+        for (j, (name, cell)) in names.iter().zip(r.split(',')).enumerate() {
+            let value = match cell {
+                "" => "null".to_string(),
+                c => match c.parse::<f64>() {
+                    Ok(v) if v.is_finite() => c.to_string(),
+                    _ => serde_json::to_string(c)?,
+                },
+            };
+            write!(out, "{}{name}:{value}", if j == 0 { "" } else { "," })?;
+        }
+        write!(out, "}}")?;
+    }
+    writeln!(out, "]")?;
+    Ok(())
 }
 
 fn check_table(
     design: &Design,
     seg: &Segment,
     list: &[Check],
-    limiting: Option<&str>,
+    limiting: Option<CheckId>,
     cautions: &[String],
 ) -> String {
     let mut t = String::new();
@@ -1150,10 +1224,7 @@ fn check_table(
     );
     for c in list {
         let verdict = if c.pass { "pass" } else { "FAIL" };
-        let margin = match c.margin {
-            Some(m) => format!("{m:+.3} {}", c.unit.label()),
-            None => "-".to_string(),
-        };
+        let margin = c.margin_text().unwrap_or_else(|| "-".to_string());
         let mark = if Some(c.id) == limiting {
             " (limiting)"
         } else {
@@ -1162,7 +1233,9 @@ fn check_table(
         let _ = writeln!(
             t,
             "{:<9} {verdict:<5} {margin:>14}  {}{mark}: {}",
-            c.id, c.title, c.reason
+            c.id,
+            c.title(),
+            c.reason
         );
     }
     let failed = list.iter().filter(|c| !c.pass).count();

@@ -721,13 +721,13 @@ impl Cell {
         Cell {
             x,
             y,
-            limiting: limiting.map(|c| c.id),
+            limiting: limiting.map(|c| c.id.as_str()),
             limiting_margin: limiting.and_then(|c| c.margin),
             pass: checks::all_pass(list),
             checks: list
                 .iter()
                 .map(|c| CellCheck {
-                    id: c.id,
+                    id: c.id.as_str(),
                     pass: c.pass,
                     margin: c.margin,
                 })
