@@ -430,9 +430,10 @@ pub fn stability(path: &BorePath, op: &OperatingState) -> Stability {
 /// operating point lies on the rising branch of the pull, short of its peak; under
 /// position control through a compliant drive the stroke stays short of where the
 /// segment jumps. Judged at the smallest and the largest bore; the worse one is reported.
-/// The margin is a ratio, capacity over demand minus one: the peak pull over the set pull
-/// under force control, the snap stroke over the operating stroke under position control
-/// (none where the pull rises all the way, or the travel never stops rising).
+/// The margin is a ratio, capacity over demand minus one: under force control the peak
+/// pull (or, where the pull rises all the way, the pull at the model's limit) over the set
+/// pull; under position control the snap stroke (or the limit stroke, where the travel
+/// never stops rising) over the operating stroke.
 pub fn stable_check(seg: &Segment) -> Check {
     let drive = Drive::of(seg);
     let mut worst: Option<Check> = None;
@@ -497,12 +498,17 @@ fn stable_at(path: &BorePath, drive: &Drive) -> Check {
                 "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke, on the rising branch; the pull peaks at {at:.3} mm, past which the segment would snap through"
             ),
         ),
-        (None, Some(st), None) if drive.is_force_controlled() => (
-            None,
-            format!(
-                "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke; the pull rises all the way to the model's limit"
-            ),
-        ),
+        (None, Some(st), None) if drive.is_force_controlled() => {
+            let limit = path.limit_stroke_mm();
+            let top = pull_n(path, limit);
+            (
+                top.filter(|_| set_pull > 0.0).map(|p| p / set_pull - 1.0),
+                format!(
+                    "at bore {bore:.3} mm the set pull is reached at {st:.3} mm of stroke; the pull rises all the way to the model's limit ({} N at {limit:.3} mm)",
+                    top.map_or_else(|| "-".to_string(), |p| format!("{p:.2}"))
+                ),
+            )
+        }
         (None, Some(st), Some(at)) => (
             (st > 0.0).then(|| at / st - 1.0),
             format!(
@@ -510,12 +516,15 @@ fn stable_at(path: &BorePath, drive: &Drive) -> Check {
                 drive.stiffness_n_per_mm.unwrap_or(f64::INFINITY)
             ),
         ),
-        (None, _, _) => (
-            None,
-            format!(
-                "at bore {bore:.3} mm the actuator travel keeps rising with the stroke up to the model's limit: no jump"
-            ),
-        ),
+        (None, st, _) => {
+            let limit = path.limit_stroke_mm();
+            (
+                st.filter(|&st| st > 0.0).map(|st| limit / st - 1.0),
+                format!(
+                    "at bore {bore:.3} mm the actuator travel keeps rising with the stroke up to the model's limit at {limit:.3} mm: no jump"
+                ),
+            )
+        }
     };
     Check::new(
         CheckId::Stable,
