@@ -10,12 +10,10 @@
 //!
 //! No I/O and no GUI: the checks, the command line, the app and the sheet read it.
 
-use std::f64::consts::PI;
-
 use serde::Serialize;
 
 use crate::checks::{Check, CheckId};
-use crate::design::{Actuator, Operating};
+use crate::design::Operating;
 use crate::segment::{BorePath, Segment, SegmentState};
 
 /// The pull at a force-set operating point is found to this fraction of the set pull.
@@ -50,7 +48,8 @@ impl Drive {
         let set_pull_n = match operating {
             Operating::Stroke(_) => None,
             Operating::Pull(n) => Some(n),
-            Operating::Torque(t) => Some(pull_for_torque_n(&seg.design.actuator, t)),
+            // Through the spool (`T / r_s`) or the screw (`2 pi eff T / lead`).
+            Operating::Torque(t) => Some(seg.design.actuator.pull_n_at(t)),
         };
         Drive {
             operating,
@@ -76,22 +75,6 @@ impl Drive {
             Some(k) => stroke_mm + pull_n / k,
             None => stroke_mm,
         }
-    }
-}
-
-/// The pull on the plates that a torque at the spool or screw gives, N: `T / r_s` on a
-/// spool, `2 pi eff T / lead` through a lead screw (the inverse of the segment's torque
-/// mapping). A direct pull has no torque: the design refuses `Torque` with it, and the
-/// value is taken as a pull here.
-pub fn pull_for_torque_n(actuator: &Actuator, torque_nm: f64) -> f64 {
-    match *actuator {
-        Actuator::Direct { .. } => torque_nm,
-        Actuator::Spool { radius_mm, .. } => torque_nm / (radius_mm * 1e-3),
-        Actuator::LeadScrew {
-            lead_mm,
-            efficiency,
-            ..
-        } => torque_nm * 2.0 * PI * efficiency / (lead_mm * 1e-3),
     }
 }
 
@@ -314,14 +297,17 @@ pub fn operating_state(path: &BorePath) -> OperatingState {
     match found {
         Ok(stroke) => {
             let state = path.state(stroke);
-            let travel = state
-                .actuator_force_n
-                .map_or(stroke, |p| drive.travel_mm(stroke, p));
+            // Through a compliant drive the travel needs the pull, which a state past the
+            // limit does not have.
+            let travel = match drive.stiffness_n_per_mm {
+                None => Some(stroke),
+                Some(_) => state.actuator_force_n.map(|p| drive.travel_mm(stroke, p)),
+            };
             OperatingState {
                 drive,
                 bore_mm: path.bore_mm(),
                 stroke_mm: Some(stroke),
-                travel_mm: Some(travel),
+                travel_mm: travel,
                 state,
                 unreached: None,
             }

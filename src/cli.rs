@@ -776,7 +776,11 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
     let rows: Vec<(&str, String, &str)> = vec![
         (bore_label, format!("{:.3}", s.bore_mm), "mm"),
         ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
-        ("stroke", format!("{:.3}", s.stroke_mm), "mm"),
+        (
+            "stroke",
+            fixed(Some(s.stroke_mm).filter(|v| v.is_finite()), 3),
+            "mm",
+        ),
         ("phase", s.phase.to_string(), ""),
         (
             "axial force per strip",

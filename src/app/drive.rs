@@ -54,19 +54,10 @@ pub fn keep_drive(before: &crate::design::Design, next: &mut crate::design::Desi
     next.actuator
         .set_stiffness_n_per_mm(before.actuator.stiffness_n_per_mm());
     if let Operating::Torque(t) = before.operating() {
-        let pull = crate::actuation::pull_for_torque_n(&before.actuator, t);
-        let torque = match next.actuator {
-            crate::design::Actuator::Direct { .. } => None,
-            crate::design::Actuator::Spool { radius_mm, .. } => Some(pull * radius_mm * 1e-3),
-            crate::design::Actuator::LeadScrew {
-                lead_mm,
-                efficiency,
-                ..
-            } => Some(pull * lead_mm * 1e-3 / (2.0 * std::f64::consts::PI * efficiency)),
-        };
-        next.set_operating(match torque {
-            Some(t) => Operating::Torque(t),
-            None => Operating::Pull(pull),
+        let pull = before.actuator.pull_n_at(t);
+        next.set_operating(match next.actuator {
+            crate::design::Actuator::Direct { .. } => Operating::Pull(pull),
+            _ => Operating::Torque(next.actuator.reading(0.0, pull).effort),
         });
     }
 }

@@ -343,7 +343,7 @@ fn a_set_torque_pulls_through_the_screw_or_the_spool() {
         max_angle_deg: 720.0,
         stiffness_n_per_mm: None,
     };
-    assert!((actuation::pull_for_torque_n(&spool, 0.4) - 50.0).abs() <= 1e-12);
+    assert!((spool.pull_n_at(0.4) - 50.0).abs() <= 1e-12);
     // Every bore of the tolerance band reaches the set pull, each at its own stroke, and
     // the stroke grows with the bore.
     let mut last = 0.0;
