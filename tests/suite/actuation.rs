@@ -703,3 +703,61 @@ fn the_command_line_refuses_both_operating_fields_at_once() {
         assert!(err.contains("given twice"), "{err}");
     }
 }
+
+// ---------------------------------------------------------------- the app
+
+/// The app's operating point is a mode choice (egui_kittest, through the accessibility
+/// tree): switching from the sample's torque to a pull keeps the pull it set, to a stroke
+/// keeps the nominal bore's operating stroke; each switch is one undo step.
+#[test]
+fn the_app_switches_the_operating_mode_and_undoes_it() {
+    use egui::accesskit::Role;
+    use egui::{Key, Modifiers};
+    use egui_kittest::Harness;
+    use egui_kittest::kittest::Queryable;
+
+    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let app = bowgrip::app::GripApp::new(
+        state.path().to_path_buf(),
+        Some(sample("water-main-tractor-torque-screw.ron")),
+    );
+    let mut h = Harness::builder()
+        .with_size([1500.0, 1400.0])
+        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
+    h.run();
+    let d0 = h.state().design().clone();
+    let seg = segment(&d0);
+    let set = Drive::of(&seg).set_pull_n.unwrap_or(f64::NAN);
+    h.get_by_role_and_label(Role::RadioButton, "Pull").click();
+    h.run();
+    let Operating::Pull(p) = h.state().design().operating() else {
+        panic!("switched to a pull: {:?}", h.state().design().operating());
+    };
+    assert!((p - set).abs() <= 1e-9 * set, "{p} vs {set}");
+    let shown = h.get_by_role_and_label(Role::TextInput, "Set pull").value();
+    assert!(
+        shown.as_deref().is_some_and(|v| v.starts_with("1178")),
+        "{shown:?}"
+    );
+    let nominal = {
+        let path = seg
+            .at_bore(seg.bore_nominal_mm)
+            .unwrap_or_else(|e| panic!("{e}"));
+        actuation::operating_state(&path)
+            .stroke_mm
+            .unwrap_or(f64::NAN)
+    };
+    h.get_by_role_and_label(Role::RadioButton, "Stroke").click();
+    h.run();
+    let Operating::Stroke(s) = h.state().design().operating() else {
+        panic!("switched to a stroke");
+    };
+    assert!((s - nominal).abs() <= 1e-6 * nominal, "{s} vs {nominal}");
+    // Stroke mode keeps the file's new spelling.
+    assert!(h.state().design().operating.is_some());
+    for _ in 0..2 {
+        h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+        h.run();
+    }
+    assert_eq!(*h.state().design(), d0);
+}
