@@ -238,6 +238,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         unit: "N",
         top: top_of(&forces).max(need),
     };
+    let bench = app
+        .bench
+        .nominal_force_points(&seg.design, seg.bore_nominal_mm);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
         plot_cell(
@@ -256,7 +259,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
+            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &bench),
         );
     });
     ui.horizontal(|ui| {
@@ -689,6 +692,7 @@ fn force_plot(
     rating: &Marker,
     need: f64,
     height: f32,
+    bench: &[super::bench::Overlay],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -713,6 +717,7 @@ fn force_plot(
                     .style(LineStyle::dashed_loose()),
             );
             rating.add_to(p);
+            super::bench::overlay_ui(p, bench);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
