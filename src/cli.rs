@@ -955,7 +955,7 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     {
         writeln!(
             out,
-            "(actuator travel = stroke + pull / drive stiffness: in the CSV output, column travel_mm)"
+            "(actuator travel = stroke + pull / drive stiffness: column travel_mm of the CSV and JSON output)"
         )?;
     }
     writeln!(out, "{CAUTION}")?;
