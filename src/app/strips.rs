@@ -144,16 +144,24 @@ pub fn compute(design: &Design) -> LoadedView {
     let list = checks::run(&seg);
     let limiting = checks::limiting(&list);
     let bore = seg.bore_nominal_mm;
-    let op = design.operating_stroke_mm;
-    let point = sharing::loaded_point(&seg, bore, op, CaseChoice::default(), Judge::HighestStress)
-        .map_err(|e| e.to_string());
+    let op = sharing::checks::operating_stroke_at(&seg, bore);
+    let point = match op {
+        Some(op) => {
+            sharing::loaded_point(&seg, bore, op, CaseChoice::default(), Judge::HighestStress)
+                .map_err(|e| e.to_string())
+        }
+        None => Err("the actuator's set pull is never reached at the nominal bore".to_string()),
+    };
     let state = point.as_ref().ok().and_then(|p| {
         let case = Loading {
             clocking: p.clocking,
             major_axis: p.major_axis,
             ..sharing::loading_of(design)
         };
-        seg.loaded_at_bore(bore, &case).ok()?.state(op).ok()
+        seg.loaded_at_bore(bore, &case)
+            .ok()?
+            .state(p.stroke_mm)
+            .ok()
     });
     LoadedView {
         checks: list,

@@ -25,18 +25,25 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
     if !design_uses_sharing(&seg.design) {
         return;
     }
-    let op = seg.design.operating_stroke_mm;
     let all = CaseChoice::default();
+    let (op_small, op_large) = (
+        operating_stroke_at(seg, seg.bore_smallest_mm),
+        operating_stroke_at(seg, seg.bore_largest_mm),
+    );
     let cases = BoreCases::new(seg, seg.bore_smallest_mm, all).and_then(|small| {
         let large = BoreCases::new(seg, seg.bore_largest_mm, all)?;
         Ok((small, large))
     });
-    let loaded = match &cases {
-        Ok((small, large)) => checks_with(seg, small, large, op)
-            .map(|l| (l, small, large))
-            .map_err(|e| e.to_string()),
-        Err(e) => Err(e.to_string()),
+    let loaded = match (&cases, op_small, op_large) {
+        (Ok((small, large)), Some(op_small), Some(op_large)) => {
+            checks_with(seg, small, large, op_small, op_large)
+                .map(|l| (l, small, large))
+                .map_err(|e| e.to_string())
+        }
+        (Err(e), _, _) => Err(e.to_string()),
+        _ => Err("the actuator's set pull is never reached at the smallest or the largest bore, so there is no operating stroke to judge".to_string()),
     };
+    let unreached = op_small.is_none() || op_large.is_none();
     let replace = |checks: &mut Vec<Check>, new: Check| {
         if let Some(c) = checks.iter_mut().find(|c| c.id == new.id) {
             *c = new;
@@ -52,21 +59,27 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
                 replace(checks, c);
             }
             replace(checks, stroke(seg, &l.stress, small));
-            checks.push(top_strip(seg, &l.top_strip, hold_pass));
+            checks.push(top_strip(&l.top_strip, hold_pass));
         }
         Err(e) => {
-            // No loaded state: every check that needs one says why and fails.
-            let why = format!("load sharing could not be solved: {e}");
+            // No operating stroke (the centred checks already say why), or no loaded
+            // state: every check that needs one says why and fails.
+            let why = if unreached {
+                e
+            } else {
+                format!("load sharing could not be solved: {e}")
+            };
             for c in checks.iter_mut().filter(|c| {
-                matches!(
-                    c.id,
-                    CheckId::Reach
-                        | CheckId::Hold
-                        | CheckId::Static
-                        | CheckId::Fatigue
-                        | CheckId::Actuator
-                        | CheckId::Stroke
-                )
+                !unreached
+                    && matches!(
+                        c.id,
+                        CheckId::Reach
+                            | CheckId::Hold
+                            | CheckId::Static
+                            | CheckId::Fatigue
+                            | CheckId::Actuator
+                            | CheckId::Stroke
+                    )
             }) {
                 c.pass = false;
                 c.margin = None;
@@ -78,13 +91,23 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
                 margin: None,
                 reason: why,
                 bore_mm: Some(seg.bore_largest_mm),
-                stroke_mm: Some(op),
+                stroke_mm: op_large,
             });
         }
     }
     if let Some(b) = bend(seg) {
         checks.push(b);
     }
+}
+
+/// The operating stroke at `bore_mm`, mm: the design's stroke, or under a set pull or
+/// torque the stroke at which the centred model reaches it there (`None`: never). Under
+/// load sharing the strips' pull is summed over unequal strips; the set pull is matched on
+/// the centred curve, which the off-centre hub changes little while the strips carry the
+/// load (not modelled further here).
+pub fn operating_stroke_at(seg: &Segment, bore_mm: f64) -> Option<f64> {
+    let path = seg.at_bore(bore_mm).ok()?;
+    crate::actuation::operating_stroke_mm(&path)
 }
 
 /// The case in words: what sits on the load line and the major axis (when out of round).
@@ -312,7 +335,7 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
 /// The operating stroke at the smallest bore: within the actuator and short of the
 /// segment's limit (the first strip to reach its own), the earliest limit over the cases.
 fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check {
-    let op = seg.design.operating_stroke_mm;
+    let op = p.stroke_mm;
     let max_stroke = seg.max_stroke_mm();
     let loading = loading_of(&seg.design);
     let mut limit = p.limit_stroke_mm;
@@ -341,7 +364,7 @@ fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check 
 /// with the fewest strips touching. A segment gripping on only part of its strips is named
 /// as such and fails only when holding fails. Margin: the operating stroke minus the stroke
 /// at which the last strip touches, mm, when the top strip touches; none when it does not.
-fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
+fn top_strip(p: &LoadedPoint, hold_pass: bool) -> Check {
     let base = Check {
         id: CheckId::TopStrip,
         pass: false,
@@ -357,7 +380,7 @@ fn top_strip(seg: &Segment, p: &LoadedPoint, hold_pass: bool) -> Check {
         };
     };
     let last = p.last_strip_contact_stroke_mm;
-    let margin = last.map(|s| seg.design.operating_stroke_mm - s);
+    let margin = last.map(|s| p.stroke_mm - s);
     let last_words = match last {
         Some(s) => format!("the last strip touches at {s:.3} mm stroke"),
         None => "the last strip does not touch before the model's limit".to_string(),

@@ -343,20 +343,22 @@ pub fn checks_at(segment: &Segment, stroke_mm: f64) -> Result<SharingChecks, Sha
     let all = CaseChoice::default();
     let small = BoreCases::new(segment, segment.bore_smallest_mm, all)?;
     let large = BoreCases::new(segment, segment.bore_largest_mm, all)?;
-    checks_with(segment, &small, &large, stroke_mm)
+    checks_with(segment, &small, &large, stroke_mm, stroke_mm)
 }
 
-/// [`checks_at`] on cases already set up at the smallest and the largest bore.
+/// [`checks_at`] on cases already set up at the smallest and the largest bore, each at its
+/// own operating stroke (they differ under a set pull or torque).
 pub fn checks_with(
     segment: &Segment,
     small: &BoreCases<'_>,
     large: &BoreCases<'_>,
-    stroke_mm: f64,
+    small_stroke_mm: f64,
+    large_stroke_mm: f64,
 ) -> Result<SharingChecks, SharingError> {
     Ok(SharingChecks {
-        stress: small.point(stroke_mm, Judge::HighestStress)?,
-        holding: large.point(stroke_mm, Judge::LeastHolding)?,
-        top_strip: large.point(stroke_mm, Judge::FewestInContact)?,
+        stress: small.point(small_stroke_mm, Judge::HighestStress)?,
+        holding: large.point(large_stroke_mm, Judge::LeastHolding)?,
+        top_strip: large.point(large_stroke_mm, Judge::FewestInContact)?,
         bend: bend_passage(segment),
     })
 }

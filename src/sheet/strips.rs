@@ -23,25 +23,29 @@ pub fn strips_section(a: &Analysis, width: f32) -> Option<Section> {
     }
     let title = "Load sharing: per strip and end view";
     let bore = seg.bore_nominal_mm;
-    let op = d.operating_stroke_mm;
-    let point =
-        match sharing::loaded_point(seg, bore, op, CaseChoice::default(), Judge::HighestStress) {
-            Ok(p) => p,
-            Err(e) => {
-                let mut b = Block::new();
-                let y = b.paragraph(
-                    0.0,
-                    10.0,
-                    width,
-                    BODY,
-                    Weight::Regular,
-                    RED,
-                    &format!("Load sharing could not be solved at the nominal bore: {e}"),
-                );
-                b.height = y + 4.0;
-                return Some(section(title, width, vec![b]));
-            }
-        };
+    let loaded = sharing::checks::operating_stroke_at(seg, bore)
+        .ok_or_else(|| "the actuator's set pull is never reached at the nominal bore".to_string())
+        .and_then(|op| {
+            sharing::loaded_point(seg, bore, op, CaseChoice::default(), Judge::HighestStress)
+                .map_err(|e| e.to_string())
+        });
+    let point = match loaded {
+        Ok(p) => p,
+        Err(e) => {
+            let mut b = Block::new();
+            let y = b.paragraph(
+                0.0,
+                10.0,
+                width,
+                BODY,
+                Weight::Regular,
+                RED,
+                &format!("Load sharing could not be solved at the nominal bore: {e}"),
+            );
+            b.height = y + 4.0;
+            return Some(section(title, width, vec![b]));
+        }
+    };
     let state = seg
         .loaded_at_bore(
             bore,
@@ -52,11 +56,12 @@ pub fn strips_section(a: &Analysis, width: f32) -> Option<Section> {
             },
         )
         .ok()
-        .and_then(|l| l.state(op).ok());
+        .and_then(|l| l.state(point.stroke_mm).ok());
     let stroke = |v: Option<f64>| v.map_or_else(|| "none".to_string(), |s| format!("{s:.3} mm"));
     let mut intro = Block::new();
     let text = format!(
-        "At the nominal bore {bore:.2} mm and the operating stroke {op:.3} mm, with a radial load of {:.1} N straight down{}: {}. Hub offset y {:+.3} mm (up), z {:+.3} mm. The first strip touches at {}, the strips lift the hub off its rest at {}, the last strip touches at {}. Each strip is solved at its own gap; the relaxed rim carries what the strips do not.",
+        "At the nominal bore {bore:.2} mm and the operating stroke {:.3} mm, with a radial load of {:.1} N straight down{}: {}. Hub offset y {:+.3} mm (up), z {:+.3} mm. The first strip touches at {}, the strips lift the hub off its rest at {}, the last strip touches at {}. Each strip is solved at its own gap; the relaxed rim carries what the strips do not.",
+        point.stroke_mm,
         d.duty.radial_load_n,
         if d.bore.out_of_round_mm > 0.0 {
             format!(" and a bore {:.2} mm out of round", d.bore.out_of_round_mm)

@@ -676,7 +676,7 @@ fn design_entry_gives_the_governing_case_and_its_check_inputs() {
     assert!(!sharing::design_uses_sharing(&plain));
     let seg = Segment::new(&plain).expect("valid");
     let bore = seg.bore_largest_mm;
-    let stroke = seg.design.operating_stroke_mm;
+    let stroke = seg.design.operating().value();
     let centred = seg.at_bore(bore).expect("fits").state(stroke);
     let p = sharing::loaded_point(
         &seg,
@@ -1019,7 +1019,8 @@ fn horizontal_drain_sample_loses_its_top_strips_at_the_largest_bore() {
     assert!(find("bend").pass);
     assert!(find("reach").reason.contains("lift the hub"));
     assert_eq!(list.len(), 10);
-    let checks = sharing::checks_at(&seg, d.operating_stroke_mm).expect("solves");
+    let op = d.operating_stroke_mm.expect("the sample sets a stroke");
+    let checks = sharing::checks_at(&seg, op).expect("solves");
     let t = &checks.top_strip;
     let inputs = t.checks.as_ref().expect("within the limit");
     assert!(!inputs.top_strip_touches);
@@ -1065,7 +1066,7 @@ fn loaded_checks_read_the_worst_strip_and_the_strips_in_contact() {
     let seg = Segment::new(&d).expect("valid");
     let list = bowgrip::checks::run(&seg);
     assert!(list.iter().all(|c| c.id.as_str() != "bend"));
-    let op = d.operating_stroke_mm;
+    let op = d.operating_stroke_mm.expect("the sample sets a stroke");
     let loading = sharing::loading_of(&d);
     let mut least_hold = f64::INFINITY;
     let mut worst_static = f64::INFINITY;
