@@ -26,3 +26,4 @@ pub mod scatter;
 pub mod segment;
 pub mod sharing;
 pub mod sheet;
+pub mod ticks;

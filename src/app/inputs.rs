@@ -759,18 +759,20 @@ impl InputsPanel {
                     "Direct pull",
                     "A straight pull on the plates (cylinder, solenoid, cable).",
                     Actuator::Direct {
-                        max_force_n: pull_n,
-                        max_stroke_mm: stroke_mm,
-                    },
+                        max_force_n: 0.0,
+                        max_stroke_mm: 0.0,
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
                 (
                     "Spool",
                     "A cord wound on a spool turned by a motor.",
                     Actuator::Spool {
                         radius_mm: 5.0,
-                        max_torque_nm: pull_n * 5e-3,
-                        max_angle_deg: (stroke_mm / 5.0).to_degrees(),
-                    },
+                        max_torque_nm: 0.0,
+                        max_angle_deg: 0.0,
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
                 (
                     "Lead screw",
@@ -778,9 +780,10 @@ impl InputsPanel {
                     Actuator::LeadScrew {
                         lead_mm: 1.0,
                         efficiency: 0.3,
-                        max_torque_nm: pull_n * 1e-3 / (2.0 * std::f64::consts::PI * 0.3),
-                        max_turns: stroke_mm,
-                    },
+                        max_torque_nm: 0.0,
+                        max_turns: 0.0,
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
             ];
             for (name, tip, proto) in kinds {
@@ -903,9 +906,12 @@ impl InputsPanel {
                 out,
                 |d, v| d.operating_stroke_mm = v,
             );
+            // The operating stroke in the actuator's own position unit, both ways.
+            let act = d.actuator.clone();
+            let position = |stroke_mm: f64| act.reading(stroke_mm, 0.0).position;
             match d.actuator {
-                Actuator::Spool { radius_mm, .. } => {
-                    let hi = (l / radius_mm).to_degrees();
+                Actuator::Spool { .. } => {
+                    let hi = position(l);
                     let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
                     self.row(
                         ui,
@@ -918,13 +924,13 @@ impl InputsPanel {
                             hi,
                             &tip,
                         ),
-                        (d.operating_stroke_mm / radius_mm).to_degrees(),
+                        position(d.operating_stroke_mm),
                         out,
-                        move |d, v| d.operating_stroke_mm = v.to_radians() * radius_mm,
+                        |d, v| d.operating_stroke_mm = act.stroke_mm_at(v),
                     );
                 }
-                Actuator::LeadScrew { lead_mm, .. } => {
-                    let hi = l / lead_mm;
+                Actuator::LeadScrew { .. } => {
+                    let hi = position(l);
                     let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
                     self.row(
                         ui,
@@ -937,9 +943,9 @@ impl InputsPanel {
                             hi,
                             &tip,
                         ),
-                        d.operating_stroke_mm / lead_mm,
+                        position(d.operating_stroke_mm),
                         out,
-                        move |d, v| d.operating_stroke_mm = v * lead_mm,
+                        |d, v| d.operating_stroke_mm = act.stroke_mm_at(v),
                     );
                 }
                 Actuator::Direct { .. } => {}

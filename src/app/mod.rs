@@ -171,9 +171,6 @@ pub struct GripApp {
     last_recovery_write_s: Option<f64>,
     sent_title: String,
     applied_theme: Option<ThemeChoice>,
-    /// When the operating stroke is past the model's limit: a stroke just short of it and
-    /// the strip shape there, so the side view still shows something.
-    fallback_shape: Option<(f64, Vec<[f64; 2]>)>,
     /// Where the three plots were drawn last frame (stroke-bore, force, stress), for PNG export.
     plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
@@ -217,7 +214,6 @@ impl GripApp {
             last_recovery_write_s: None,
             sent_title: String::new(),
             applied_theme: None,
-            fallback_shape: None,
             plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
@@ -781,13 +777,6 @@ impl GripApp {
     fn reanalyse(&mut self) {
         match analysis::analyse(&self.doc.design) {
             Ok(a) => {
-                self.fallback_shape = None;
-                if a.shape_mm.is_empty()
-                    && let Ok(p) = a.segment.at_bore(a.segment.bore_nominal_mm)
-                {
-                    let s = 0.995 * p.limit_stroke_mm();
-                    self.fallback_shape = Some((s, p.shape_mm(s, 48)));
-                }
                 self.analysis = Some(a);
                 self.analysis_error = None;
             }

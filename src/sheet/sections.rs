@@ -3,8 +3,6 @@
 //! checks, the two plots, the side and end views, the model's assumptions and limits,
 //! references and safety cautions. Numbers go through `format` only.
 
-use std::f64::consts::PI;
-
 use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, wrap};
 use super::font::Weight;
 use super::format::{self as f, NONE};
@@ -14,6 +12,7 @@ use crate::analysis::{Analysis, BoreCase, BoreResult};
 use crate::checks::{self, Check};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
 use crate::elastica::Phase;
+use crate::quantities::{STATE_FIELDS, UsableStroke};
 use crate::segment::SegmentState;
 
 /// Replaced by the page count once pagination knows it.
@@ -396,8 +395,29 @@ fn summary(a: &Analysis, width: f32) -> Section {
             ),
         );
     }
+    if let Some(u) = a.usable_stroke() {
+        let usable = u.range_mm().is_some();
+        y = b.paragraph(
+            0.0,
+            y + 2.0,
+            width,
+            BODY,
+            if usable {
+                Weight::Regular
+            } else {
+                Weight::Bold
+            },
+            if usable { INK } else { RED },
+            &usable_text(&u),
+        );
+    }
     b.height = y - 4.0;
     section("Result", width, vec![b])
+}
+
+/// The usable stroke range in a sentence, with the sheet's number style.
+fn usable_text(u: &UsableStroke) -> String {
+    cap(&format!("{}.", u.describe()))
 }
 
 /// A check's margin as [`Check::margin_text`] writes it, with the sheet's true minus sign.
@@ -684,13 +704,6 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
         cells.extend(cases.iter().map(|r| get(r)));
         row(cells)
     };
-    let st = |get: fn(&SegmentState) -> String| {
-        move |r: &BoreResult| match &r.operating {
-            Ok(s) if s.phase.has_state() => get(s),
-            Ok(s) => s.phase.name().replace('-', " "),
-            Err(_) => "no state".to_string(),
-        }
-    };
     let gap = |r: &BoreResult| f::mm(seg.gap_mm(r.bore_mm));
     rows.push(per("Bore diameter", &|r| f::mm(r.bore_mm)));
     rows.push(per("Gap to the wall g (relaxed, edge contact)", &gap));
@@ -717,80 +730,50 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
     band.bold = true;
     band.shade = Some(SHADE);
     rows.push(band);
-    rows.push(per("Phase", &|r| match &r.operating {
+    let mut phase = per("Phase", &|r| match &r.operating {
         Ok(s) => s.phase.to_string(),
         Err(_) => "no state".to_string(),
-    }));
-    rows.push(per(
-        "Contact force per strip F",
-        &st(|s| f::newton_opt(s.contact_force_per_strip_n)),
-    ));
-    rows.push(per(
-        "Radial force on the wall N F",
-        &st(|s| f::newton_opt(s.radial_force_n)),
-    ));
-    rows.push(per(
-        "Holding force μ N F",
-        &st(|s| f::newton_opt(s.holding_force_n)),
-    ));
-    rows.push(per(
-        "Axial force per strip P",
-        &st(|s| f::newton_opt(s.axial_force_per_strip_n)),
-    ));
-    rows.push(per(
-        "Actuator pull N P",
-        &st(|s| f::newton_opt(s.actuator_force_n)),
-    ));
-    if !matches!(seg.design.actuator, Actuator::Direct { .. }) {
-        rows.push(per(
-            "Actuator position",
-            &st(|s| {
-                s.actuator.map_or(NONE.to_string(), |r| {
-                    f::in_unit(r.position, r.position_unit)
-                })
-            }),
-        ));
-        rows.push(per(
-            "Actuator torque",
-            &st(|s| {
-                s.actuator
-                    .map_or(NONE.to_string(), |r| f::in_unit(r.effort, r.effort_unit))
-            }),
-        ));
-    }
-    rows.push(per(
-        "Diameter over the strips",
-        &st(|s| f::mm_opt(s.outer_diameter_mm)),
-    ));
-    rows.push(per(
-        "Flat run on the wall",
-        &st(|s| f::mm_opt(s.flat_length_mm)),
-    ));
-    rows.push(per(
-        "Peak stress σ",
-        &st(|s| s.max_stress_mpa.map_or(NONE.to_string(), f::mpa)),
-    ));
-    rows.push(per(
-        "Static factor of safety",
-        &st(|s| s.static_safety_factor.map_or(NONE.to_string(), f::factor)),
-    ));
-    rows.push(per(
-        "Fatigue factor of safety (Goodman)",
-        &st(|s| s.fatigue_safety_factor.map_or(NONE.to_string(), f::factor)),
-    ));
-    rows.push(per(
-        "Stored strain energy, all strips",
-        &st(|s| {
-            s.strain_energy_j
-                .map_or(NONE.to_string(), |e| format!("{} J", f::sig(e, 3)))
-        }),
-    ));
-    for r in &mut rows {
-        r.colors = r
-            .cells
-            .iter()
-            .map(|c| (c == "no state" || c == "beyond limit").then_some(RED))
+    });
+    phase.colors = std::iter::once(None)
+        .chain(cases.iter().map(|c| c.in_model().is_none().then_some(RED)))
+        .collect();
+    rows.push(phase);
+    // A state quantity in each bore: its value, or in red why the model has none there.
+    let state_row = |name: &str, get: &dyn Fn(&SegmentState) -> String| {
+        let mut r = row(
+            std::iter::once(name.to_string()).chain(cases.iter().map(|c| match &c.operating {
+                Ok(s) if s.phase.has_state() => get(s),
+                Ok(s) => s.phase.name().replace('-', " "),
+                Err(_) => "no state".to_string(),
+            })),
+        );
+        r.colors = std::iter::once(None)
+            .chain(cases.iter().map(|c| c.in_model().is_none().then_some(RED)))
             .collect();
+        r
+    };
+    for field in &STATE_FIELDS {
+        let value = |s: &SegmentState| {
+            (field.get)(s).map_or(NONE.to_string(), |v| match field.unit {
+                "N" => f::newton(v),
+                "mm" => f::mm(v),
+                "MPa" => f::mpa(v),
+                "J" => format!("{} J", f::sig(v, 3)),
+                _ => f::factor(v),
+            })
+        };
+        rows.push(state_row(field.sheet_label, &value));
+    }
+    if !matches!(seg.design.actuator, Actuator::Direct { .. }) {
+        rows.push(state_row("Actuator position", &|s| {
+            s.actuator.map_or(NONE.to_string(), |r| {
+                f::in_unit(r.position, r.position_unit)
+            })
+        }));
+        rows.push(state_row("Actuator torque", &|s| {
+            s.actuator
+                .map_or(NONE.to_string(), |r| f::in_unit(r.effort, r.effort_unit))
+        }));
     }
     let lw = 0.37 * width;
     let vw = (width - lw) / 3.0;
@@ -811,14 +794,11 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
     for r in &cases {
         match &r.operating {
             Ok(s) => {
-                let why = match seg.at_bore(r.bore_mm) {
-                    Ok(p) => p.limit_reason().describe().to_string(),
-                    Err(_) => s.limit_reason.to_string(),
-                };
                 notes.push(format!(
-                    "{} bore: the model stops at {} because the {why}.",
+                    "{} bore: the model stops at {} because the {}.",
                     cap(r.case.label()),
-                    f::mm(s.limit_stroke_mm)
+                    f::mm(s.limit_stroke_mm),
+                    s.limit_reason.describe()
                 ));
             }
             Err(e) => notes.push(format!("{} bore: no state. {e}.", cap(r.case.label()))),
@@ -1083,7 +1063,10 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
         SMALL,
         Weight::Regular,
         GREY,
-        "A workable stroke lies above the holding curve and below the stress limit, the model limit and the actuator maximum, across the whole shaded tolerance band. Curves end where the quantity does not exist (bore out of reach or relaxed strips do not fit). Lines above the frame are clipped.",
+        &format!(
+            "A workable stroke lies above the holding curve and below the stress limit, the model limit and the actuator maximum, across the whole shaded tolerance band. {} Curves end where the quantity does not exist (bore out of reach or relaxed strips do not fit). Lines above the frame are clipped.",
+            a.usable_stroke().map_or_else(String::new, |u| usable_text(&u))
+        ),
     );
     b.height = y - 6.0;
     section("Stroke against bore", width, vec![b])
@@ -1377,17 +1360,13 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             x += 6.0;
         }
     }
-    let shape = &a.shape_mm;
-    let plate_r = 0.5 * d.end_plate_diameter_mm as f32;
+    let drawn = a.side_shape();
+    let plate_r = seg.drawn_plate_radius_mm() as f32;
     // Without a state the strips are drawn relaxed (straight at the mount radius, plates
     // at the free length), so the reader still sees the interference.
     let rm = d.mount_radius_mm as f32;
-    let relaxed = [[0.0, f64::from(rm)], [f64::from(l), f64::from(rm)]];
-    let (shape, strip_color): (&[[f64; 2]], Rgb) = if shape.is_empty() {
-        (&relaxed, GREY)
-    } else {
-        (shape.as_slice(), BLUE)
-    };
+    let shape = drawn.points();
+    let strip_color = if drawn.is_operating() { BLUE } else { GREY };
     {
         let chord = shape.last().map_or(chord, |p| p[0] as f32);
         for xp in [-plate_t, chord] {
@@ -1423,7 +1402,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
                 .filter(|p| p[1] >= rmax - 1e-6 * s.free_length_mm)
                 .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
                 .collect();
-            if flat.len() >= 2 && !a.shape_mm.is_empty() {
+            if flat.len() >= 2 && drawn.is_operating() {
                 b.polyline(flat, tw + 1.6, RED, None);
             }
         }
@@ -1449,7 +1428,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             f::mm(l as f64)
         ),
     );
-    if a.shape_mm.is_empty() {
+    if !drawn.is_operating() {
         ny = b.paragraph(
             0.0,
             ny,
@@ -1479,14 +1458,13 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         format!("End view, scale {end_scale_label}"),
     );
     b.polyline(circle(ex, cy, big_r * end_scale_pt), 1.0, INK, None);
-    if plate_r > 0.0 {
-        b.polyline(
-            circle(ex, cy, plate_r * end_scale_pt),
-            0.5,
-            GREY,
-            Some(vec![3.0, 2.0]),
-        );
-    }
+    let end = a.end_view();
+    b.polyline(
+        circle(ex, cy, end.plate_radius_mm as f32 * end_scale_pt),
+        0.5,
+        GREY,
+        Some(vec![3.0, 2.0]),
+    );
     b.line(
         [ex - (big_r + 3.0) * end_scale_pt, cy],
         [ex + (big_r + 3.0) * end_scale_pt, cy],
@@ -1499,31 +1477,22 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         0.4,
         GREY,
     );
-    let n = s.count as usize;
-    let half_b = 0.5 * s.width_mm as f32;
+    let n = s.count;
     let t = s.thickness_mm as f32;
-    let crest = st.and_then(|s| s.crest_height_mm).unwrap_or(0.0) as f32;
-    for i in 0..n {
-        let th = 2.0 * PI as f32 * i as f32 / n as f32 - 0.5 * PI as f32;
-        let (sn, cs) = th.sin_cos();
-        let at_crest = st.and_then(|s| s.crest_height_mm).is_some();
-        let rings = [
-            (d.mount_radius_mm as f32, (90, 90, 90), 0.8f32),
-            (d.mount_radius_mm as f32 + crest, BLUE, 1.6),
-        ];
-        for &(rc, color, w) in &rings[..if at_crest { 2 } else { 1 }] {
-            let corner = |u: f32, v: f32| {
-                [
-                    ex + (rc + v) * end_scale_pt * cs - u * end_scale_pt * sn,
-                    cy + (rc + v) * end_scale_pt * sn + u * end_scale_pt * cs,
-                ]
-            };
-            let pts = vec![
-                corner(-half_b, -0.5 * t),
-                corner(half_b, -0.5 * t),
-                corner(half_b, 0.5 * t),
-                corner(-half_b, 0.5 * t),
-            ];
+    let crest = end.at_crest.as_ref().map(|c| (c.0, &c.1));
+    let rings = std::iter::once((&end.at_plates, (90, 90, 90), 0.8f32))
+        .chain(crest.map(|(_, quads)| (quads, BLUE, 1.6)));
+    for (quads, color, w) in rings {
+        for q in quads {
+            let pts = q
+                .iter()
+                .map(|p| {
+                    [
+                        ex + p[0] as f32 * end_scale_pt,
+                        cy - p[1] as f32 * end_scale_pt,
+                    ]
+                })
+                .collect();
             b.marks.push(super::draw::Mark::Line {
                 points: pts,
                 width: w.max(t * end_scale_pt),
@@ -1541,18 +1510,22 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
             f::mm(s.thickness_mm),
             f::mm(d.mount_radius_mm)
         ),
-        if st.is_some_and(|s| s.crest_height_mm.is_some()) {
-            format!(
-                "Grey: at the plates; blue: at the crest (+{}).",
-                f::mm(crest as f64)
-            )
+        if let Some((h, _)) = crest {
+            format!("Grey: at the plates; blue: at the crest (+{}).", f::mm(h))
         } else {
             "Strips drawn at the plates only: no state at the operating stroke.".to_string()
         },
-        format!(
-            "Dashed circle: end plate {}.",
-            f::mm(d.end_plate_diameter_mm)
-        ),
+        if d.end_plate_diameter_mm > 0.0 {
+            format!(
+                "Dashed circle: end plate {}.",
+                f::mm(d.end_plate_diameter_mm)
+            )
+        } else {
+            format!(
+                "Dashed circle: no plate size given, drawn at the mount radius {}.",
+                f::mm(d.mount_radius_mm)
+            )
+        },
     ] {
         ey = b.paragraph(
             side_box + 12.0,
