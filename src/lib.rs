@@ -17,6 +17,7 @@ pub mod compare;
 pub mod design;
 pub mod elastica;
 pub mod elliptic;
+pub mod fit;
 pub mod friction;
 pub mod map;
 pub mod material;

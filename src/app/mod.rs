@@ -10,7 +10,6 @@
 
 mod dialogs;
 pub mod export;
-pub mod fit;
 mod help;
 mod inputs;
 mod outputs;
