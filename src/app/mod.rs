@@ -321,6 +321,12 @@ impl GripApp {
     }
 
     /// The state directory.
+    /// Where the three plots were drawn in the last frame (stroke against bore, forces,
+    /// stress), points; `None` before the first frame.
+    pub fn plot_rects(&self) -> [Option<egui::Rect>; 3] {
+        self.plot_rects
+    }
+
     pub fn state_dir(&self) -> &Path {
         &self.state_dir
     }

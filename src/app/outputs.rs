@@ -267,8 +267,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
-            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
-            None,
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
+            Some("dip after first contact: physical, see heading".to_string()),
             |ui| stress_plot(ui, a, plot_h),
         );
         ui.vertical(|ui| {
@@ -280,7 +280,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             } else {
                 format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke")
             };
-            ui.strong(heading).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
+            ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
             let h = plot_h;
             let w = ui.available_width();
             // A long strip reads better with the end view below it, a short one beside it.
@@ -315,7 +315,11 @@ fn plot_cell(
     ui.vertical(|ui| {
         ui.set_width(width);
         ui.horizontal(|ui| {
-            ui.strong(title).on_hover_text(tip);
+            // The heading never widens the cell: on a narrow window it is shortened, and
+            // the whole of it is in the tooltip.
+            ui.set_max_width(width);
+            ui.add(egui::Label::new(RichText::new(title).strong()).truncate())
+                .on_hover_text(format!("{title}\n\n{tip}"));
             if let Some(note) = note {
                 ui.with_layout(egui::Layout::right_to_left(egui::Align::Min), |ui| {
                     ui.add(egui::Label::new(RichText::new(&note).small().color(C_ACT)).truncate())
