@@ -505,7 +505,7 @@ mod tests {
     #[test]
     fn usable_range_is_where_the_band_checks_pass() {
         // Inside the range the holding, stress and stroke checks pass at once; just
-        // outside one of them fails (the range is their intersection, as the contract
+        // outside one of them fails (the range is their intersection, as docs/contract.md
         // judges each check at its own bore).
         use crate::checks::{self, CheckId};
         let d = Design::default();

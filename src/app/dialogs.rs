@@ -125,7 +125,7 @@ impl Dialogs {
 }
 
 /// The menu bar.
-pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
+pub fn menu_bar_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::Panel::top("menu").show(ui, |ui| {
         egui::MenuBar::new().ui(ui, |ui| {
             ui.menu_button("File", |ui| {
@@ -191,8 +191,7 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
             ui.menu_button("View", |ui| {
                 for t in ThemeChoice::ALL {
                     if ui.radio(app.session.theme == t, t.label()).clicked() {
-                        app.session.theme = t;
-                        app.store_session();
+                        app.push(Command::SetTheme(t));
                     }
                 }
             });
@@ -213,7 +212,7 @@ fn default_beside(path: Option<&Path>, ext: &str) -> String {
 }
 
 /// The status line.
-pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
+pub fn status_bar_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::Panel::bottom("status").show(ui, |ui| {
         ui.horizontal(|ui| {
             if app.doc.dirty {
@@ -224,7 +223,7 @@ pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
             if let Some(s) = app.shown_status() {
                 let text = RichText::new(&s.text);
                 ui.label(if s.is_error {
-                    text.color(error_color(ui))
+                    text.color(error_color(ui.visuals()))
                 } else {
                     text
                 });
@@ -255,7 +254,7 @@ pub fn windows(app: &mut GripApp, ctx: &Context) {
         .ok()
         .and_then(|mut done| done.take());
     if let Some(status) = png {
-        app.status = Some(status);
+        app.push(Command::Report(status));
     }
     file_window(app, ctx);
     guard_window(app, ctx);
@@ -365,14 +364,14 @@ fn guard_window(app: &mut GripApp, ctx: &Context) {
                     app.push(Command::SaveThen(path, pending.clone()));
                 }
             } else if ui.button("Save as…").clicked() {
-                app.guard = None;
+                app.push(Command::CancelPrompt);
                 app.dialogs.open_save_as(None);
             }
             if ui.button("Discard changes").clicked() {
                 app.push(Command::Discard(pending.clone()));
             }
             if ui.button("Cancel").clicked() {
-                app.guard = None;
+                app.push(Command::CancelPrompt);
             }
         });
     });
@@ -433,7 +432,7 @@ fn rewrite_window(app: &mut GripApp, ctx: &Context) {
                 app.push(Command::SaveRewriting(path.clone(), then.clone()));
             }
             if ui.button("Cancel").clicked() {
-                app.rewrite_prompt = None;
+                app.push(Command::CancelPrompt);
             }
         });
     });
@@ -509,7 +508,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
         }
     };
     if let Err(e) = &parsed {
-        ui.label(RichText::new(e).color(error_color(ui)));
+        ui.label(RichText::new(e).color(error_color(ui.visuals())));
     }
     ui.horizontal(|ui| {
         if busy {
@@ -559,7 +558,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                     RichText::new(
                         "No multiple of the step passes every check; the value is unrounded.",
                     )
-                    .color(error_color(ui)),
+                    .color(error_color(ui.visuals())),
                 );
             }
             ui.label(RichText::new("Margins at this value:").strong());
@@ -579,7 +578,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                     RichText::new(
                         "The design has changed since this search: solve again to apply.",
                     )
-                    .color(error_color(ui)),
+                    .color(error_color(ui.visuals())),
                 );
             }
             let design = design.clone();
@@ -593,7 +592,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         }
         FitOutcome::Blocked(why) => {
-            ui.label(RichText::new(why).color(error_color(ui)));
+            ui.label(RichText::new(why).color(error_color(ui.visuals())));
         }
     }
 }
@@ -683,6 +682,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     });
                 }
             }
+            // The jobs borrow the analysis; the report below goes through the app.
+            drop(jobs);
             if !report.is_empty() {
                 let failed = report.iter().any(|r| r.1);
                 let text = report
@@ -690,10 +691,10 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     .map(|r| r.0)
                     .collect::<Vec<_>>()
                     .join(" ");
-                app.status = Some(super::Status {
+                app.push(Command::Report(super::Status {
                     text,
                     is_error: failed,
-                });
+                }));
             }
             if ui
                 .button("Plots as PNG (as on screen)")
@@ -775,7 +776,7 @@ fn print_window(app: &mut GripApp, ctx: &Context) {
             ui.label("Paper");
             for (p, name) in [(PaperChoice::A4, "A4"), (PaperChoice::Letter, "Letter")] {
                 if ui.radio(app.session.paper == p, name).clicked() {
-                    app.session.paper = p;
+                    app.push(Command::SetPaper(p));
                 }
             }
         });

@@ -209,13 +209,16 @@ fn error_line_ui(ui: &mut Ui, left: f32, text: &str) {
     let galley = ui.painter().layout(
         text.to_string(),
         font,
-        error_color(ui),
+        error_color(ui.visuals()),
         (right - left).max(120.0),
     );
     let (rect, resp) =
         ui.allocate_exact_size(egui::vec2(0.0, galley.size().y), egui::Sense::hover());
-    ui.painter()
-        .galley(egui::pos2(left, rect.top()), galley, error_color(ui));
+    ui.painter().galley(
+        egui::pos2(left, rect.top()),
+        galley,
+        error_color(ui.visuals()),
+    );
     // The accessibility tree and tests read the message as a label.
     resp.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Label, true, text));
 }
@@ -243,13 +246,13 @@ impl InputsPanel {
             .show(ui, |ui| {
                 ui.heading("Design");
                 self.title_ui(ui, d, &mut out);
-                section(ui, "Strips", |ui| self.strip_ui(ui, d, analysis, &mut out));
-                section(ui, "Hub and bore", |ui| self.bore_ui(ui, d, &mut out));
-                section(ui, "Actuator", |ui| {
+                section_ui(ui, "Strips", |ui| self.strip_ui(ui, d, analysis, &mut out));
+                section_ui(ui, "Hub and bore", |ui| self.bore_ui(ui, d, &mut out));
+                section_ui(ui, "Actuator", |ui| {
                     self.actuator_ui(ui, d, analysis, &mut out)
                 });
-                section(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
-                section(ui, "Operating point", |ui| self.stroke_ui(ui, d, &mut out));
+                section_ui(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
+                section_ui(ui, "Operating point", |ui| self.stroke_ui(ui, d, &mut out));
             });
         out
     }
@@ -275,7 +278,7 @@ impl InputsPanel {
 
     /// One numeric row in a 4-column grid: label, slider, typed field, unit; an error
     /// line under it when the last entry was refused.
-    fn row(
+    fn row_ui(
         &mut self,
         ui: &mut Ui,
         d: &Design,
@@ -388,13 +391,19 @@ impl InputsPanel {
     }
 
     /// Rows of plain numbers: each row whose field the design has, in order.
-    fn rows(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>, rows: &[(Row<'_>, Field)]) {
+    fn rows_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        out: &mut Vec<Command>,
+        rows: &[(Row<'_>, Field)],
+    ) {
         let mut probe = d.clone();
         for &(row, field) in rows {
             let Some(value) = field(&mut probe).map(|v| *v) else {
                 continue;
             };
-            self.row(ui, d, row, value, out, move |d, v| {
+            self.row_ui(ui, d, row, value, out, move |d, v| {
                 if let Some(f) = field(d) {
                     *f = v;
                 }
@@ -471,8 +480,8 @@ impl InputsPanel {
         out: &mut Vec<Command>,
     ) {
         let s = &d.strip;
-        grid(ui, "strip", |ui| {
-            self.row(
+        grid_ui(ui, "strip", |ui| {
+            self.row_ui(
                 ui,
                 d,
                 Row::new(
@@ -494,7 +503,7 @@ impl InputsPanel {
                 (Row::new("strip.width_mm", "Width", "mm", 0.2, 200.0, "Strip width, tangential to the hub.").log(), |d| Some(&mut d.strip.width_mm)),
                 (Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 5.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), |d| Some(&mut d.strip.thickness_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
         // Material.
         ui.horizontal(|ui| {
@@ -601,9 +610,9 @@ impl InputsPanel {
                     }
                 });
                 if let Some(e) = self.errors.get("strip.material.name") {
-                    ui.label(RichText::new(e).color(error_color(ui)).small());
+                    ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
                 }
-                grid(ui, "custom-material", |ui| {
+                grid_ui(ui, "custom-material", |ui| {
                     #[rustfmt::skip]
                     let rows: &[(Row<'_>, Field)] = &[
                         (Row::new("strip.material.youngs_modulus_gpa", "Young's modulus", "GPa", 10.0, 500.0, "Elastic modulus of the strip material."), |d| custom_numbers(d).map(|m| m.0)),
@@ -612,7 +621,7 @@ impl InputsPanel {
                         (Row::new("strip.material.yield_strength_mpa", "Yield strength", "MPa", 1.0, 5000.0, "Yield strength; must not exceed the tensile strength.").log(), |d| custom_numbers(d).map(|m| m.3)),
                         (Row::new("strip.material.endurance_limit_mpa", "Endurance strength", "MPa", 1.0, 5000.0, "Fully reversed endurance strength at 10^6 cycles and beyond.").log(), |d| custom_numbers(d).map(|m| m.4)),
                     ];
-                    self.rows(ui, d, out, rows);
+                    self.rows_ui(ui, d, out, rows);
                 });
             }
         }
@@ -674,13 +683,13 @@ impl InputsPanel {
     }
 
     fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
-        grid(ui, "hub", |ui| {
+        grid_ui(ui, "hub", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("mount_radius_mm", "Mount radius", "mm", 0.5, 1000.0, "Radius of the strip centreline at the end plates.").log(), |d| Some(&mut d.mount_radius_mm)),
                 (Row::new("end_plate_diameter_mm", "End-plate diameter", "mm", 0.0, 2000.0, "Outside diameter of the end plates; 0 when they are smaller than the strip ring.").log(), |d| Some(&mut d.end_plate_diameter_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
         let as_pipe = d.bore.pipe.is_some();
         ui.horizontal(|ui| {
@@ -776,19 +785,19 @@ impl InputsPanel {
                 .on_hover_text(&row.source);
             }
             if let Some(e) = self.errors.get("bore.pipe") {
-                ui.label(RichText::new(e).color(error_color(ui)).small());
+                ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
             }
         }
         let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
         let tol_hi = (0.25 * nominal).min(10.0);
-        grid(ui, "bore", |ui| {
+        grid_ui(ui, "bore", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("bore.diameter_mm", "Bore diameter", "mm", 2.0, 2000.0, "Nominal inside diameter the segment grips.").log(), |d| d.bore.pipe.is_none().then_some(&mut d.bore.diameter_mm)),
                 (Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.minus_mm)),
                 (Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.plus_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
     }
 
@@ -872,9 +881,9 @@ impl InputsPanel {
             (Row::new("actuator.max_torque_nm", "Max torque", "N m", 1e-3, 100.0, "Largest torque at the screw.").log(), |d| lead_screw(d).map(|a| a.2)),
             (Row::new("actuator.max_turns", "Max turns", "turns", 0.1, 200.0, "Largest number of screw turns.").log(), |d| lead_screw(d).map(|a| a.3)),
         ];
-        grid(ui, "actuator", |ui| self.rows(ui, d, out, rows));
+        grid_ui(ui, "actuator", |ui| self.rows_ui(ui, d, out, rows));
         if let Some(e) = self.errors.get("actuator") {
-            ui.label(RichText::new(e).color(error_color(ui)).small());
+            ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
         }
         ui.label(
             RichText::new(format!(
@@ -885,15 +894,15 @@ impl InputsPanel {
     }
 
     fn duty_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
-        grid(ui, "duty", |ui| {
+        grid_ui(ui, "duty", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("duty.holding_force_n", "Load to hold", "N", 0.0, 1e5, "Axial force the segment must hold in the bore.").log(), |d| Some(&mut d.duty.holding_force_n)),
                 (Row::new("duty.safety_factor", "Safety factor", "", 1.0, 10.0, "Factor on the load to hold; the holding check asks for load x factor."), |d| Some(&mut d.duty.safety_factor)),
                 (Row::new("friction", "Wall friction", "", 0.01, 1.5, "Static friction coefficient, strip on wall. Measure it when you can."), |d| Some(&mut d.friction)),
             ];
-            self.rows(ui, d, out, rows);
-            self.row(
+            self.rows_ui(ui, d, out, rows);
+            self.row_ui(
                 ui,
                 d,
                 Row::new(
@@ -954,8 +963,8 @@ impl InputsPanel {
 
     fn stroke_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
         let l = d.strip.free_length_mm;
-        grid(ui, "stroke", |ui| {
-            self.row(
+        grid_ui(ui, "stroke", |ui| {
+            self.row_ui(
                 ui,
                 d,
                 Row::new(
@@ -977,7 +986,7 @@ impl InputsPanel {
                 Actuator::Spool { .. } => {
                     let hi = position(l);
                     let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
-                    self.row(
+                    self.row_ui(
                         ui,
                         d,
                         Row::new(
@@ -996,7 +1005,7 @@ impl InputsPanel {
                 Actuator::LeadScrew { .. } => {
                     let hi = position(l);
                     let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
-                    self.row(
+                    self.row_ui(
                         ui,
                         d,
                         Row::new(
@@ -1027,13 +1036,13 @@ fn at_actuator_tip(what: &str, hi: f64, unit: &str) -> String {
     )
 }
 
-fn section(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
+fn section_ui(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
     egui::CollapsingHeader::new(RichText::new(title).strong())
         .default_open(true)
         .show(ui, body);
 }
 
-fn grid(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
+fn grid_ui(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
     egui::Grid::new(id)
         .num_columns(4)
         .spacing([6.0, 4.0])
@@ -1041,8 +1050,8 @@ fn grid(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
 }
 
 /// Red that reads on both themes.
-pub fn error_color(ui: &Ui) -> Color32 {
-    if ui.visuals().dark_mode {
+pub fn error_color(visuals: &egui::Visuals) -> Color32 {
+    if visuals.dark_mode {
         Color32::from_rgb(255, 120, 110)
     } else {
         Color32::from_rgb(180, 20, 20)

@@ -68,6 +68,16 @@ pub enum Command {
     /// Save to this path writing the whole design (the file's comments and layout go),
     /// after the user agreed to that; then carry out the held-back action, if any.
     SaveRewriting(PathBuf, Option<Pending>),
+    /// Open the safety cautions window.
+    ShowCautions,
+    /// Use this colour theme (kept in the session).
+    SetTheme(ThemeChoice),
+    /// Print sheets on this paper (kept in the session).
+    SetPaper(state::PaperChoice),
+    /// Show this on the status line.
+    Report(Status),
+    /// Close the unsaved-changes or the rewrite prompt without acting.
+    CancelPrompt,
 }
 
 /// An action held back by the unsaved-changes prompt.
@@ -356,8 +366,8 @@ impl GripApp {
         }
         self.shortcuts(&ctx);
         self.close_guard(&ctx);
-        dialogs::menu_bar(self, ui);
-        dialogs::status_bar(self, ui);
+        dialogs::menu_bar_ui(self, ui);
+        dialogs::status_bar_ui(self, ui);
         egui::Panel::left("inputs")
             .resizable(true)
             .default_size(390.0)
@@ -509,6 +519,28 @@ impl GripApp {
                 if let Some(orphan) = self.recovery_offer.take() {
                     orphan.remove();
                 }
+                false
+            }
+            Command::ShowCautions => {
+                self.dialogs.show_cautions = true;
+                false
+            }
+            Command::SetTheme(theme) => {
+                self.session.theme = theme;
+                self.store_session();
+                false
+            }
+            Command::SetPaper(paper) => {
+                self.session.paper = paper;
+                false
+            }
+            Command::Report(status) => {
+                self.status = Some(status);
+                false
+            }
+            Command::CancelPrompt => {
+                self.guard = None;
+                self.rewrite_prompt = None;
                 false
             }
             Command::RecoveryLater => {

@@ -9,11 +9,10 @@ use egui_plot::{
     AxisHints, FilledArea, HLine, Legend, Line, LineStyle, Plot, PlotPoints, Span, VLine,
 };
 
-use super::GripApp;
 use super::export::SvgSeries;
 use super::inputs::error_color;
-use crate::analysis::SideShape;
-use crate::analysis::{Analysis, BoreCase};
+use super::{Command, GripApp};
+use crate::analysis::{Analysis, BoreCase, SideShape};
 use crate::quantities::STATE_FIELDS;
 use crate::segment::SegmentState;
 use crate::ticks;
@@ -127,14 +126,14 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
 pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
         if let Some(err) = &app.analysis_error {
-            ui.label(RichText::new(format!("The design as edited cannot be analysed: {err}. Showing the last valid design.")).color(error_color(ui)));
+            ui.label(RichText::new(format!("The design as edited cannot be analysed: {err}. Showing the last valid design.")).color(error_color(ui.visuals())));
         }
         let Some(a) = &app.analysis else {
             ui.label("No analysis yet.");
             return;
         };
         let failed = a.checks.iter().filter(|c| !c.pass).count();
-        let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
+        let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui.visuals())) };
         ui.heading(RichText::new(text).color(color));
         ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
@@ -144,7 +143,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         for (i, c) in a.checks.iter().enumerate() {
             let limiting = a.limiting == Some(i);
             let mark = if c.pass { "[ok]" } else { "[FAIL]" };
-            let col = if c.pass { C_HOLD } else { error_color(ui) };
+            let col = if c.pass { C_HOLD } else { error_color(ui.visuals()) };
             let frame = if limiting {
                 egui::Frame::group(ui.style()).stroke(Stroke::new(2.0, C_ACT))
             } else {
@@ -166,18 +165,18 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.separator();
             let mut text = u.describe();
             text[..1].make_ascii_uppercase();
-            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui) };
+            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui.visuals()) };
             ui.label(RichText::new(text).color(col)).on_hover_text(
                 "The strokes at which every bore of the tolerance band works: the segment holds the required load at the largest bore and stays within the stress limit, the model's limit and the actuator's travel at the smallest. The green fill of the stroke-against-bore plot shows the window bore by bore.",
             );
         }
         if !a.cautions.is_empty() {
             ui.separator();
-            ui.label(RichText::new("Geometry caution").color(error_color(ui)).strong()).on_hover_text(
+            ui.label(RichText::new("Geometry caution").color(error_color(ui.visuals())).strong()).on_hover_text(
                 "Not one of the checks: the model lets a strip pass through the end plates and through itself, so states past this point are not physical. Shorten the operating stroke or narrow the gap to the wall.",
             );
             for c in &a.cautions {
-                ui.label(RichText::new(c).color(error_color(ui)).small());
+                ui.label(RichText::new(c).color(error_color(ui.visuals())).small());
             }
         }
         ui.separator();
@@ -186,13 +185,13 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             match &b.operating {
                 Ok(s) => state_table_ui(ui, s),
                 Err(e) => {
-                    ui.label(RichText::new(e).color(error_color(ui)));
+                    ui.label(RichText::new(e).color(error_color(ui.visuals())));
                 }
             }
         }
         ui.separator();
         if ui.button("Safety cautions").on_hover_text("Hazards of building and using bowed-strip segments.").clicked() {
-            app.dialogs.show_cautions = true;
+            app.push(Command::ShowCautions);
         }
     });
 }
@@ -242,34 +241,34 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     };
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             window_rect,
             "Stroke against bore",
             "For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.",
             travel.note(),
-            |ui| window_plot(ui, a, &window, &travel, plot_h),
+            |ui| window_plot_ui(ui, a, &window, &travel, plot_h),
         );
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             force_rect,
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
+            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h),
         );
     });
     ui.horizontal(|ui| {
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
             Some("dip after first contact: physical, see heading".to_string()),
-            |ui| stress_plot(ui, a, plot_h),
+            |ui| stress_plot_ui(ui, a, plot_h),
         );
         ui.vertical(|ui| {
             ui.set_width(cell.x);
@@ -303,7 +302,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
 /// One plot cell: the heading (its explanation on hover) with, right-aligned, a note
 /// naming what lies above the plotted range, then the plot. Records the cell's rectangle
 /// (heading, axes and plot), which the PNG export cuts out.
-fn plot_cell(
+fn plot_cell_ui(
     ui: &mut Ui,
     width: f32,
     rect: &mut Option<egui::Rect>,
@@ -387,7 +386,7 @@ const BAND_LABEL_PAD: f32 = 4.0;
 
 /// Writes each band's name at the top of the band, right-aligned, where it fits between
 /// the band's edges and stays clear of the legend in the top-left corner.
-fn band_labels(ui: &Ui, t: &egui_plot::PlotTransform, bands: &[Band], legend: &[&str]) {
+fn band_labels_ui(ui: &Ui, t: &egui_plot::PlotTransform, bands: &[Band], legend: &[&str]) {
     let frame = *t.frame();
     let painter = ui.painter().with_clip_rect(frame);
     let font = egui::TextStyle::Small.resolve(ui.style());
@@ -524,14 +523,14 @@ fn stroke_hover(
 }
 
 /// Colour of the operating-stroke marker: the text colour, so it reads on both themes.
-fn marker(ui: &Ui) -> Color32 {
-    ui.visuals().text_color()
+fn marker(visuals: &egui::Visuals) -> Color32 {
+    visuals.text_color()
 }
 
-fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, height: f32) {
+fn window_plot_ui(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, height: f32) {
     let seg = &a.segment;
     let usable = a.usable_window_mm();
-    let mark = marker(ui);
+    let mark = marker(ui.visuals());
     let tolerance = (seg.bore_smallest_mm, seg.bore_largest_mm);
     let bands = [Band {
         name: "bore tolerance",
@@ -586,7 +585,7 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
         "operating stroke",
         "nominal bore",
     ]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
 /// Highest value over the curves.
@@ -651,12 +650,12 @@ fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
                 "No curve: the relaxed segment does not fit the nominal bore, {:.2} mm, so the model has no state there.",
                 a.segment.bore_nominal_mm
             ))
-            .color(error_color(ui)),
+            .color(error_color(ui.visuals())),
         );
     });
 }
 
-fn force_plot(
+fn force_plot_ui(
     ui: &mut Ui,
     a: &Analysis,
     curves: &[Curve],
@@ -669,7 +668,7 @@ fn force_plot(
         return;
     }
     let curve = &a.curve;
-    let mark = marker(ui);
+    let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("force-plot", "stroke, mm", "force, N", height)
         .label_formatter(move |hover| {
@@ -690,10 +689,10 @@ fn force_plot(
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
-fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
+fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
         return;
@@ -701,7 +700,7 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
     let seg = &a.segment;
     let curves = stress_curves(a);
     let curve = &a.curve;
-    let mark = marker(ui);
+    let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("stress-plot", "stroke, mm", "stress, MPa", height)
         .label_formatter(move |hover| {
@@ -727,7 +726,7 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
 /// Maps model coordinates (mm) to the screen with one scale for both axes.

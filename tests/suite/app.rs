@@ -529,8 +529,8 @@ fn a_save_report_goes_with_the_next_edit() {
     );
 }
 
-/// Issue 10, item 5, and issue 16, item 3: the fitting helper runs off the UI thread (the
-/// window keeps drawing frames while it searches), lands on a rounded value in the middle
+/// The fitting helper runs off the UI thread (the window keeps drawing frames while it
+/// searches), lands on a rounded value in the middle
 /// of the passing range with its margins shown, and applies it as one undoable edit.
 #[test]
 fn the_fit_helper_searches_off_the_ui_thread_and_applies_one_edit() {
@@ -585,7 +585,7 @@ fn the_fit_helper_searches_off_the_ui_thread_and_applies_one_edit() {
     assert_eq!(*h.state().design(), before);
 }
 
-/// Issue 16, item 3: the verdict panel gives the usable stroke range as numbers.
+/// The verdict panel gives the usable stroke range as numbers.
 #[test]
 fn the_verdict_panel_gives_the_usable_stroke_range() {
     let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));

@@ -680,7 +680,7 @@ fn check_prints_geometry_cautions_for_strips_that_leave_the_plates() {
     assert!(!cautions.is_empty(), "{v}");
 }
 
-/// Issue 16, item 3: `check` gives the usable stroke range across the bore tolerance as
+/// `check` gives the usable stroke range across the bore tolerance as
 /// numbers (text and an added JSON key), and says plainly when there is none. The range's
 /// ends are the solver's inverse queries at the band's ends, checked against the forward
 /// solution in `inverse_queries`; here the command line must print what the library gives

@@ -488,7 +488,7 @@ fn material_values_say_their_basis_in_plain_words() {
     );
 }
 
-/// Issue 16, item 3: the sheet gives the usable stroke range as numbers, with what bounds
+/// The sheet gives the usable stroke range as numbers, with what bounds
 /// each end, and says plainly where there is none. The numbers are the solver's inverse
 /// queries at the two ends of the tolerance band (holding at the largest bore; the stress
 /// limit, the model's limit or the actuator's travel at the smallest), each of which
