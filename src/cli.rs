@@ -226,6 +226,13 @@ pub struct SheetArgs {
     /// Paper size.
     #[arg(long, value_enum, default_value_t = PaperArg::A4)]
     pub paper: PaperArg,
+    /// Bench measurements (CSV): adds a page with them over the model and the residuals.
+    #[arg(long, value_name = "DATA.csv")]
+    pub measured: Option<PathBuf>,
+    /// With `--measured`: factors to fit and print, comma-separated: any of modulus,
+    /// offset, length, friction.
+    #[arg(long, value_name = "FACTORS", value_parser = crate::compare::fit_list, requires = "measured")]
+    pub fit: Option<crate::compare::FitList>,
 }
 
 /// Paper sizes as spelled on the command line.
@@ -1054,7 +1061,15 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
         );
     }
     let label = a.file.display().to_string();
-    let pdf = sheet::render(&design, &label, &bytes, a.paper.into())
+    let measured = match &a.measured {
+        Some(path) => Some(sheet::Measured {
+            label: path.display().to_string(),
+            data: crate::bench_data::load(path).map_err(|e| anyhow!(e.in_file(path)))?,
+            fit: a.fit.as_ref().map(|f| f.0.clone()).unwrap_or_default(),
+        }),
+        None => None,
+    };
+    let pdf = sheet::render_measured(&design, &label, &bytes, a.paper.into(), measured.as_ref())
         .with_context(|| format!("cannot make the sheet for {label}"))?;
     crate::atomic::write(&a.output, &pdf)?;
     let _ = writeln!(io::stderr(), "sheet written to {}", a.output.display());

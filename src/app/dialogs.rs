@@ -141,6 +141,7 @@ pub fn menu_bar_ui(app: &mut GripApp, ui: &mut Ui) {
                 if ui.button("Save as…        Ctrl+Shift+S").clicked() {
                     app.dialogs.open_save_as(app.doc.path.as_deref());
                 }
+                super::bench::file_menu_ui(app, ui);
                 ui.menu_button("Recent files", |ui| {
                     if app.session.recent.is_empty() {
                         ui.label("none yet");
@@ -223,7 +224,7 @@ pub fn status_bar_ui(app: &mut GripApp, ui: &mut Ui) {
             if let Some(s) = app.shown_status() {
                 let text = RichText::new(&s.text);
                 ui.label(if s.is_error {
-                    text.color(error_color(ui.visuals()))
+                    text.color(error_color(ui))
                 } else {
                     text
                 });
@@ -508,7 +509,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
         }
     };
     if let Err(e) = &parsed {
-        ui.label(RichText::new(e).color(error_color(ui.visuals())));
+        ui.label(RichText::new(e).color(error_color(ui)));
     }
     ui.horizontal(|ui| {
         if busy {
@@ -558,7 +559,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                     RichText::new(
                         "No multiple of the step passes every check; the value is unrounded.",
                     )
-                    .color(error_color(ui.visuals())),
+                    .color(error_color(ui)),
                 );
             }
             ui.label(RichText::new("Margins at this value:").strong());
@@ -578,7 +579,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                     RichText::new(
                         "The design has changed since this search: solve again to apply.",
                     )
-                    .color(error_color(ui.visuals())),
+                    .color(error_color(ui)),
                 );
             }
             let design = design.clone();
@@ -592,7 +593,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         }
         FitOutcome::Blocked(why) => {
-            ui.label(RichText::new(why).color(error_color(ui.visuals())));
+            ui.label(RichText::new(why).color(error_color(ui)));
         }
     }
 }

@@ -209,16 +209,13 @@ fn error_line_ui(ui: &mut Ui, left: f32, text: &str) {
     let galley = ui.painter().layout(
         text.to_string(),
         font,
-        error_color(ui.visuals()),
+        error_color(ui),
         (right - left).max(120.0),
     );
     let (rect, resp) =
         ui.allocate_exact_size(egui::vec2(0.0, galley.size().y), egui::Sense::hover());
-    ui.painter().galley(
-        egui::pos2(left, rect.top()),
-        galley,
-        error_color(ui.visuals()),
-    );
+    ui.painter()
+        .galley(egui::pos2(left, rect.top()), galley, error_color(ui));
     // The accessibility tree and tests read the message as a label.
     resp.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Label, true, text));
 }
@@ -610,7 +607,7 @@ impl InputsPanel {
                     }
                 });
                 if let Some(e) = self.errors.get("strip.material.name") {
-                    ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
+                    ui.label(RichText::new(e).color(error_color(ui)).small());
                 }
                 grid_ui(ui, "custom-material", |ui| {
                     #[rustfmt::skip]
@@ -680,6 +677,7 @@ impl InputsPanel {
                 .small(),
             );
         }
+        super::bench::calibration_note_ui(ui, d, out);
     }
 
     fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
@@ -785,7 +783,7 @@ impl InputsPanel {
                 .on_hover_text(&row.source);
             }
             if let Some(e) = self.errors.get("bore.pipe") {
-                ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
+                ui.label(RichText::new(e).color(error_color(ui)).small());
             }
         }
         let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
@@ -883,7 +881,7 @@ impl InputsPanel {
         ];
         grid_ui(ui, "actuator", |ui| self.rows_ui(ui, d, out, rows));
         if let Some(e) = self.errors.get("actuator") {
-            ui.label(RichText::new(e).color(error_color(ui.visuals())).small());
+            ui.label(RichText::new(e).color(error_color(ui)).small());
         }
         ui.label(
             RichText::new(format!(
@@ -1050,11 +1048,30 @@ fn grid_ui(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
 }
 
 /// Red that reads on both themes.
-pub fn error_color(visuals: &egui::Visuals) -> Color32 {
-    if visuals.dark_mode {
+pub fn error_color(on: &impl HasVisuals) -> Color32 {
+    if on.visuals().dark_mode {
         Color32::from_rgb(255, 120, 110)
     } else {
         Color32::from_rgb(180, 20, 20)
+    }
+}
+
+/// What knows the theme's visuals: a `Ui`, or the `Visuals` themselves (so a colour helper
+/// takes no `Ui` of its own).
+pub trait HasVisuals {
+    /// The visuals in force.
+    fn visuals(&self) -> &egui::Visuals;
+}
+
+impl HasVisuals for Ui {
+    fn visuals(&self) -> &egui::Visuals {
+        Ui::visuals(self)
+    }
+}
+
+impl HasVisuals for egui::Visuals {
+    fn visuals(&self) -> &egui::Visuals {
+        self
     }
 }
 

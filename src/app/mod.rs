@@ -8,6 +8,7 @@
 //! undo steps and re-analyses (once per change, never per frame). [`GripApp::ui`] serves
 //! both eframe and the kittest tests.
 
+mod bench;
 mod dialogs;
 pub mod export;
 mod help;
@@ -184,6 +185,8 @@ pub struct GripApp {
     plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
     dialogs: dialogs::Dialogs,
+    /// Bench measurements and the calibration fit.
+    bench: bench::BenchPanel,
 }
 
 impl GripApp {
@@ -226,6 +229,7 @@ impl GripApp {
             plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
+            bench: bench::BenchPanel::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
@@ -383,6 +387,8 @@ impl GripApp {
             .show(ui, |ui| outputs::verdict_ui(self, ui));
         egui::CentralPanel::default().show(ui, |ui| outputs::results_ui(self, ui));
         dialogs::windows(self, &ctx);
+        bench::windows(self, &ctx);
+        bench::take_dropped(self, &ctx);
         self.apply();
         self.autosave(&ctx);
         let title = self.title();
@@ -819,6 +825,7 @@ impl GripApp {
             }
             Err(e) => self.analysis_error = Some(e.to_string()),
         }
+        self.bench.refresh(&self.doc.design);
     }
 
     fn say(&mut self, text: String) {

@@ -126,14 +126,14 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
 pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
         if let Some(err) = &app.analysis_error {
-            ui.label(RichText::new(format!("The design as edited cannot be analysed: {err}. Showing the last valid design.")).color(error_color(ui.visuals())));
+            ui.label(RichText::new(format!("The design as edited cannot be analysed: {err}. Showing the last valid design.")).color(error_color(ui)));
         }
         let Some(a) = &app.analysis else {
             ui.label("No analysis yet.");
             return;
         };
         let failed = a.checks.iter().filter(|c| !c.pass).count();
-        let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui.visuals())) };
+        let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
         ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
@@ -143,7 +143,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         for (i, c) in a.checks.iter().enumerate() {
             let limiting = a.limiting == Some(i);
             let mark = if c.pass { "[ok]" } else { "[FAIL]" };
-            let col = if c.pass { C_HOLD } else { error_color(ui.visuals()) };
+            let col = if c.pass { C_HOLD } else { error_color(ui) };
             let frame = if limiting {
                 egui::Frame::group(ui.style()).stroke(Stroke::new(2.0, C_ACT))
             } else {
@@ -165,18 +165,18 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.separator();
             let mut text = u.describe();
             text[..1].make_ascii_uppercase();
-            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui.visuals()) };
+            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui) };
             ui.label(RichText::new(text).color(col)).on_hover_text(
                 "The strokes at which every bore of the tolerance band works: the segment holds the required load at the largest bore and stays within the stress limit, the model's limit and the actuator's travel at the smallest. The green fill of the stroke-against-bore plot shows the window bore by bore.",
             );
         }
         if !a.cautions.is_empty() {
             ui.separator();
-            ui.label(RichText::new("Geometry caution").color(error_color(ui.visuals())).strong()).on_hover_text(
+            ui.label(RichText::new("Geometry caution").color(error_color(ui)).strong()).on_hover_text(
                 "Not one of the checks: the model lets a strip pass through the end plates and through itself, so states past this point are not physical. Shorten the operating stroke or narrow the gap to the wall.",
             );
             for c in &a.cautions {
-                ui.label(RichText::new(c).color(error_color(ui.visuals())).small());
+                ui.label(RichText::new(c).color(error_color(ui)).small());
             }
         }
         ui.separator();
@@ -185,7 +185,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             match &b.operating {
                 Ok(s) => state_table_ui(ui, s),
                 Err(e) => {
-                    ui.label(RichText::new(e).color(error_color(ui.visuals())));
+                    ui.label(RichText::new(e).color(error_color(ui)));
                 }
             }
         }
@@ -239,6 +239,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         unit: "N",
         top: top_of(&forces).max(need),
     };
+    let bench = app
+        .bench
+        .nominal_force_points(&seg.design, seg.bore_nominal_mm);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
         plot_cell_ui(
@@ -257,7 +260,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h),
+            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h, &bench),
         );
     });
     ui.horizontal(|ui| {
@@ -650,7 +653,7 @@ fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
                 "No curve: the relaxed segment does not fit the nominal bore, {:.2} mm, so the model has no state there.",
                 a.segment.bore_nominal_mm
             ))
-            .color(error_color(ui.visuals())),
+            .color(error_color(ui)),
         );
     });
 }
@@ -662,6 +665,7 @@ fn force_plot_ui(
     rating: &Marker,
     need: f64,
     height: f32,
+    bench: &[super::bench::Overlay],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -686,6 +690,7 @@ fn force_plot_ui(
                     .style(LineStyle::dashed_loose()),
             );
             rating.add_to(p);
+            super::bench::overlay_ui(p, bench);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);

@@ -12,6 +12,7 @@
 //! the same layout to PDF with krilla, the text real and selectable, the two embedded
 //! faces subset.
 
+mod bench;
 mod draw;
 mod font;
 mod format;
@@ -30,6 +31,7 @@ use crate::design::Design;
 use draw::{Block, GREY, INK, Mark};
 use font::Weight;
 
+pub use bench::{CALIBRATION_TITLE, Measured, TITLE as BENCH_TITLE};
 pub use format::{civil_from_days, utc_stamp};
 
 /// Paper size of the sheet.
@@ -205,6 +207,19 @@ pub fn layout_dated(
     paper: Paper,
     date: &str,
 ) -> anyhow::Result<SheetLayout> {
+    layout_measured(design, file_label, file_bytes, paper, date, None)
+}
+
+/// Lays the sheet out with the given date, and with a page of bench measurements against
+/// the model when `measured` is given.
+pub fn layout_measured(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    date: &str,
+    measured: Option<&Measured>,
+) -> anyhow::Result<SheetLayout> {
     font::faces()?;
     let analysis = analysis::analyse(design)
         .map_err(|e| anyhow::anyhow!("cannot print a sheet for {file_label}: {e}"))?;
@@ -218,7 +233,11 @@ pub fn layout_dated(
     let (w, h) = paper.size_pt();
     let printable = [MARGIN_PT, MARGIN_PT, w - MARGIN_PT, h - MARGIN_PT];
     let content_w = printable[2] - printable[0];
-    let sections = sections::build(&analysis, &meta, content_w);
+    let mut sections = sections::build(&analysis, &meta, content_w);
+    sections.extend(bench::calibration_section(&analysis, content_w));
+    if let Some(m) = measured {
+        sections.push(bench::section(&analysis, m, content_w));
+    }
     Ok(paginate(
         sections, &meta, &analysis, paper, printable, design,
     ))
@@ -243,6 +262,26 @@ pub fn render(
     paper: Paper,
 ) -> anyhow::Result<Vec<u8>> {
     let laid = layout(design, file_label, file_bytes, paper)?;
+    write_pdf(&laid, design)
+}
+
+/// Renders the sheet with a page of bench measurements against the model (see
+/// [`layout_measured`]).
+pub fn render_measured(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    measured: Option<&Measured>,
+) -> anyhow::Result<Vec<u8>> {
+    let laid = layout_measured(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        &format::now_utc(),
+        measured,
+    )?;
     write_pdf(&laid, design)
 }
 
