@@ -9,7 +9,7 @@
 //! worker thread.
 
 use crate::checks::{self, Check, CheckId};
-use crate::design::{self, Design};
+use crate::design::{self, Design, Operating};
 use crate::segment::Segment;
 
 /// Samples in the first scan.
@@ -79,7 +79,7 @@ impl FitVar {
             FitVar::Count => f64::from(d.strip.count),
             FitVar::FreeLength => d.strip.free_length_mm,
             FitVar::MountRadius => d.mount_radius_mm,
-            FitVar::OperatingStroke => d.operating_stroke_mm,
+            FitVar::OperatingStroke => set_stroke_mm(d),
         }
     }
 
@@ -95,7 +95,7 @@ impl FitVar {
             }
             FitVar::FreeLength => out.strip.free_length_mm = v,
             FitVar::MountRadius => out.mount_radius_mm = v,
-            FitVar::OperatingStroke => out.operating_stroke_mm = v,
+            FitVar::OperatingStroke => out.set_operating(Operating::Stroke(v)),
         }
         out
     }
@@ -111,7 +111,7 @@ impl FitVar {
         match self {
             FitVar::Thickness => (lo, hi.min(d.strip.width_mm), true),
             FitVar::Count => (lo, hi, false),
-            FitVar::FreeLength => (lo.max(1.01 * d.operating_stroke_mm), hi, true),
+            FitVar::FreeLength => (lo.max(1.01 * set_stroke_mm(d)), hi, true),
             FitVar::MountRadius => (lo, hi.min(0.5 * bore), true),
             FitVar::OperatingStroke => {
                 let reach = Segment::new(d)
@@ -126,6 +126,15 @@ impl FitVar {
                 (lo, hi.min(reach), false)
             }
         }
+    }
+}
+
+/// The set stroke under displacement control, mm; 0 under force control (where the stroke
+/// follows from the pull at each bore).
+fn set_stroke_mm(d: &Design) -> f64 {
+    match d.operating() {
+        Operating::Stroke(s) => s,
+        Operating::Pull(_) | Operating::Torque(_) => 0.0,
     }
 }
 

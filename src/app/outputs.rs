@@ -276,11 +276,10 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.vertical(|ui| {
             ui.set_width(cell.x);
             let shape = a.side_shape();
-            let op = seg.design.operating_stroke_mm;
-            let heading = if shape.is_operating() {
-                format!("To scale at {op:.3} mm stroke")
-            } else {
-                format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke")
+            let heading = match (shape.is_operating(), a.nominal_operating_stroke_mm()) {
+                (true, Some(op)) => format!("To scale at {op:.3} mm stroke"),
+                (false, Some(op)) => format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke"),
+                (_, None) => "To scale, strips relaxed: the set pull is never reached at the nominal bore".to_string(),
             };
             ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
             let h = plot_h;
@@ -573,12 +572,7 @@ fn window_plot_ui(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, 
                 c.add_to(p);
             }
             travel.add_to(p);
-            p.add(
-                HLine::new("operating stroke", seg.design.operating_stroke_mm)
-                    .color(mark)
-                    .style(LineStyle::dashed_dense())
-                    .width(1.5),
-            );
+            super::drive::operating_marker(p, a, mark);
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
@@ -636,11 +630,13 @@ fn phase_backdrop(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, bands: &[Band], m
     for b in bands {
         b.add_to(p);
     }
-    p.add(
-        VLine::new("operating stroke", a.segment.design.operating_stroke_mm)
-            .color(mark)
-            .style(LineStyle::dashed_dense()),
-    );
+    if let Some(op) = a.nominal_operating_stroke_mm() {
+        p.add(
+            VLine::new("operating stroke", op)
+                .color(mark)
+                .style(LineStyle::dashed_dense()),
+        );
+    }
 }
 
 /// In place of a plot against stroke when the nominal bore has no curve: says why, in the

@@ -16,6 +16,7 @@ mod bench;
 mod draw;
 mod font;
 mod format;
+mod operating;
 mod plot;
 mod plots;
 mod sections;

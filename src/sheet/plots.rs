@@ -19,7 +19,9 @@ fn finite_max(vals: impl IntoIterator<Item = f64>) -> f64 {
 
 pub(super) fn window_plot(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let op = seg.design.operating_stroke_mm;
+    // Under force control the operating stroke is a curve across the bores.
+    let op_curve = super::operating::window_series(a);
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let max_stroke = seg.max_stroke_mm();
     let w = &a.window;
     let series = |get: fn(&crate::segment::BoreRow) -> Option<f64>| {
@@ -38,7 +40,8 @@ pub(super) fn window_plot(a: &Analysis, width: f32) -> Section {
                 ]
             })
             .flatten()
-            .chain([op]),
+            .chain([op])
+            .chain(op_curve.iter().filter_map(|p| p.1)),
     );
     let limit_top = finite_max(w.iter().filter_map(|r| r.limit_stroke_mm));
     let shown = if limit_top <= 1.5 * shown {
@@ -115,10 +118,18 @@ pub(super) fn window_plot(a: &Analysis, width: f32) -> Section {
                 pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
                 y: max_stroke,
             },
-            Item::HLine {
-                label: format!("operating stroke {}", f::mm(op)),
-                pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-                y: op,
+            if op_curve.is_empty() {
+                Item::HLine {
+                    label: format!("operating stroke {}", f::mm(op)),
+                    pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                    y: op,
+                }
+            } else {
+                Item::series(
+                    "operating stroke (set pull reached)",
+                    Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                    op_curve,
+                )
             },
             Item::series(
                 "first contact",
@@ -175,8 +186,7 @@ fn stroke_marker(op: f64) -> Item {
 
 pub(super) fn curve_plots(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let d = &seg.design;
-    let op = d.operating_stroke_mm;
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let c = &a.curve;
     if c.is_empty() {
         let mut b = Block::new();
@@ -226,7 +236,10 @@ pub(super) fn curve_plots(a: &Analysis, width: f32) -> Section {
     };
     let first = a.curve.first().and_then(|s| s.first_contact_stroke_mm);
     let mut items = vec![
-        stroke_marker(op),
+        match a.nominal_operating_stroke_mm() {
+            Some(op) => stroke_marker(op),
+            None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
+        },
         Item::HLine {
             label: format!("required holding {}", f::newton(required)),
             pen: Pen::dashed(GREEN, 1.0, &[5.0, 2.5]),
@@ -312,7 +325,10 @@ pub(super) fn curve_plots(a: &Analysis, width: f32) -> Section {
         x_range: (0.0, x_end),
         y_range: (0.0, if smax.is_finite() { 1.1 * smax } else { 1.0 }),
         items: vec![
-            stroke_marker(op),
+            match a.nominal_operating_stroke_mm() {
+                Some(op) => stroke_marker(op),
+                None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
+            },
             Item::HLine {
                 label: format!(
                     "static allowable 0.75 Su {}",

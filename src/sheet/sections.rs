@@ -379,7 +379,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
             INK,
             &format!(
                 "At the operating stroke {} in the nominal bore {}: {}, holding force {} against {} required ({} x safety factor {}), actuator pull {}{act}.",
-                f::mm(d.operating_stroke_mm),
+                f::mm(s.stroke_mm),
                 f::mm(a.segment.bore_nominal_mm),
                 s.phase,
                 f::newton(h),
@@ -530,6 +530,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         Actuator::Direct {
             max_force_n,
             max_stroke_mm,
+            ..
         } => vec![
             pair("Kind", "direct pull on the plates".to_string()),
             pair("Maximum force", f::newton(*max_force_n)),
@@ -539,6 +540,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             radius_mm,
             max_torque_nm,
             max_angle_deg,
+            ..
         } => vec![
             pair("Kind", "cord on a spool".to_string()),
             pair("Spool radius r_s", f::mm(*radius_mm)),
@@ -552,6 +554,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             efficiency,
             max_torque_nm,
             max_turns,
+            ..
         } => vec![
             pair("Kind", "lead screw and nut".to_string()),
             pair("Lead", f::mm(*lead_mm)),
@@ -566,15 +569,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         ],
     };
     group(&mut right, &mut y, "Actuator", act);
-    let op = d.operating_stroke_mm;
-    let mut duty = vec![pair("Operating stroke δ", f::mm(op))];
-    let reading = seg.actuator_reading(op, 0.0);
-    if reading.position_unit != "mm" {
-        duty.push(pair(
-            "Operating stroke at the actuator",
-            f::in_unit(reading.position, reading.position_unit),
-        ));
-    }
+    let mut duty = super::operating::input_pairs(a);
     duty.extend([
         pair("Holding force to resist", f::newton(d.duty.holding_force_n)),
         pair("Safety factor on holding", f::factor(d.duty.safety_factor)),
@@ -691,7 +686,6 @@ fn material(a: &Analysis, width: f32) -> Section {
 
 fn bore_results(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let op = seg.design.operating_stroke_mm;
     let cases: Vec<&BoreResult> = BoreCase::ALL.iter().filter_map(|c| a.bore(*c)).collect();
     let mut rows = Vec::new();
     let per = |name: &str, get: &dyn Fn(&BoreResult) -> String| {
@@ -721,10 +715,19 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
         Ok(s) => s.limit_reason.to_string(),
         Err(_) => NONE.to_string(),
     }));
-    let mut band = row([format!("At the operating stroke {}", f::mm(op))]);
+    let mut band = row([super::operating::band_title(a)]);
     band.bold = true;
     band.shade = Some(SHADE);
     rows.push(band);
+    if let Some(first) = cases.first() {
+        for (i, (name, _)) in super::operating::bore_rows(a, first).iter().enumerate() {
+            rows.push(per(name, &|r| {
+                super::operating::bore_rows(a, r)
+                    .get(i)
+                    .map_or_else(String::new, |c| c.1.clone())
+            }));
+        }
+    }
     let mut phase = per("Phase", &|r| match &r.operating {
         Ok(s) => s.phase.to_string(),
         Err(_) => "no state".to_string(),

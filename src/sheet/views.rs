@@ -39,7 +39,7 @@ pub(super) fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     let seg = &a.segment;
     let d = &seg.design;
     let s = &d.strip;
-    let op = d.operating_stroke_mm;
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let bore_d = seg.bore_nominal_mm as f32;
     let big_r = 0.5 * bore_d;
     let l = s.free_length_mm as f32;
@@ -71,10 +71,15 @@ pub(super) fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         9.0,
         9.0,
         Weight::Bold,
-        format!(
-            "Side view, section through two strips, at stroke {}, scale {scale_label}",
-            f::mm(op)
-        ),
+        match super::operating::unreached_note(a) {
+            None => format!(
+                "Side view, section through two strips, at stroke {}, scale {scale_label}",
+                f::mm(op)
+            ),
+            Some(_) => format!(
+                "Side view, section through two strips, relaxed (the set pull is never reached in the nominal bore), scale {scale_label}"
+            ),
+        },
     );
     // Side view: x along the axis from the first end plate; the drawing, from the left
     // overhang to the right one, is centred in its box.
