@@ -341,8 +341,10 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         Ok(p) => {
             let operating = actuation::operating_state(&p);
             let (op, s) = (operating.stroke_mm, &operating.state);
-            out.push(stress_check(seg, s, small, op, CheckId::Static));
-            out.push(stress_check(seg, s, small, op, CheckId::Fatigue));
+            for id in [CheckId::Static, CheckId::Fatigue] {
+                let here = stress_check(seg, s, small, op, id);
+                out.push(worse_under_set_pull(seg, here, large, id));
+            }
             out.push(actuator_check(seg, s, small, op));
             out.push(match (op, operating.travel_mm) {
                 (Some(op), Some(travel)) => {
@@ -398,6 +400,33 @@ pub fn run(seg: &Segment) -> Vec<Check> {
 }
 
 /// The static or the fatigue check (`id`) of the state `s`.
+/// Under a set pull or torque the stroke is longest, and so the stress highest, in the
+/// largest bore, not the smallest where a fixed stroke stresses the strips most. There the
+/// stress checks are judged at whichever end of the bore tolerance gives the smaller margin,
+/// and the reason says so; under a fixed stroke `at_smallest` is returned unchanged.
+fn worse_under_set_pull(seg: &Segment, at_smallest: Check, large: f64, id: CheckId) -> Check {
+    if !actuation::Drive::of(seg).is_force_controlled() {
+        return at_smallest;
+    }
+    let Ok(p) = seg.at_bore(large) else {
+        return at_smallest;
+    };
+    let o = actuation::operating_state(&p);
+    let mut there = stress_check(seg, &o.state, large, o.stroke_mm, id);
+    let worse = match (at_smallest.margin, there.margin) {
+        (Some(a), Some(b)) => b < a,
+        _ => at_smallest.pass && !there.pass,
+    };
+    if !worse {
+        return at_smallest;
+    }
+    there.reason = format!(
+        "judged at the largest bore, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
+        there.reason
+    );
+    there
+}
+
 fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: Option<f64>, id: CheckId) -> Check {
     let is_static = id == CheckId::Static;
     let (Some(stress), Some(fos)) = (
