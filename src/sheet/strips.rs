@@ -8,7 +8,7 @@
 
 use super::super::draw::{Block, GREY, INK, RED};
 use super::super::font::Weight;
-use super::{BLUE, BODY, ORANGE, SMALL, Section, circle, col, rcol, row, section, table};
+use super::{BLUE, BODY, ORANGE, SMALL, Section, col, rcol, row, section, table};
 use crate::analysis::Analysis;
 use crate::elastica::Phase;
 use crate::sharing::{self, CaseChoice, Judge, Loading};
@@ -281,4 +281,14 @@ fn end_view(
     );
     b.height = y;
     b
+}
+
+/// A closed circle of radius `r` pt around `(cx, cy)`, as a polyline.
+fn circle(cx: f32, cy: f32, r: f32) -> Vec<[f32; 2]> {
+    (0..=96)
+        .map(|i| {
+            let t = std::f32::consts::TAU * i as f32 / 96.0;
+            [cx + r * t.cos(), cy + r * t.sin()]
+        })
+        .collect()
 }
