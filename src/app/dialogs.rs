@@ -141,6 +141,20 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
                 if ui.button("Fit one value…").clicked() {
                     app.dialogs.show_fit = true;
                 }
+                if ui
+                    .button("Design map…")
+                    .on_hover_text("Two inputs over a grid: where every check passes")
+                    .clicked()
+                {
+                    app.map_view.open = true;
+                }
+                if ui
+                    .button("Scatter…")
+                    .on_hover_text("What the shop's tolerances do to every check")
+                    .clicked()
+                {
+                    app.scatter_view.open = true;
+                }
                 if ui.button("Print sizing sheet…").clicked() {
                     app.dialogs.show_print = true;
                     app.dialogs.print_path = default_beside(app.doc.path.as_deref(), "pdf");

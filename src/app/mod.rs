@@ -13,7 +13,9 @@ pub mod export;
 pub mod fit;
 mod help;
 mod inputs;
+pub mod map_view;
 mod outputs;
+pub mod scatter_view;
 pub mod state;
 
 use std::path::{Path, PathBuf};
@@ -178,6 +180,8 @@ pub struct GripApp {
     plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
     dialogs: dialogs::Dialogs,
+    map_view: map_view::MapView,
+    scatter_view: scatter_view::ScatterView,
 }
 
 impl GripApp {
@@ -221,6 +225,8 @@ impl GripApp {
             plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
+            map_view: map_view::MapView::default(),
+            scatter_view: scatter_view::ScatterView::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
@@ -325,6 +331,26 @@ impl GripApp {
         &self.session
     }
 
+    /// The design map window (open it with `map_view_mut().open = true`).
+    pub fn map_view(&self) -> &map_view::MapView {
+        &self.map_view
+    }
+
+    /// The design map window, to open it or set its axes.
+    pub fn map_view_mut(&mut self) -> &mut map_view::MapView {
+        &mut self.map_view
+    }
+
+    /// The scatter window (open it with `scatter_view_mut().open = true`).
+    pub fn scatter_view(&self) -> &scatter_view::ScatterView {
+        &self.scatter_view
+    }
+
+    /// The scatter window, to open it.
+    pub fn scatter_view_mut(&mut self) -> &mut scatter_view::ScatterView {
+        &mut self.scatter_view
+    }
+
     /// The state directory.
     pub fn state_dir(&self) -> &Path {
         &self.state_dir
@@ -372,6 +398,8 @@ impl GripApp {
             .show(ui, |ui| outputs::verdict_ui(self, ui));
         egui::CentralPanel::default().show(ui, |ui| outputs::results_ui(self, ui));
         dialogs::windows(self, &ctx);
+        map_view::window(self, &ctx);
+        scatter_view::window(self, &ctx);
         self.apply();
         self.autosave(&ctx);
         let title = self.title();

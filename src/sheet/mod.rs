@@ -15,7 +15,9 @@
 mod draw;
 mod font;
 mod format;
+mod map_page;
 mod plot;
+mod scatter;
 mod sections;
 
 use krilla::Document;
@@ -195,6 +197,17 @@ pub fn content_hash16(bytes: &[u8]) -> String {
     digest.iter().take(8).map(|b| format!("{b:02x}")).collect()
 }
 
+/// Title of the first closing section (assumptions, references, cautions follow it):
+/// the optional parts go before it, or at the end if it is not found.
+const CLOSING_FIRST: &str = "Model, assumptions and limits";
+
+/// What the sheet holds beyond its fixed sections.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SheetOptions {
+    /// A design-map page over these two axes (across, up).
+    pub map: Option<(crate::map::AxisSpec, crate::map::AxisSpec)>,
+}
+
 /// Lays the sheet out (with the given date text) without writing the PDF.
 pub fn layout_dated(
     design: &Design,
@@ -202,6 +215,25 @@ pub fn layout_dated(
     file_bytes: &[u8],
     paper: Paper,
     date: &str,
+) -> anyhow::Result<SheetLayout> {
+    layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        date,
+        &SheetOptions::default(),
+    )
+}
+
+/// Lays the sheet out with its optional parts (with the given date text).
+pub fn layout_with(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    date: &str,
+    options: &SheetOptions,
 ) -> anyhow::Result<SheetLayout> {
     font::faces()?;
     let analysis = analysis::analyse(design)
@@ -216,7 +248,20 @@ pub fn layout_dated(
     let (w, h) = paper.size_pt();
     let printable = [MARGIN_PT, MARGIN_PT, w - MARGIN_PT, h - MARGIN_PT];
     let content_w = printable[2] - printable[0];
-    let sections = sections::build(&analysis, &meta, content_w);
+    let mut sections = sections::build(&analysis, &meta, content_w);
+    // Optional parts go before the closing text sections (assumptions, references, cautions).
+    let mut extra = Vec::new();
+    if let Some(spec) = &design.scatter {
+        extra.push(scatter::section(design, spec, content_w)?);
+    }
+    if let Some((x, y)) = &options.map {
+        extra.push(map_page::section(design, x, y, content_w)?);
+    }
+    let at = sections
+        .iter()
+        .position(|s| s.title == CLOSING_FIRST)
+        .unwrap_or(sections.len());
+    sections.splice(at..at, extra);
     Ok(paginate(
         sections, &meta, &analysis, paper, printable, design,
     ))
@@ -240,7 +285,31 @@ pub fn render(
     file_bytes: &[u8],
     paper: Paper,
 ) -> anyhow::Result<Vec<u8>> {
-    let laid = layout(design, file_label, file_bytes, paper)?;
+    render_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        &SheetOptions::default(),
+    )
+}
+
+/// Renders the sheet with its optional parts to PDF bytes, dated now (UTC).
+pub fn render_with(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    options: &SheetOptions,
+) -> anyhow::Result<Vec<u8>> {
+    let laid = layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        &format::now_utc(),
+        options,
+    )?;
     write_pdf(&laid, design)
 }
 

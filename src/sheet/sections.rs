@@ -56,7 +56,7 @@ fn heading(title: &str, width: f32) -> Block {
     b
 }
 
-fn section(title: &str, width: f32, body: Vec<Block>) -> Section {
+pub(crate) fn section(title: &str, width: f32, body: Vec<Block>) -> Section {
     let mut blocks = body;
     if let Some(first) = blocks.first_mut() {
         let h = heading(title, width);
