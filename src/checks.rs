@@ -1,15 +1,18 @@
 //! The design checks: each judged at its own bore and stroke (the project's contract),
 //! with pass/fail, a margin in the check's own unit (mm for geometry, otherwise a ratio
-//! minus one; positive when passing) and a one-line reason.
+//! minus one; positive when passing) and a one-line reason. [`CheckId`] names each check
+//! and holds its title and unit in one place; [`Check::margin_text`] is the one way the
+//! command line, the app and the sheet write a margin.
 
 use std::f64::consts::PI;
 
-use serde::Serialize;
+use serde::{Serialize, Serializer};
 
 use crate::segment::{Segment, SegmentError, SegmentState};
 
-/// Unit of a check's margin.
+/// Unit of a check's margin (serialised as its label, `mm` or `ratio`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
 pub enum MarginUnit {
     /// Millimetres of clearance or stroke.
     Mm,
@@ -25,21 +28,130 @@ impl MarginUnit {
             MarginUnit::Ratio => "ratio",
         }
     }
+
+    /// A margin `m` in this unit as [`Check::margin_text`] writes it (`+0.125 mm`,
+    /// `+42.0 %`); `None` when it is not finite.
+    pub fn margin_text(self, m: f64) -> Option<String> {
+        let m = Some(m).filter(|m| m.is_finite())?;
+        Some(match self {
+            MarginUnit::Mm => format!("{:+.3} mm", no_negative_zero(m, 3)),
+            MarginUnit::Ratio => format!("{:+.1} %", no_negative_zero(100.0 * m, 1)),
+        })
+    }
 }
 
-/// One check of a design.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-pub struct Check {
-    /// Short stable id: `fit`, `reach`, `hold`, `static`, `fatigue`, `actuator`, `stroke`, `hub`.
-    pub id: &'static str,
+/// Which check: the stable id (serialised in kebab-case, as `check --json` prints it) with,
+/// in one place, its title and the unit of its margin.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum CheckId {
+    /// The relaxed segment passes the smallest bore.
+    Fit,
+    /// The strips reach the wall at the largest bore within the actuator's stroke.
+    Reach,
+    /// The holding force at the largest bore meets the load times the safety factor.
+    Hold,
+    /// Static stress at the smallest bore.
+    Static,
+    /// Fatigue (Goodman, zero-to-peak) at the smallest bore.
+    Fatigue,
+    /// Actuator force or torque within its rating.
+    Actuator,
+    /// Operating stroke within the actuator and short of the model's limit.
+    Stroke,
+    /// Strips clear each other on the hub.
+    Hub,
+    /// Load sharing: the top strip still touches the wall at the operating stroke (only
+    /// designs with a radial load or an out-of-round bore produce it).
+    TopStrip,
+    /// Load sharing: the relaxed segment passes the pipe's bend (only designs with a bend).
+    Bend,
+    /// Actuation: the operating point is stable (only designs operated by pull or torque).
+    Stable,
+}
+
+impl CheckId {
+    /// The eight checks every design gets, in the order [`run`] gives them.
+    pub const BASIC: [CheckId; 8] = [
+        CheckId::Fit,
+        CheckId::Reach,
+        CheckId::Hold,
+        CheckId::Static,
+        CheckId::Fatigue,
+        CheckId::Actuator,
+        CheckId::Stroke,
+        CheckId::Hub,
+    ];
+
+    /// The stable id, as `check --json` prints it.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            CheckId::Fit => "fit",
+            CheckId::Reach => "reach",
+            CheckId::Hold => "hold",
+            CheckId::Static => "static",
+            CheckId::Fatigue => "fatigue",
+            CheckId::Actuator => "actuator",
+            CheckId::Stroke => "stroke",
+            CheckId::Hub => "hub",
+            CheckId::TopStrip => "top-strip",
+            CheckId::Bend => "bend",
+            CheckId::Stable => "stable",
+        }
+    }
+
     /// What is checked, in words.
-    pub title: &'static str,
+    pub fn title(self) -> &'static str {
+        match self {
+            CheckId::Fit => "passes the smallest bore when relaxed",
+            CheckId::Reach => "reaches the wall at the largest bore",
+            CheckId::Hold => "holds the required load at the largest bore",
+            CheckId::Static => "static stress at the smallest bore",
+            CheckId::Fatigue => "fatigue (Goodman, zero-to-peak) at the smallest bore",
+            CheckId::Actuator => "actuator force or torque within rating",
+            CheckId::Stroke => "operating stroke within the actuator and short of the limit",
+            CheckId::Hub => "strips clear each other on the hub",
+            CheckId::TopStrip => "the top strip touches at the operating stroke",
+            CheckId::Bend => "passes the bend when relaxed",
+            CheckId::Stable => "stable at the operating point",
+        }
+    }
+
+    /// Unit of the check's margin.
+    pub fn unit(self) -> MarginUnit {
+        match self {
+            CheckId::Fit
+            | CheckId::Reach
+            | CheckId::Stroke
+            | CheckId::Hub
+            | CheckId::TopStrip
+            | CheckId::Bend => MarginUnit::Mm,
+            CheckId::Hold
+            | CheckId::Static
+            | CheckId::Fatigue
+            | CheckId::Actuator
+            | CheckId::Stable => MarginUnit::Ratio,
+        }
+    }
+}
+
+impl std::fmt::Display for CheckId {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.pad(self.as_str())
+    }
+}
+
+/// One check of a design. Serialises as `check --json` prints it: `id, title, pass,
+/// margin, unit, reason, bore_mm, stroke_mm`, the title and unit from the id.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Check {
+    /// Which check.
+    pub id: CheckId,
     /// Whether the check passes.
     pub pass: bool,
-    /// Margin in `unit`; `None` where it cannot be formed (e.g. the bore is out of reach).
+    /// Margin in the id's unit; `None` where it cannot be formed (e.g. the bore is out of
+    /// reach).
     pub margin: Option<f64>,
-    /// Unit of the margin.
-    pub unit: MarginUnit,
     /// One line saying why.
     pub reason: String,
     /// Bore the check is judged at, mm (none for the hub check).
@@ -48,46 +160,119 @@ pub struct Check {
     pub stroke_mm: Option<f64>,
 }
 
-/// Every check of a segment, in a fixed order.
+impl Check {
+    /// What is checked, in words (`id.title()`).
+    pub fn title(&self) -> &'static str {
+        self.id.title()
+    }
+
+    /// Unit of the margin (`id.unit()`).
+    pub fn unit(&self) -> MarginUnit {
+        self.id.unit()
+    }
+
+    /// The margin in words, signed, `None` where no margin can be formed: a length margin
+    /// in mm to 3 decimals (`+0.125 mm`), a ratio margin in per cent to 1 decimal
+    /// (`+42.0 %`, for capacity 1.42 times the demand). The one margin formatter of the
+    /// command line, the app and the sheet.
+    pub fn margin_text(&self) -> Option<String> {
+        self.unit().margin_text(self.margin?)
+    }
+}
+
+/// `v`, or `0.0` where it rounds to zero at `decimals` places (so no `-0.000` prints).
+fn no_negative_zero(v: f64, decimals: i32) -> f64 {
+    if (v * 10f64.powi(decimals)).round() == 0.0 {
+        0.0
+    } else {
+        v
+    }
+}
+
+impl Serialize for Check {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        #[derive(Serialize)]
+        struct Out<'a> {
+            id: CheckId,
+            title: &'static str,
+            pass: bool,
+            margin: Option<f64>,
+            unit: MarginUnit,
+            reason: &'a str,
+            bore_mm: Option<f64>,
+            stroke_mm: Option<f64>,
+        }
+        Out {
+            id: self.id,
+            title: self.title(),
+            pass: self.pass,
+            margin: self.margin,
+            unit: self.unit(),
+            reason: &self.reason,
+            bore_mm: self.bore_mm,
+            stroke_mm: self.stroke_mm,
+        }
+        .serialize(serializer)
+    }
+}
+
+impl Check {
+    /// A check of `id` judged at `bore_mm` and `stroke_mm`.
+    fn new(
+        id: CheckId,
+        pass: bool,
+        margin: Option<f64>,
+        reason: String,
+        bore_mm: Option<f64>,
+        stroke_mm: Option<f64>,
+    ) -> Check {
+        Check {
+            id,
+            pass,
+            margin,
+            reason,
+            bore_mm,
+            stroke_mm,
+        }
+    }
+}
+
+/// Every check of a segment, in a fixed order ([`CheckId::BASIC`]).
 pub fn run(seg: &Segment) -> Vec<Check> {
     let d = &seg.design;
     let op = d.operating_stroke_mm;
     let small = seg.bore_smallest_mm;
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
-    let mut out = Vec::with_capacity(8);
+    let mut out = Vec::with_capacity(CheckId::BASIC.len());
 
     // 1. Fits when relaxed, at the smallest bore.
     let need = seg.relaxed_diameter_mm() + 1.0;
     let fit_margin = small - need;
-    out.push(Check {
-        id: "fit",
-        title: "passes the smallest bore when relaxed",
-        pass: fit_margin >= 0.0,
-        margin: Some(fit_margin),
-        unit: MarginUnit::Mm,
-        reason: format!(
+    out.push(Check::new(
+        CheckId::Fit,
+        fit_margin >= 0.0,
+        Some(fit_margin),
+        format!(
             "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs smallest bore {:.2} mm",
             seg.relaxed_diameter_mm(),
             d.end_plate_diameter_mm,
             seg.outer_diameter_mm(0.0),
             small
         ),
-        bore_mm: Some(small),
-        stroke_mm: Some(0.0),
-    });
+        Some(small),
+        Some(0.0),
+    ));
 
     // 2. Reaches the wall at the largest bore within the actuator's stroke.
     let large_path = seg.at_bore(large);
     let reach = match &large_path {
         Ok(p) => match p.first_contact_stroke_mm() {
-            Some(fc) => Check {
-                id: "reach",
-                title: "reaches the wall at the largest bore",
-                pass: fc <= max_stroke,
-                margin: Some(max_stroke - fc),
-                unit: MarginUnit::Mm,
-                reason: match p.stress_limit_stroke_mm().ok().filter(|&s| s < fc) {
+            Some(fc) => Check::new(
+                CheckId::Reach,
+                fc <= max_stroke,
+                Some(max_stroke - fc),
+                match p.stress_limit_stroke_mm().ok().filter(|&s| s < fc) {
                     Some(s) => format!(
                         "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall"
                     ),
@@ -95,80 +280,54 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                         "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm"
                     ),
                 },
-                bore_mm: Some(large),
-                stroke_mm: Some(fc),
-            },
-            None => Check {
-                id: "reach",
-                title: "reaches the wall at the largest bore",
-                pass: false,
-                margin: None,
-                unit: MarginUnit::Mm,
-                reason: format!(
+                Some(large),
+                Some(fc),
+            ),
+            None => Check::new(
+                CheckId::Reach,
+                false,
+                None,
+                format!(
                     "bore {large:.2} mm is out of reach: the strips can reach at most {:.2} mm",
                     seg.largest_reachable_bore_mm()
                 ),
-                bore_mm: Some(large),
-                stroke_mm: None,
-            },
+                Some(large),
+                None,
+            ),
         },
-        Err(e) => no_state(
-            "reach",
-            "reaches the wall at the largest bore",
-            MarginUnit::Mm,
-            large,
-            None,
-            e,
-        ),
+        Err(e) => no_state(CheckId::Reach, large, None, e),
     };
     out.push(reach);
 
     // 3. Holding force at the largest bore at the operating stroke.
-    let required = d.duty.holding_force_n * d.duty.safety_factor;
+    let required = seg.required_holding_force_n();
     let hold = match &large_path {
         Ok(p) => {
             let s = p.state(op);
             match s.holding_force_n {
-                Some(h) if required > 0.0 => Check {
-                    id: "hold",
-                    title: "holds the required load at the largest bore",
-                    pass: h >= required,
-                    margin: Some(h / required - 1.0),
-                    unit: MarginUnit::Ratio,
-                    reason: format!(
+                Some(h) if required > 0.0 => Check::new(
+                    CheckId::Hold,
+                    h >= required,
+                    Some(h / required - 1.0),
+                    format!(
                         "holding force {h:.2} N ({}) vs {:.2} N x safety factor {:.2} = {required:.2} N",
                         s.phase, d.duty.holding_force_n, d.duty.safety_factor
                     ),
-                    bore_mm: Some(large),
-                    stroke_mm: Some(op),
-                },
-                Some(h) => Check {
-                    id: "hold",
-                    title: "holds the required load at the largest bore",
-                    pass: true,
-                    margin: None,
-                    unit: MarginUnit::Ratio,
-                    reason: format!("no holding force required; the segment holds {h:.2} N"),
-                    bore_mm: Some(large),
-                    stroke_mm: Some(op),
-                },
-                None => beyond(
-                    "hold",
-                    "holds the required load at the largest bore",
-                    large,
-                    op,
-                    &s,
+                    Some(large),
+                    Some(op),
                 ),
+                Some(h) => Check::new(
+                    CheckId::Hold,
+                    true,
+                    None,
+                    format!("no holding force required; the segment holds {h:.2} N"),
+                    Some(large),
+                    Some(op),
+                ),
+                None => beyond(CheckId::Hold, large, op, &s),
             }
         }
-        Err(e) => no_state(
-            "hold",
-            "holds the required load at the largest bore",
-            MarginUnit::Ratio,
-            large,
-            Some(op),
-            e,
-        ),
+        Err(e) => no_state(CheckId::Hold, large, Some(op), e),
     };
     out.push(hold);
 
@@ -176,50 +335,31 @@ pub fn run(seg: &Segment) -> Vec<Check> {
     match seg.at_bore(small) {
         Ok(p) => {
             let s = p.state(op);
-            out.push(stress_check(seg, &s, small, op, true));
-            out.push(stress_check(seg, &s, small, op, false));
+            out.push(stress_check(seg, &s, small, op, CheckId::Static));
+            out.push(stress_check(seg, &s, small, op, CheckId::Fatigue));
             out.push(actuator_check(seg, &s, small, op));
             let limit = p.limit_stroke_mm();
             let margin = (max_stroke - op).min(limit - op);
-            let pass = op <= max_stroke && op < limit;
-            out.push(Check {
-                id: "stroke",
-                title: "operating stroke within the actuator and short of the limit",
-                pass,
-                margin: Some(margin),
-                unit: MarginUnit::Mm,
-                reason: format!(
+            out.push(Check::new(
+                CheckId::Stroke,
+                op <= max_stroke && op < limit,
+                Some(margin),
+                format!(
                     "operating {op:.3} mm vs actuator maximum {max_stroke:.3} mm and model limit {limit:.3} mm ({})",
                     p.limit_reason().describe()
                 ),
-                bore_mm: Some(small),
-                stroke_mm: Some(op),
-            });
+                Some(small),
+                Some(op),
+            ));
         }
         Err(e) => {
-            for (id, title, unit) in [
-                (
-                    "static",
-                    "static stress at the smallest bore",
-                    MarginUnit::Ratio,
-                ),
-                (
-                    "fatigue",
-                    "fatigue (Goodman, zero-to-peak) at the smallest bore",
-                    MarginUnit::Ratio,
-                ),
-                (
-                    "actuator",
-                    "actuator force or torque within rating",
-                    MarginUnit::Ratio,
-                ),
-                (
-                    "stroke",
-                    "operating stroke within the actuator and short of the limit",
-                    MarginUnit::Mm,
-                ),
+            for id in [
+                CheckId::Static,
+                CheckId::Fatigue,
+                CheckId::Actuator,
+                CheckId::Stroke,
             ] {
-                out.push(no_state(id, title, unit, small, Some(op), &e));
+                out.push(no_state(id, small, Some(op), &e));
             }
         }
     }
@@ -227,31 +367,23 @@ pub fn run(seg: &Segment) -> Vec<Check> {
     // 8. Strips clear each other on the hub.
     let n = f64::from(d.strip.count);
     let room = 2.0 * d.mount_radius_mm * (PI / n).tan();
-    out.push(Check {
-        id: "hub",
-        title: "strips clear each other on the hub",
-        pass: d.strip.width_mm <= room,
-        margin: Some(room - d.strip.width_mm),
-        unit: MarginUnit::Mm,
-        reason: format!(
+    out.push(Check::new(
+        CheckId::Hub,
+        d.strip.width_mm <= room,
+        Some(room - d.strip.width_mm),
+        format!(
             "strip width {:.2} mm vs room 2 r tan(pi/N) = {room:.2} mm for {} strips at radius {:.2} mm",
             d.strip.width_mm, d.strip.count, d.mount_radius_mm
         ),
-        bore_mm: None,
-        stroke_mm: Some(0.0),
-    });
+        None,
+        Some(0.0),
+    ));
     out
 }
 
-fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: bool) -> Check {
-    let (id, title) = if is_static {
-        ("static", "static stress at the smallest bore")
-    } else {
-        (
-            "fatigue",
-            "fatigue (Goodman, zero-to-peak) at the smallest bore",
-        )
-    };
+/// The static or the fatigue check (`id`) of the state `s`.
+fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, id: CheckId) -> Check {
+    let is_static = id == CheckId::Static;
     let (Some(stress), Some(fos)) = (
         s.max_stress_mpa,
         if is_static {
@@ -260,7 +392,7 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
             s.fatigue_safety_factor
         },
     ) else {
-        return beyond(id, title, bore, op, s);
+        return beyond(id, bore, op, s);
     };
     let reason = if is_static {
         format!(
@@ -275,22 +407,19 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, is_static: 
             seg.material.tensile_strength_mpa
         )
     };
-    Check {
+    Check::new(
         id,
-        title,
-        pass: fos >= 1.0,
-        margin: Some(fos - 1.0),
-        unit: MarginUnit::Ratio,
+        fos >= 1.0,
+        Some(fos - 1.0),
         reason,
-        bore_mm: Some(bore),
-        stroke_mm: Some(op),
-    }
+        Some(bore),
+        Some(op),
+    )
 }
 
 fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check {
-    let title = "actuator force or torque within rating";
     let Some(reading) = s.actuator else {
-        return beyond("actuator", title, bore, op, s);
+        return beyond(CheckId::Actuator, bore, op, s);
     };
     let rating = seg.actuator_effort_rating();
     let need = reading.effort;
@@ -300,52 +429,34 @@ fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check 
         f64::INFINITY
     };
     let unit = reading.effort_unit;
-    Check {
-        id: "actuator",
-        title,
-        pass: need <= rating,
-        margin: margin.is_finite().then_some(margin),
-        unit: MarginUnit::Ratio,
-        reason: format!("needs {need:.3} {unit} vs rating {rating:.3} {unit}"),
-        bore_mm: Some(bore),
-        stroke_mm: Some(op),
-    }
+    Check::new(
+        CheckId::Actuator,
+        need <= rating,
+        margin.is_finite().then_some(margin),
+        format!("needs {need:.3} {unit} vs rating {rating:.3} {unit}"),
+        Some(bore),
+        Some(op),
+    )
 }
 
-fn beyond(id: &'static str, title: &'static str, bore: f64, op: f64, s: &SegmentState) -> Check {
-    Check {
+/// A check with no state to judge at the operating stroke (past the model's limit, or a
+/// failed solve): the state's own reason.
+fn beyond(id: CheckId, bore: f64, op: f64, s: &SegmentState) -> Check {
+    Check::new(
         id,
-        title,
-        pass: false,
-        margin: None,
-        unit: MarginUnit::Ratio,
-        reason: s
-            .reason
+        false,
+        None,
+        s.reason
             .clone()
             .unwrap_or_else(|| "no state at the operating stroke".to_string()),
-        bore_mm: Some(bore),
-        stroke_mm: Some(op),
-    }
+        Some(bore),
+        Some(op),
+    )
 }
 
-fn no_state(
-    id: &'static str,
-    title: &'static str,
-    unit: MarginUnit,
-    bore: f64,
-    op: Option<f64>,
-    e: &SegmentError,
-) -> Check {
-    Check {
-        id,
-        title,
-        pass: false,
-        margin: None,
-        unit,
-        reason: e.to_string(),
-        bore_mm: Some(bore),
-        stroke_mm: op,
-    }
+/// A check whose bore the relaxed segment does not fit.
+fn no_state(id: CheckId, bore: f64, op: Option<f64>, e: &SegmentError) -> Check {
+    Check::new(id, false, None, e.to_string(), Some(bore), op)
 }
 
 /// Index of the check that limits the design: the failing check with the most negative
@@ -356,7 +467,7 @@ pub fn limiting(checks: &[Check]) -> Option<usize> {
         checks
             .iter()
             .enumerate()
-            .filter(|(_, c)| c.pass == pass && (c.unit == MarginUnit::Ratio || !pass))
+            .filter(|(_, c)| c.pass == pass && (c.unit() == MarginUnit::Ratio || !pass))
             .min_by(|a, b| key(a.1).total_cmp(&key(b.1)))
             .map(|(i, _)| i)
     };

@@ -17,7 +17,7 @@ use std::process::ExitCode;
 use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
-use crate::checks::{self, Check};
+use crate::checks::{self, Check, CheckId};
 use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sharing;
@@ -908,7 +908,6 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let limiting = checks::limiting(&list).map(|i| list[i].id);
     let cautions = checks::geometry_cautions(&seg);
     if a.json {
-        let items: Vec<serde_json::Value> = list.iter().map(check_json).collect();
         let doc = serde_json::json!({
             "file": a.file.display().to_string(),
             "title": design.title,
@@ -916,7 +915,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "limiting": limiting,
             "stiffness": seg.stiffness_used.name(),
             "stiffness_reason": seg.stiffness_reason,
-            "checks": items,
+            "checks": list,
             "geometry_cautions": cautions,
         });
         serde_json::to_writer(&mut *out, &doc)?;
@@ -935,24 +934,11 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     })
 }
 
-fn check_json(c: &Check) -> serde_json::Value {
-    serde_json::json!({
-        "id": c.id,
-        "title": c.title,
-        "pass": c.pass,
-        "margin": c.margin,
-        "unit": c.unit.label(),
-        "reason": c.reason,
-        "bore_mm": c.bore_mm,
-        "stroke_mm": c.stroke_mm,
-    })
-}
-
 fn check_table(
     design: &Design,
     seg: &Segment,
     list: &[Check],
-    limiting: Option<&str>,
+    limiting: Option<CheckId>,
     cautions: &[String],
 ) -> String {
     let mut t = String::new();
@@ -966,10 +952,7 @@ fn check_table(
     );
     for c in list {
         let verdict = if c.pass { "pass" } else { "FAIL" };
-        let margin = match c.margin {
-            Some(m) => format!("{m:+.3} {}", c.unit.label()),
-            None => "-".to_string(),
-        };
+        let margin = c.margin_text().unwrap_or_else(|| "-".to_string());
         let mark = if Some(c.id) == limiting {
             " (limiting)"
         } else {
@@ -978,7 +961,9 @@ fn check_table(
         let _ = writeln!(
             t,
             "{:<9} {verdict:<5} {margin:>14}  {}{mark}: {}",
-            c.id, c.title, c.reason
+            c.id,
+            c.title(),
+            c.reason
         );
     }
     let failed = list.iter().filter(|c| !c.pass).count();

@@ -21,6 +21,7 @@ pub mod friction;
 pub mod map;
 pub mod material;
 pub mod pipe;
+pub mod quantities;
 pub mod scatter;
 pub mod segment;
 pub mod sharing;

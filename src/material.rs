@@ -27,7 +27,12 @@ pub struct Material {
     pub yield_strength_mpa: f64,
     /// Fully reversed endurance strength at 10^6 cycles and beyond.
     pub endurance_limit_mpa: f64,
+    /// Where each value comes from, in full: the standard or handbook, and "from memory"
+    /// where a value is recalled and not checked against a page. Kept in the data file.
     pub sources: MaterialSources,
+    /// What the app and the sheet print beside each value: the kind of value (typical
+    /// minimum of a standard, typical value, estimate) and what to confirm it against.
+    pub basis: MaterialSources,
     pub note: String,
 }
 
@@ -87,6 +92,13 @@ pub fn custom(
             yield_strength: source(),
             endurance: source(),
         },
+        basis: MaterialSources {
+            modulus: source(),
+            poisson: source(),
+            tensile: source(),
+            yield_strength: source(),
+            endurance: source(),
+        },
         note: "Values entered by the user.".to_string(),
     }
 }
@@ -100,6 +112,28 @@ mod tests {
         let parsed: Vec<Material> = ron::from_str(MATERIALS_RON).expect("materials.ron parses");
         assert!(parsed.len() >= 5, "{} grades", parsed.len());
         assert_eq!(library(), parsed.as_slice());
+    }
+
+    /// What the app and the sheet print reads as a checker expects: never "from memory",
+    /// and every strength says what to confirm it against.
+    #[test]
+    fn printed_basis_says_what_to_confirm() {
+        for m in library() {
+            let b = &m.basis;
+            for (what, text) in [
+                ("modulus", &b.modulus),
+                ("poisson", &b.poisson),
+                ("tensile", &b.tensile),
+                ("yield", &b.yield_strength),
+                ("endurance", &b.endurance),
+            ] {
+                assert!(!text.is_empty(), "{} {what}: empty", m.id);
+                assert!(!text.contains("memory"), "{} {what}: {text}", m.id);
+            }
+            for text in [&b.tensile, &b.yield_strength, &b.endurance] {
+                assert!(text.contains("confirm"), "{}: {text}", m.id);
+            }
+        }
     }
 
     #[test]
@@ -116,15 +150,16 @@ mod tests {
         let m = custom("my strip", 200.0, 0.3, 1500.0, 1300.0, 500.0);
         assert_eq!(m.name, "my strip");
         assert_eq!(m.tensile_strength_mpa, 1500.0);
-        let s = &m.sources;
-        for source in [
-            &s.modulus,
-            &s.poisson,
-            &s.tensile,
-            &s.yield_strength,
-            &s.endurance,
-        ] {
-            assert_eq!(source, USER_ENTRY);
+        for s in [&m.sources, &m.basis] {
+            for source in [
+                &s.modulus,
+                &s.poisson,
+                &s.tensile,
+                &s.yield_strength,
+                &s.endurance,
+            ] {
+                assert_eq!(source, USER_ENTRY);
+            }
         }
     }
 }

@@ -6,11 +6,9 @@
 //! names say. Inside, the strip solver works nondimensionally (`crate::elastica`); this
 //! module is the one place that converts.
 
-use std::f64::consts::PI;
-
 use serde::Serialize;
 
-use crate::design::{Actuator, Design, DesignError, MaterialChoice, Stiffness};
+use crate::design::{Design, DesignError, MaterialChoice, Stiffness};
 use crate::elastica::{
     self, LimitReason, Overlap, Path, PathError, Phase, StripState, StrokeQuery,
 };
@@ -402,80 +400,29 @@ impl Segment {
 
     /// The actuator's maximum stroke, mm.
     pub fn max_stroke_mm(&self) -> f64 {
-        match self.design.actuator {
-            Actuator::Direct { max_stroke_mm, .. } => max_stroke_mm,
-            Actuator::Spool {
-                radius_mm,
-                max_angle_deg,
-                ..
-            } => radius_mm * max_angle_deg.to_radians(),
-            Actuator::LeadScrew {
-                lead_mm, max_turns, ..
-            } => lead_mm * max_turns,
-        }
+        self.design.actuator.max_stroke_mm()
     }
 
     /// The largest pull on the plates the actuator can give, N.
     pub fn max_pull_n(&self) -> f64 {
-        match self.design.actuator {
-            Actuator::Direct { max_force_n, .. } => max_force_n,
-            Actuator::Spool {
-                radius_mm,
-                max_torque_nm,
-                ..
-            } => max_torque_nm / (radius_mm * 1e-3),
-            Actuator::LeadScrew {
-                lead_mm,
-                efficiency,
-                max_torque_nm,
-                ..
-            } => max_torque_nm * 2.0 * PI * efficiency / (lead_mm * 1e-3),
-        }
+        self.design.actuator.max_pull_n()
     }
 
     /// Actuator position and effort for a stroke and plate pull.
     pub fn actuator_reading(&self, stroke_mm: f64, pull_n: f64) -> ActuatorReading {
-        match self.design.actuator {
-            Actuator::Direct { .. } => ActuatorReading {
-                position: stroke_mm,
-                position_unit: "mm",
-                effort: pull_n,
-                effort_unit: "N",
-            },
-            Actuator::Spool { radius_mm, .. } => ActuatorReading {
-                position: (stroke_mm / radius_mm).to_degrees(),
-                position_unit: "deg",
-                effort: pull_n * radius_mm * 1e-3,
-                effort_unit: "N m",
-            },
-            Actuator::LeadScrew {
-                lead_mm,
-                efficiency,
-                ..
-            } => ActuatorReading {
-                position: stroke_mm / lead_mm,
-                position_unit: "turns",
-                effort: pull_n * lead_mm * 1e-3 / (2.0 * PI * efficiency),
-                effort_unit: "N m",
-            },
-        }
+        self.design.actuator.reading(stroke_mm, pull_n)
     }
 
     /// The actuator's rating in its own effort unit (N or N m).
     pub fn actuator_effort_rating(&self) -> f64 {
-        match self.design.actuator {
-            Actuator::Direct { max_force_n, .. } => max_force_n,
-            Actuator::Spool { max_torque_nm, .. } | Actuator::LeadScrew { max_torque_nm, .. } => {
-                max_torque_nm
-            }
-        }
+        self.design.actuator.effort_rating()
     }
 
     /// Contact force per strip that gives the required holding force times the safety
     /// factor, N.
     pub fn required_contact_per_strip_n(&self) -> f64 {
         let d = &self.design;
-        d.duty.holding_force_n * d.duty.safety_factor / (d.friction * self.count())
+        self.required_holding_force_n() / (d.friction * self.count())
     }
 
     /// Peak stress that makes the static or the fatigue factor of safety 1, MPa.

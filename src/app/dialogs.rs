@@ -605,7 +605,7 @@ fn request_pngs(
 }
 
 /// The part of a screenshot under `rect` (in points) as PNG bytes; `None` when the rect
-/// lies outside the image.
+/// lies outside the image or the encoder refuses the pixels.
 fn crop_png(image: &egui::ColorImage, rect: egui::Rect, ppp: f32) -> Option<Vec<u8>> {
     let [w, h] = image.size;
     let px = |v: f32, limit: usize| ((v * ppp).max(0.0) as usize).min(limit);
@@ -620,7 +620,7 @@ fn crop_png(image: &egui::ColorImage, rect: egui::Rect, ppp: f32) -> Option<Vec<
             rgba.extend_from_slice(&p.to_array());
         }
     }
-    Some(export::png_rgba((x1 - x0) as u32, (y1 - y0) as u32, &rgba))
+    export::png_rgba((x1 - x0) as u32, (y1 - y0) as u32, &rgba).ok()
 }
 
 fn print_window(app: &mut GripApp, ctx: &Context) {

@@ -4,7 +4,7 @@
 //! check stands in the way. A scan over the variable's range with the cheap
 //! [`checks::run`], then bisection at the holding boundary. No GUI types.
 
-use crate::checks::{self, Check};
+use crate::checks::{self, Check, CheckId};
 use crate::design::Design;
 use crate::segment::Segment;
 
@@ -143,11 +143,11 @@ impl Sample {
     fn all_pass(&self) -> bool {
         self.checks.as_deref().is_some_and(checks::all_pass)
     }
-    fn check(&self, id: &str) -> Option<&Check> {
+    fn check(&self, id: CheckId) -> Option<&Check> {
         self.checks.as_ref()?.iter().find(|c| c.id == id)
     }
     fn holds(&self) -> bool {
-        self.check("hold").is_some_and(|c| c.pass)
+        self.check(CheckId::Hold).is_some_and(|c| c.pass)
     }
 }
 
@@ -178,7 +178,7 @@ pub fn fit(design: &Design, var: FitVar) -> FitOutcome {
     let samples: Vec<Sample> = values.iter().map(|&v| Sample::at(var, design, v)).collect();
     // The passing sample nearest the holding boundary: least holding margin.
     let hold_margin = |s: &Sample| {
-        s.check("hold")
+        s.check(CheckId::Hold)
             .and_then(|c| c.margin)
             .unwrap_or(f64::INFINITY)
     };
@@ -214,7 +214,7 @@ pub fn fit(design: &Design, var: FitVar) -> FitOutcome {
     FitOutcome::Found {
         value: var.get(&fitted),
         design: Box::new(fitted),
-        hold_margin: s.check("hold").and_then(|c| c.margin),
+        hold_margin: s.check(CheckId::Hold).and_then(|c| c.margin),
     }
 }
 
@@ -224,7 +224,7 @@ fn blocked(var: FitVar, samples: &[Sample], lo: f64, hi: f64) -> FitOutcome {
     if holding.is_empty() {
         let best = samples
             .iter()
-            .filter_map(|s| s.check("hold").map(|c| (s.value, c)))
+            .filter_map(|s| s.check(CheckId::Hold).map(|c| (s.value, c)))
             .filter(|(_, c)| c.margin.is_some())
             .max_by(|a, b| {
                 a.1.margin
@@ -241,26 +241,22 @@ fn blocked(var: FitVar, samples: &[Sample], lo: f64, hi: f64) -> FitOutcome {
         ));
     }
     // Where holding is met, name the check that fails most often.
-    let mut tally: Vec<(&str, &str, usize, String)> = Vec::new();
+    let mut tally: Vec<(CheckId, usize, String)> = Vec::new();
     for s in &holding {
         for c in s.checks.iter().flatten().filter(|c| !c.pass) {
             match tally.iter_mut().find(|t| t.0 == c.id) {
-                Some(t) => t.2 += 1,
-                None => tally.push((
-                    c.id,
-                    c.title,
-                    1,
-                    format!("at {:.4} {unit}: {}", s.value, c.reason),
-                )),
+                Some(t) => t.1 += 1,
+                None => tally.push((c.id, 1, format!("at {:.4} {unit}: {}", s.value, c.reason))),
             }
         }
     }
-    tally.sort_by_key(|t| std::cmp::Reverse(t.2));
+    tally.sort_by_key(|t| std::cmp::Reverse(t.1));
     let (from, to) = (holding[0].value, holding[holding.len() - 1].value);
     match tally.first() {
-        Some((_, title, _, example)) => FitOutcome::Blocked(format!(
-            "The load is held for {} from {from:.4} to {to:.4} {unit}, but there the check \"{title}\" fails ({example}).",
-            var.label()
+        Some((id, _, example)) => FitOutcome::Blocked(format!(
+            "The load is held for {} from {from:.4} to {to:.4} {unit}, but there the check \"{}\" fails ({example}).",
+            var.label(),
+            id.title()
         )),
         None => FitOutcome::Blocked(format!("No sampled {} passes every check.", var.label())),
     }

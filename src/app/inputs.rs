@@ -25,6 +25,8 @@ struct Row<'a> {
     hi: f64,
     log: bool,
     integer: bool,
+    /// Smallest positive value of a logarithmic slider that starts at 0.
+    smallest: Option<f64>,
 }
 
 impl<'a> Row<'a> {
@@ -45,10 +47,17 @@ impl<'a> Row<'a> {
             hi,
             log: false,
             integer: false,
+            smallest: None,
         }
     }
     fn log(mut self) -> Self {
         self.log = true;
+        self
+    }
+    /// A logarithmic slider from 0 whose first positive step is `v`.
+    fn log_from(mut self, v: f64) -> Self {
+        self.log = true;
+        self.smallest = Some(v);
         self
     }
     fn integer(mut self) -> Self {
@@ -167,6 +176,50 @@ pub fn fmt_value(v: f64) -> String {
 /// Width of the label column of the numeric rows, points.
 const LABEL_WIDTH: f32 = 118.0;
 
+/// The slider's span: the field's allowed range (the same range the typed field and the
+/// file accept), except where that range spans more than four decades (actuator ratings:
+/// a millionth to a billion), where the row's own useful span is used, widened to show
+/// the current value. Rows without a limit keep their own span.
+fn slider_span(
+    row: &Row<'_>,
+    limit: Option<&design::FieldLimit>,
+    d: &Design,
+    value: f64,
+) -> (f64, f64) {
+    let Some(l) = limit else {
+        return (row.lo, row.hi);
+    };
+    let (lo, hi) = (l.min, l.max_for(d));
+    let decades = (hi / lo.max(row.lo).max(f64::MIN_POSITIVE)).log10();
+    if row.log && decades > 4.0 {
+        let lo = row.lo.max(lo).min(value.max(lo));
+        let hi = row.hi.min(hi).max(value.min(hi));
+        (lo, hi)
+    } else {
+        (lo, hi)
+    }
+}
+
+/// An error line under a grid row, in plain words, wrapped to the panel's width. It takes
+/// no width in the grid (it is painted from the label column to the panel's edge), so a
+/// long message never pushes the sliders and fields to the right.
+fn error_line_ui(ui: &mut Ui, left: f32, text: &str) {
+    let right = ui.clip_rect().right() - 6.0;
+    let font = egui::TextStyle::Small.resolve(ui.style());
+    let galley = ui.painter().layout(
+        text.to_string(),
+        font,
+        error_color(ui),
+        (right - left).max(120.0),
+    );
+    let (rect, resp) =
+        ui.allocate_exact_size(egui::vec2(0.0, galley.size().y), egui::Sense::hover());
+    ui.painter()
+        .galley(egui::pos2(left, rect.top()), galley, error_color(ui));
+    // The accessibility tree and tests read the message as a label.
+    resp.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Label, true, text));
+}
+
 /// The plausible range of a field for this design, in words that say which ends are
 /// allowed ("0.02 to 5 mm", "from 1e-6, less than 1e9 N"): the same text as every error
 /// message ([`design::FieldLimit::range_text`]).
@@ -250,12 +303,13 @@ impl InputsPanel {
             .on_hover_text(&tip);
         // Slider.
         let mut v = value;
-        let mut slider = egui::Slider::new(&mut v, row.lo..=row.hi)
+        let (lo, hi) = slider_span(&row, limit, d, value);
+        let mut slider = egui::Slider::new(&mut v, lo..=hi)
             .show_value(false)
             .clamping(egui::SliderClamping::Never)
             .logarithmic(row.log);
-        if row.log && row.lo <= 0.0 {
-            slider = slider.smallest_positive(row.hi * 1e-4);
+        if row.log && lo <= 0.0 {
+            slider = slider.smallest_positive(row.smallest.unwrap_or(hi * 1e-4));
         }
         if row.integer {
             slider = slider.integer();
@@ -268,7 +322,7 @@ impl InputsPanel {
                 Gesture::Done
             };
             self.take_gesture(row.key, out);
-            let _ = self.propose(d, row.key, v, row.integer, gesture, out, &set);
+            let _ = self.propose(d, row, v, gesture, out, &set);
             self.typed.remove(row.key);
         }
         if resp.drag_stopped() {
@@ -296,7 +350,7 @@ impl InputsPanel {
             self.take_gesture(row.key, out);
             match text.trim().parse::<f64>() {
                 Ok(x) => {
-                    if self.propose(d, row.key, x, row.integer, Gesture::Ongoing, out, &set)
+                    if self.propose(d, row, x, Gesture::Ongoing, out, &set)
                         && let Some(t) = self.typed.get_mut(row.key)
                     {
                         // The text now stands for the new value; an undo that brings
@@ -310,7 +364,7 @@ impl InputsPanel {
                         .unwrap_or_default();
                     self.errors.insert(
                         row.key,
-                        format!("{}: {:?} is not a number{allowed}", row.key, text.trim()),
+                        format!("{} {:?} is not a number{allowed}", row.label, text.trim()),
                     );
                 }
             }
@@ -327,12 +381,8 @@ impl InputsPanel {
         }
         ui.end_row();
         if let Some(err) = self.errors.get(row.key) {
-            ui.label("");
-            ui.label(
-                RichText::new(format!("{err}; kept {} {}", fmt_value(value), row.unit))
-                    .color(error_color(ui))
-                    .small(),
-            );
+            let kept = format!("{err}; kept {} {}", fmt_value(value), row.unit);
+            error_line_ui(ui, label.rect.left(), kept.trim_end());
             ui.end_row();
         }
     }
@@ -360,20 +410,23 @@ impl InputsPanel {
         self.active = Some(key);
     }
 
-    #[allow(clippy::too_many_arguments)]
+    /// Applies `v` to a copy of the design and records the edit when the copy validates;
+    /// otherwise keeps the design and records, in the row's own words, what was refused.
     fn propose(
         &mut self,
         d: &Design,
-        key: &'static str,
+        row: Row<'_>,
         v: f64,
-        integer: bool,
         gesture: Gesture,
         out: &mut Vec<Command>,
         set: &impl Fn(&mut Design, f64),
     ) -> bool {
-        if integer && v.fract() != 0.0 {
-            self.errors
-                .insert(key, format!("{key}: {v} is not a whole number"));
+        let key = row.key;
+        if row.integer && v.fract() != 0.0 {
+            self.errors.insert(
+                key,
+                format!("{} {} is not a whole number", row.label, fmt_value(v)),
+            );
             return false;
         }
         let mut next = d.clone();
@@ -385,7 +438,18 @@ impl InputsPanel {
                 true
             }
             Err(e) => {
-                self.errors.insert(key, e.to_string());
+                let words = match design::limit(key) {
+                    Some(l) if !l.admits(v, l.max_for(&next)) => format!(
+                        "{} {} {} is outside {}",
+                        row.label,
+                        fmt_value(v),
+                        row.unit,
+                        allowed(l, &next)
+                    )
+                    .replace("  ", " "),
+                    _ => e.to_string(),
+                };
+                self.errors.insert(key, words);
                 false
             }
         }
@@ -415,7 +479,7 @@ impl InputsPanel {
                     "strip.count",
                     "Strips",
                     "strips",
-                    2.0,
+                    3.0,
                     64.0,
                     "Number of identical strips around the hub; they share the load equally.",
                 )
@@ -426,9 +490,9 @@ impl InputsPanel {
             );
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
-                (Row::new("strip.free_length_mm", "Free length", "mm", 5.0, 1000.0, "Strip length between the end-plate clamps or hinges.").log(), |d| Some(&mut d.strip.free_length_mm)),
-                (Row::new("strip.width_mm", "Width", "mm", 0.2, 100.0, "Strip width, tangential to the hub.").log(), |d| Some(&mut d.strip.width_mm)),
-                (Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 3.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), |d| Some(&mut d.strip.thickness_mm)),
+                (Row::new("strip.free_length_mm", "Free length", "mm", 5.0, 2000.0, "Strip length between the end-plate clamps or hinges.").log(), |d| Some(&mut d.strip.free_length_mm)),
+                (Row::new("strip.width_mm", "Width", "mm", 0.2, 200.0, "Strip width, tangential to the hub.").log(), |d| Some(&mut d.strip.width_mm)),
+                (Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 5.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), |d| Some(&mut d.strip.thickness_mm)),
             ];
             self.rows(ui, d, out, rows);
         });
@@ -505,12 +569,12 @@ impl InputsPanel {
                         .small(),
                     )
                     .on_hover_text(format!(
-                        "Sources:\nmodulus: {}\nPoisson: {}\ntensile: {}\nyield: {}\nendurance: {}",
-                        m.sources.modulus,
-                        m.sources.poisson,
-                        m.sources.tensile,
-                        m.sources.yield_strength,
-                        m.sources.endurance
+                        "Basis of each value:\nmodulus: {}\nPoisson: {}\ntensile: {}\nyield: {}\nendurance: {}",
+                        m.basis.modulus,
+                        m.basis.poisson,
+                        m.basis.tensile,
+                        m.basis.yield_strength,
+                        m.basis.endurance
                     ));
                 }
             }
@@ -721,8 +785,8 @@ impl InputsPanel {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("bore.diameter_mm", "Bore diameter", "mm", 2.0, 2000.0, "Nominal inside diameter the segment grips.").log(), |d| d.bore.pipe.is_none().then_some(&mut d.bore.diameter_mm)),
-                (Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore."), |d| Some(&mut d.bore.minus_mm)),
-                (Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore."), |d| Some(&mut d.bore.plus_mm)),
+                (Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.minus_mm)),
+                (Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.plus_mm)),
             ];
             self.rows(ui, d, out, rows);
         });

@@ -15,7 +15,6 @@ use egui_plot::{Line, MarkerShape, Plot, PlotImage, PlotPoint, PlotPoints, PlotT
 
 use super::inputs::{error_color, fmt_value};
 use super::{Command, Gesture, GripApp};
-use crate::checks::MarginUnit;
 use crate::design::Design;
 use crate::map::palette::{self, Rgb};
 use crate::map::{self, AxisSpec, Cell, DesignMap, MapError, MapSpec};
@@ -636,11 +635,10 @@ fn cell_ui(ui: &mut Ui, cell: &Cell, approximate: bool) {
         for c in &cell.checks {
             ui.label(c.id);
             ui.label(if c.pass { "pass" } else { "FAIL" });
-            ui.label(match (c.margin, c.unit) {
-                (None, _) => "no margin (no state to judge)".to_string(),
-                (Some(m), MarginUnit::Mm) => format!("margin {m:+.3} mm"),
-                (Some(m), MarginUnit::Ratio) => format!("margin {m:+.3} ({:+.1} %)", 100.0 * m),
-            });
+            ui.label(c.margin.and_then(|m| c.unit.margin_text(m)).map_or_else(
+                || "no margin (no state to judge)".to_string(),
+                |t| format!("margin {t}"),
+            ));
             ui.end_row();
         }
     });

@@ -757,6 +757,40 @@ impl GripApp {
         }
     }
 
+    /// Keeps the window's current place in the session (in memory; it is written with the
+    /// session when the app closes), so the next start opens where this one was.
+    pub fn note_window_place(&mut self, ctx: &egui::Context) {
+        let (outer, inner) = ctx.input(|i| (i.viewport().outer_rect, i.viewport().inner_rect));
+        let (Some(outer), Some(inner)) = (outer, inner) else {
+            return;
+        };
+        let place = state::WindowPlace {
+            x: outer.min.x,
+            y: outer.min.y,
+            width: inner.width(),
+            height: inner.height(),
+        };
+        if place.plausible().is_some() {
+            self.session.window = Some(place);
+        }
+    }
+
+    /// The window to open: the last session's place when it is plausible, else the default
+    /// size, placed by the system.
+    pub fn initial_viewport(&self) -> egui::ViewportBuilder {
+        let builder = egui::ViewportBuilder::default()
+            .with_title(self.title())
+            .with_min_inner_size(state::WindowPlace::MIN_SIZE)
+            .with_app_id(APP_ID)
+            .with_icon(std::sync::Arc::new(window_icon()));
+        match self.session.window.and_then(state::WindowPlace::plausible) {
+            Some(p) => builder
+                .with_inner_size([p.width, p.height])
+                .with_position([p.x, p.y]),
+            None => builder.with_inner_size([1500.0, 940.0]),
+        }
+    }
+
     /// Called when the app closes normally: keeps the session and, when nothing is
     /// unsaved (or the user chose to discard it), removes this instance's own recovery
     /// copy. A dead instance's copy that was not answered stays for the next start.
@@ -811,6 +845,7 @@ struct EframeApp(GripApp);
 impl eframe::App for EframeApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.0.ui(ui);
+        self.0.note_window_place(ui.ctx());
         if self.0.dialogs.quit_requested {
             self.0.dialogs.quit_requested = false;
             ui.ctx().send_viewport_cmd(egui::ViewportCommand::Close);
@@ -873,14 +908,8 @@ pub fn window_icon() -> egui::IconData {
 /// Opens the app on `file`, or on the last session's file, or on the built-in demo.
 pub fn run(file: Option<PathBuf>) -> anyhow::Result<()> {
     let app = GripApp::new(state::default_state_dir(), file).with_system_dialogs(true);
-    let title = app.title();
     let options = eframe::NativeOptions {
-        viewport: egui::ViewportBuilder::default()
-            .with_title(title)
-            .with_inner_size([1500.0, 940.0])
-            .with_min_inner_size([900.0, 600.0])
-            .with_app_id(APP_ID)
-            .with_icon(std::sync::Arc::new(window_icon())),
+        viewport: app.initial_viewport(),
         ..Default::default()
     };
     eframe::run_native(

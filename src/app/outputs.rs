@@ -13,7 +13,6 @@ use super::GripApp;
 use super::export::SvgSeries;
 use super::inputs::error_color;
 use crate::analysis::{Analysis, BoreCase};
-use crate::checks::MarginUnit;
 use crate::segment::SegmentState;
 
 /// A curve of a plot: legend name, colour, and its runs (a missing value breaks a run).
@@ -121,14 +120,6 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
     )
 }
 
-fn fmt_margin(m: Option<f64>, unit: MarginUnit) -> String {
-    match (m, unit) {
-        (None, _) => "no margin (no state to judge)".to_string(),
-        (Some(m), MarginUnit::Mm) => format!("margin {m:+.3} mm"),
-        (Some(m), MarginUnit::Ratio) => format!("margin {m:+.3} ({:+.1} %)", 100.0 * m),
-    }
-}
-
 /// The right panel: checks, the operating state, cautions.
 pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
@@ -142,7 +133,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let failed = a.checks.iter().filter(|c| !c.pass).count();
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
-        ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one, or mm.").small());
+        ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
         let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
         let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
@@ -158,14 +149,14 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 egui::Frame::NONE.inner_margin(4.0)
             };
             frame.show(ui, |ui| {
-                let head = format!("{mark} {}{}", c.title, if limiting { "   [limiting]" } else { "" });
+                let head = format!("{mark} {}{}", c.title(), if limiting { "   [limiting]" } else { "" });
                 let where_ = match (c.bore_mm, c.stroke_mm) {
                     (Some(b), Some(s)) => format!("judged at bore {b:.3} mm, stroke {s:.3} mm"),
                     (Some(b), None) => format!("judged at bore {b:.3} mm"),
                     (None, _) => "judged on the hub at rest".to_string(),
                 };
                 ui.label(RichText::new(head).color(col).strong()).on_hover_text(where_);
-                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, fmt_margin(c.margin, c.unit)));
+                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, c.margin_text().map_or_else(|| "no margin (no state to judge)".to_string(), |m| format!("margin {m}"))));
                 ui.label(RichText::new(&c.reason).small());
             });
         }
@@ -234,7 +225,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     let plot_h = cell.y - 20.0;
     let window = window_curves(a);
     let forces = force_curves(a);
-    let need = seg.design.duty.holding_force_n * seg.design.duty.safety_factor;
+    let need = seg.required_holding_force_n();
     let travel = Marker {
         name: "actuator max travel",
         value: seg.max_stroke_mm(),

@@ -19,7 +19,9 @@ use super::{Command, Gesture, GripApp};
 use crate::checks::MarginUnit;
 use crate::design::Design;
 use crate::map::palette;
-use crate::scatter::command::{distribution_words, margin_text, percent, sensitivities_of};
+use crate::scatter::command::{
+    distribution_words, margin_text, percent, sd_text, sensitivities_of,
+};
 use crate::scatter::{self, Control, DistributionKind, ScatterError, ScatterReport, ScatterSpec};
 
 /// How often the window looks for news while a run goes on.
@@ -228,114 +230,112 @@ impl ScatterView {
 
 /// The sensitivities of one check (picked in a list) as a sorted bar chart.
 fn sensitivity_ui(ui: &mut Ui, r: &ScatterReport, chart_check: &mut Option<&'static str>) {
-    {
-        ui.label(RichText::new("Sensitivities").strong()).on_hover_text(
+    ui.label(RichText::new("Sensitivities").strong()).on_hover_text(
             "Each tolerance alone at the low and the high end of its range (every strip together): the change of the check's margin from its centre value.",
         );
-        let picked = chart_check
-            .filter(|id| r.checks.iter().any(|c| c.id == *id))
-            .or_else(|| {
-                // The check with the smallest median margin among the ratio checks, else the first.
-                r.checks
-                    .iter()
-                    .filter(|c| c.unit == MarginUnit::Ratio)
-                    .min_by(|a, b| {
-                        a.margin_p50
-                            .unwrap_or(f64::INFINITY)
-                            .total_cmp(&b.margin_p50.unwrap_or(f64::INFINITY))
-                    })
-                    .or(r.checks.first())
-                    .map(|c| c.id)
-            });
-        let Some(id) = picked else { return };
-        let label = ui.label("Check");
-        egui::ComboBox::from_id_salt("scatter-sensitivity-check")
-            .selected_text(id)
-            .show_ui(ui, |ui| {
-                for c in &r.checks {
-                    if ui.selectable_label(c.id == id, c.id).clicked() {
-                        *chart_check = Some(c.id);
-                    }
+    let picked = chart_check
+        .filter(|id| r.checks.iter().any(|c| c.id == *id))
+        .or_else(|| {
+            // The check with the smallest median margin among the ratio checks, else the first.
+            r.checks
+                .iter()
+                .filter(|c| c.unit == MarginUnit::Ratio)
+                .min_by(|a, b| {
+                    a.margin_p50
+                        .unwrap_or(f64::INFINITY)
+                        .total_cmp(&b.margin_p50.unwrap_or(f64::INFINITY))
+                })
+                .or(r.checks.first())
+                .map(|c| c.id)
+        });
+    let Some(id) = picked else { return };
+    let label = ui.label("Check");
+    egui::ComboBox::from_id_salt("scatter-sensitivity-check")
+        .selected_text(id)
+        .show_ui(ui, |ui| {
+            for c in &r.checks {
+                if ui.selectable_label(c.id == id, c.id).clicked() {
+                    *chart_check = Some(c.id);
                 }
-            })
-            .response
-            .labelled_by(label.id)
-            .on_hover_text("The check whose margin the bars show");
-        let unit = r
-            .checks
-            .iter()
-            .find(|c| c.id == id)
-            .map_or(MarginUnit::Ratio, |c| c.unit);
-        let centre = r
-            .checks
-            .iter()
-            .find(|c| c.id == id)
-            .and_then(|c| c.centre.margin);
-        let list = sensitivities_of(r, id);
-        if list.is_empty() {
-            ui.label("No tolerance moves this check's margin.");
-            return;
-        }
-        let Some(centre) = centre else { return };
-        let n = list.len();
-        let mut low = Vec::new();
-        let mut high = Vec::new();
-        let mut names = Vec::new();
-        for (k, s) in list.iter().enumerate() {
-            // Largest effect at the top.
-            let at = (n - 1 - k) as f64;
-            names.push((at, s.input));
-            if let Some(m) = s.margin_low {
-                low.push(Bar::new(at + 0.18, m - centre).width(0.34).name(format!(
-                    "{} low end: margin {}",
-                    s.input,
-                    margin_text(Some(m), unit)
-                )));
             }
-            if let Some(m) = s.margin_high {
-                high.push(Bar::new(at - 0.18, m - centre).width(0.34).name(format!(
-                    "{} high end: margin {}",
-                    s.input,
-                    margin_text(Some(m), unit)
-                )));
-            }
+        })
+        .response
+        .labelled_by(label.id)
+        .on_hover_text("The check whose margin the bars show");
+    let unit = r
+        .checks
+        .iter()
+        .find(|c| c.id == id)
+        .map_or(MarginUnit::Ratio, |c| c.unit);
+    let centre = r
+        .checks
+        .iter()
+        .find(|c| c.id == id)
+        .and_then(|c| c.centre.margin);
+    let list = sensitivities_of(r, id);
+    if list.is_empty() {
+        ui.label("No tolerance moves this check's margin.");
+        return;
+    }
+    let Some(centre) = centre else { return };
+    let n = list.len();
+    let mut low = Vec::new();
+    let mut high = Vec::new();
+    let mut names = Vec::new();
+    for (k, s) in list.iter().enumerate() {
+        // Largest effect at the top.
+        let at = (n - 1 - k) as f64;
+        names.push((at, s.input));
+        if let Some(m) = s.margin_low {
+            low.push(Bar::new(at + 0.18, m - centre).width(0.34).name(format!(
+                "{} low end: margin {}",
+                s.input,
+                margin_text(Some(m), unit)
+            )));
         }
-        let unit_words = match unit {
-            MarginUnit::Mm => "change of margin, mm",
-            MarginUnit::Ratio => "change of margin (ratio)",
-        };
-        let names_for_axis = names.clone();
-        Plot::new("scatter-sensitivities")
-            .height(200.0)
-            .allow_drag(false)
-            .allow_zoom(false)
-            .allow_scroll(false)
-            .allow_boxed_zoom(false)
-            .x_axis_label(unit_words)
-            .y_axis_formatter(move |mark, _| {
-                names_for_axis
-                    .iter()
-                    .find(|(at, _)| (mark.value - at).abs() < 1e-6)
-                    .map_or(String::new(), |(_, name)| (*name).to_string())
-            })
-            .y_axis_min_width(90.0)
-            .show(ui, |p| {
-                p.add(
-                    BarChart::new("low end of the tolerance", low)
-                        .horizontal()
-                        .color(Color32::from_rgb(86, 180, 233)),
-                );
-                p.add(
-                    BarChart::new("high end of the tolerance", high)
-                        .horizontal()
-                        .color(Color32::from_rgb(213, 94, 0)),
-                );
-            });
-        ui.label(
+        if let Some(m) = s.margin_high {
+            high.push(Bar::new(at - 0.18, m - centre).width(0.34).name(format!(
+                "{} high end: margin {}",
+                s.input,
+                margin_text(Some(m), unit)
+            )));
+        }
+    }
+    let unit_words = match unit {
+        MarginUnit::Mm => "change of margin, mm",
+        MarginUnit::Ratio => "change of margin (ratio)",
+    };
+    let names_for_axis = names.clone();
+    Plot::new("scatter-sensitivities")
+        .height(200.0)
+        .allow_drag(false)
+        .allow_zoom(false)
+        .allow_scroll(false)
+        .allow_boxed_zoom(false)
+        .x_axis_label(unit_words)
+        .y_axis_formatter(move |mark, _| {
+            names_for_axis
+                .iter()
+                .find(|(at, _)| (mark.value - at).abs() < 1e-6)
+                .map_or(String::new(), |(_, name)| (*name).to_string())
+        })
+        .y_axis_min_width(90.0)
+        .show(ui, |p| {
+            p.add(
+                BarChart::new("low end of the tolerance", low)
+                    .horizontal()
+                    .color(Color32::from_rgb(86, 180, 233)),
+            );
+            p.add(
+                BarChart::new("high end of the tolerance", high)
+                    .horizontal()
+                    .color(Color32::from_rgb(213, 94, 0)),
+            );
+        });
+    ui.label(
             RichText::new("Upper bar of each pair (sky blue): the tolerance's low end; lower bar (vermillion): its high end. Largest effect at the top.")
                 .small(),
         );
-    }
 }
 
 /// The tolerances of the design's scatter section, edited in place; a design without one
@@ -524,11 +524,7 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
                 ui.label(m(c.margin_p01));
                 ui.label(m(c.margin_p50));
                 ui.label(m(c.margin_p99));
-                let sd = |v: Option<f64>| match (v, c.unit) {
-                    (None, _) => "-".to_string(),
-                    (Some(s), MarginUnit::Mm) => format!("{s:.4} mm"),
-                    (Some(s), MarginUnit::Ratio) => format!("{s:.4}"),
-                };
+                let sd = |v: Option<f64>| sd_text(v, c.unit);
                 ui.label(sd(c.margin_sd_monte_carlo));
                 ui.label(sd(c.margin_sd_propagation));
                 let worst = RichText::new(m(w.outcome.margin));
@@ -541,8 +537,10 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
             }
         });
     ui.label(
-        RichText::new("Margins in mm where shown, else capacity over demand minus one (a ratio).")
-            .small(),
+        RichText::new(
+            "Margins: clearance or stroke in mm, or capacity over demand minus one in per cent.",
+        )
+        .small(),
     );
 }
 

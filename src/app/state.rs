@@ -115,6 +115,40 @@ pub struct Session {
     pub theme: ThemeChoice,
     /// Paper for the sizing sheet.
     pub paper: PaperChoice,
+    /// Where the window was and how large, when the app last closed.
+    pub window: Option<WindowPlace>,
+}
+
+/// The window's outer position and inner size, in logical points (as egui gives them).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct WindowPlace {
+    pub x: f32,
+    pub y: f32,
+    pub width: f32,
+    pub height: f32,
+}
+
+impl WindowPlace {
+    /// Smallest inner size the app opens at, points.
+    pub const MIN_SIZE: [f32; 2] = [900.0, 600.0];
+
+    /// The place when it is plausible for a desktop: finite numbers, a size from the
+    /// minimum to 16,000 points, a position within 16,000 points of the origin (a window
+    /// stored on a screen that has since gone is then still partly placed by the system).
+    /// `None` otherwise, and the app opens at its default size.
+    pub fn plausible(self) -> Option<WindowPlace> {
+        let WindowPlace {
+            x,
+            y,
+            width,
+            height,
+        } = self;
+        let finite = [x, y, width, height].iter().all(|v| v.is_finite());
+        let sized = (Self::MIN_SIZE[0]..=16_000.0).contains(&width)
+            && (Self::MIN_SIZE[1]..=16_000.0).contains(&height);
+        let placed = x.abs() <= 16_000.0 && y.abs() <= 16_000.0;
+        (finite && sized && placed).then_some(self)
+    }
 }
 
 impl Session {
@@ -356,6 +390,42 @@ fn write_state(path: &Path, text: &str) -> io::Result<()> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The window's place survives a store and load; a session file of an earlier version
+    /// (no window) still loads; an implausible place is not used.
+    #[test]
+    fn window_place_round_trips_and_implausible_ones_are_dropped() {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let place = WindowPlace {
+            x: 40.0,
+            y: 30.0,
+            width: 1280.0,
+            height: 720.0,
+        };
+        let s = Session {
+            window: Some(place),
+            ..Session::default()
+        };
+        s.store(dir.path()).expect("stores");
+        assert_eq!(Session::load(dir.path()).window, Some(place));
+        fs::write(dir.path().join(SESSION_FILE), "(recent: [], theme: Dark)").expect("writes");
+        let old = Session::load(dir.path());
+        assert_eq!((old.window, old.theme), (None, ThemeChoice::Dark));
+        assert_eq!(place.plausible(), Some(place));
+        for bad in [
+            WindowPlace {
+                width: 200.0,
+                ..place
+            },
+            WindowPlace {
+                height: f32::NAN,
+                ..place
+            },
+            WindowPlace { x: 1e9, ..place },
+        ] {
+            assert_eq!(bad.plausible(), None, "{bad:?}");
+        }
+    }
 
     #[test]
     fn recent_list_is_most_recent_first_without_repeats() {

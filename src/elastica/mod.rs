@@ -536,10 +536,7 @@ impl Path {
             phi0,
             arc: 0.5,
             axial: q.axial.v * self.scale_force,
-            // The wall only pushes. States are reported up to the limit, which stops where
-            // the contact force returns to zero (`LimitReason::LeavesWall`); a state solved
-            // afresh at that stroke can land a rounding error below zero (-3e-13 N seen).
-            contact: (q.contact.v * self.scale_force).max(0.0),
+            contact: wall_push(q.contact.v, q.axial.v) * self.scale_force,
             crest_height: self.gap,
             flat_length: 0.0,
             kappa_max: q.kappa.v * self.scale_curvature,
@@ -562,6 +559,19 @@ impl Path {
             kappa_max: q.kappa.v * self.scale_curvature,
             energy: q.energy.v * self.scale_force,
         }
+    }
+}
+
+/// The contact force of a point-contact state, with a rounding error below zero read as zero.
+/// The wall only pushes, and states are reported up to the limit, which stops where the
+/// contact force returns to zero (`LimitReason::LeavesWall`); a state solved afresh at that
+/// stroke can land a rounding error below zero (-8e-13 of `B / L^2` seen). Anything more
+/// negative than 1e-9 of the axial force is left as it is, for the tests to catch.
+fn wall_push(contact: f64, axial: f64) -> f64 {
+    if contact < 0.0 && contact >= -1e-9 * axial.abs().max(1.0) {
+        0.0
+    } else {
+        contact
     }
 }
 
@@ -618,5 +628,44 @@ mod tests {
         }
         assert_eq!(LimitReason::LeavesWall.name(), "strips-leave-wall");
         assert_eq!(Phase::SolveFailed.name(), "solve-failed");
+    }
+
+    /// The wall only pushes (physics, no outside source needed): on the gaps near the highest
+    /// free crest where the strips leave the wall, the state at the limit and the strokes
+    /// just short of it report a contact force of at least zero. The first gap is one a
+    /// random design once failed on (-3e-13 N at the limit).
+    #[test]
+    fn no_pulling_wall_at_the_leaves_wall_limit() {
+        let mut seen = 0;
+        let gaps = std::iter::once(0.3936981364611057)
+            .chain((0..=2000).map(|i| 0.37 + 0.035 * f64::from(i) / 2000.0));
+        for gap in gaps {
+            for ends in [Ends::Clamped, Ends::Hinged] {
+                let Ok(path) = Path::new(ends, gap) else {
+                    continue;
+                };
+                let limit = path.limit();
+                if limit.reason != LimitReason::LeavesWall {
+                    continue;
+                }
+                seen += 1;
+                for s in [
+                    limit.stroke,
+                    limit.stroke * (1.0 - 1e-15),
+                    limit.stroke * (1.0 - 1e-12),
+                ] {
+                    let st = path.state(s);
+                    assert!(
+                        st.contact >= 0.0,
+                        "{ends:?} g/L {gap}: {} at {s}",
+                        st.contact
+                    );
+                }
+            }
+        }
+        assert!(
+            seen > 100,
+            "the grid must reach the leaves-the-wall limit ({seen} paths)"
+        );
     }
 }

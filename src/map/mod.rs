@@ -725,17 +725,17 @@ impl Cell {
         Cell {
             x,
             y,
-            limiting: limiting.map(|c| c.id),
+            limiting: limiting.map(|c| c.id.as_str()),
             limiting_margin: limiting.and_then(|c| c.margin),
             pass: checks::all_pass(list),
             checks: list
                 .iter()
                 .map(|c| CellCheck {
-                    id: c.id,
-                    title: c.title,
+                    id: c.id.as_str(),
+                    title: c.title(),
                     pass: c.pass,
                     margin: c.margin,
-                    unit: c.unit,
+                    unit: c.unit(),
                 })
                 .collect(),
         }

@@ -91,12 +91,18 @@ pub fn csv(r: &ScatterReport) -> String {
     t
 }
 
-/// A margin with its unit for the tables: `+0.123 mm`, `+0.412` (ratio), `-` for none.
+/// A margin with its unit, as the checks write it (`+0.125 mm`, `+42.0 %`), `-` for none.
 pub fn margin_text(m: Option<f64>, unit: MarginUnit) -> String {
-    match (m, unit) {
+    m.and_then(|m| unit.margin_text(m))
+        .unwrap_or_else(|| "-".to_string())
+}
+
+/// A standard deviation of a margin with its unit: `0.0123 mm`, `2.13 %`.
+pub fn sd_text(v: Option<f64>, unit: MarginUnit) -> String {
+    match (v, unit) {
         (None, _) => "-".to_string(),
-        (Some(m), MarginUnit::Mm) => format!("{m:+.3} mm"),
-        (Some(m), MarginUnit::Ratio) => format!("{m:+.3}"),
+        (Some(s), MarginUnit::Mm) => format!("{s:.4} mm"),
+        (Some(s), MarginUnit::Ratio) => format!("{:.2} %", 100.0 * s),
     }
 }
 
@@ -192,7 +198,7 @@ fn tables(design: &Design, r: &ScatterReport) -> String {
         "worst case"
     );
     for (c, w) in r.checks.iter().zip(&r.worst_case) {
-        let sd = |v: Option<f64>| v.map_or("-".to_string(), |s| format!("{s:.4}"));
+        let sd = |v: Option<f64>| sd_text(v, c.unit);
         let _ = writeln!(
             t,
             "{:<9} {:>8} {:>24} {:>11} {:>11} {:>11} {:>11} {:>9} {:>9} {:>11}",
@@ -215,7 +221,7 @@ fn tables(design: &Design, r: &ScatterReport) -> String {
     }
     let _ = writeln!(
         t,
-        "margins: mm where the unit says so, else capacity over demand minus one; sd in the margin's unit (MC: Monte Carlo, JCGM 101; prop.: law of propagation, JCGM 100)"
+        "margins: clearance or stroke in mm, or capacity over demand minus one in per cent; sd in the margin's unit (MC: Monte Carlo, JCGM 101; prop.: law of propagation, JCGM 100)"
     );
     let _ = writeln!(t);
     let _ = writeln!(

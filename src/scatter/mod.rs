@@ -552,8 +552,8 @@ mod tests {
             let info: Vec<CheckInfo> = list
                 .iter()
                 .map(|c| CheckInfo {
-                    id: c.id,
-                    unit: c.unit,
+                    id: c.id.as_str(),
+                    unit: c.unit(),
                 })
                 .collect();
             let out: Vec<Outcome> = list.iter().map(Outcome::from).collect();

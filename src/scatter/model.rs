@@ -101,8 +101,8 @@ impl CentredModel {
         let checks = checks::run(&seg)
             .iter()
             .map(|c| CheckInfo {
-                id: c.id,
-                unit: c.unit,
+                id: c.id.as_str(),
+                unit: c.unit(),
             })
             .collect();
         Ok(CentredModel {
@@ -144,14 +144,17 @@ impl CentredModel {
         let seg = self.segment(x, strip)?;
         let list = checks::run(&seg);
         let positional = list.len() == self.checks.len()
-            && list.iter().zip(&self.checks).all(|(c, i)| c.id == i.id);
+            && list
+                .iter()
+                .zip(&self.checks)
+                .all(|(c, i)| c.id.as_str() == i.id);
         Ok(if positional {
             list.iter().map(Outcome::from).collect()
         } else {
             self.checks
                 .iter()
                 .map(|info| {
-                    list.iter().find(|c| c.id == info.id).map_or(
+                    list.iter().find(|c| c.id.as_str() == info.id).map_or(
                         Outcome {
                             pass: false,
                             margin: None,

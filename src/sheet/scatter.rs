@@ -11,7 +11,7 @@ use super::font::Weight;
 use super::sections::section as titled;
 use crate::design::Design;
 use crate::scatter::command::{
-    distribution_words, margin_text, percent, sensitivities_of, tolerance_words,
+    distribution_words, margin_text, percent, sd_text, sensitivities_of, tolerance_words,
 };
 use crate::scatter::{self, ScatterReport, ScatterSpec, Tolerance};
 
@@ -100,7 +100,7 @@ fn table(r: &ScatterReport, width: f32) -> Block {
     y += ROW_PT + 1.0;
     for (c, w) in r.checks.iter().zip(&r.worst_case) {
         let m = |v: Option<f64>| margin_text(v, c.unit);
-        let sd = |v: Option<f64>| v.map_or("-".to_string(), |s| format!("{s:.4}"));
+        let sd = |v: Option<f64>| sd_text(v, c.unit);
         let fails = if c.failures > 0 { RED } else { INK };
         let cells = [
             (c.id.to_string(), INK),
@@ -137,7 +137,7 @@ fn table(r: &ScatterReport, width: f32) -> Block {
         7.0,
         Weight::Regular,
         GREY,
-        "Margins in mm where shown, else capacity over demand minus one. 95 % Wilson: the score interval of the probability of failing (E. B. Wilson, JASA 1927). sd MC: standard deviation over the samples; sd prop.: law of propagation, JCGM 100:2008 section 5, sensitivities by central differences. Worst case: every input at the end of its tolerance in the harmful direction.",
+        "Margins: clearance or stroke in mm, or capacity over demand minus one in per cent. 95 % Wilson: the score interval of the probability of failing (E. B. Wilson, JASA 1927). sd MC: standard deviation over the samples; sd prop.: law of propagation, JCGM 100:2008 section 5, sensitivities by central differences. Worst case: every input at the end of its tolerance in the harmful direction.",
     );
     b.height = y;
     b

@@ -11,7 +11,7 @@ use super::format::{self as f, NONE};
 use super::plot::{Item, Pen, Plot};
 use super::{Section, SheetMeta, fit, fit_start};
 use crate::analysis::{Analysis, BoreCase, BoreResult};
-use crate::checks::{self, MarginUnit};
+use crate::checks::{self, Check};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
 use crate::elastica::Phase;
 use crate::segment::SegmentState;
@@ -301,7 +301,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
     if let Some(i) = a.limiting
         && let Some(c) = a.checks.get(i)
     {
-        let m = margin_text(c.margin, c.unit);
+        let m = margin_text(c);
         y = b.paragraph(
             0.0,
             y,
@@ -311,7 +311,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
             INK,
             &format!(
                 "Limiting check: {} [{}], {}, margin {m}. Reason: {}.",
-                c.title,
+                c.title(),
                 c.id,
                 if c.pass { "passes" } else { "fails" },
                 c.reason
@@ -372,7 +372,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
     if let Some(s) = bore(a, BoreCase::Nominal).and_then(state_of)
         && let (Some(h), Some(p)) = (s.holding_force_n, s.actuator_force_n)
     {
-        let req = d.duty.holding_force_n * d.duty.safety_factor;
+        let req = a.segment.required_holding_force_n();
         let act = s.actuator.map_or(String::new(), |r| {
             format!(", actuator effort {}", f::in_unit(r.effort, r.effort_unit))
         });
@@ -400,17 +400,10 @@ fn summary(a: &Analysis, width: f32) -> Section {
     section("Result", width, vec![b])
 }
 
-fn margin_text(m: Option<f64>, unit: MarginUnit) -> String {
-    match (m, unit) {
-        (None, _) => NONE.to_string(),
-        (Some(v), MarginUnit::Mm) => f::mm(v),
-        (Some(v), MarginUnit::Ratio) => format!(
-            "{} {} ({}%)",
-            f::factor(v),
-            unit.label(),
-            f::fixed(100.0 * v, 1)
-        ),
-    }
+/// A check's margin as [`Check::margin_text`] writes it, with the sheet's true minus sign.
+fn margin_text(c: &Check) -> String {
+    c.margin_text()
+        .map_or_else(|| NONE.to_string(), |m| m.replace('-', "−"))
 }
 
 /// A two-column label/value list.
@@ -572,7 +565,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         pair("Safety factor on holding", f::factor(d.duty.safety_factor)),
         pair(
             "Required holding force",
-            f::newton(d.duty.holding_force_n * d.duty.safety_factor),
+            f::newton(a.segment.required_holding_force_n()),
         ),
         pair("Grip-release cycles", f::count(d.duty.cycles)),
     ]);
@@ -589,7 +582,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
 fn material(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
     let m = &seg.material;
-    let src = &m.sources;
+    let src = &m.basis;
     let gpa = |v: f64| format!("{} GPa", f::sig(v, 4));
     let rows = vec![
         row([
@@ -630,7 +623,7 @@ fn material(a: &Analysis, width: f32) -> Section {
         &format!("{} ({})", m.name, m.id),
     ) - 6.0;
     let t = table(
-        &["Property", "Value", "Source"],
+        &["Property", "Value", "Basis (confirm before release)"],
         &[col(0.27 * width), rcol(0.13 * width), col(0.60 * width)],
         &rows,
         SMALL,
@@ -883,10 +876,10 @@ fn check_table(a: &Analysis, width: f32) -> Section {
             (true, true) => "PASS (limiting)".to_string(),
             (false, true) => "FAIL (limiting)".to_string(),
         };
-        let margin = margin_text(c.margin, c.unit);
+        let margin = margin_text(c);
         let mut r = row([
             (i + 1).to_string(),
-            format!("{} [{}]", c.title, c.id),
+            format!("{} [{}]", c.title(), c.id),
             at,
             margin,
             verdict,
@@ -923,7 +916,7 @@ fn check_table(a: &Analysis, width: f32) -> Section {
         Weight::Regular,
         GREY,
         &format!(
-            "Margins are in the check's own unit: mm for geometry, otherwise capacity over demand minus one (ratio, and in per cent). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
+            "Margins are in the check's own unit: mm for geometry, otherwise capacity over demand minus one, in per cent (+42.0 % is a capacity 1.42 times the demand). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
             if all { "every check passes" } else { "at least one check fails" }
         ),
     );
@@ -1135,7 +1128,7 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
         c.iter().map(|s| (s.stroke_mm, get(s))).collect::<Vec<_>>()
     };
     let x_end = c.last().map_or(1.0, |s| s.stroke_mm).max(op * 1.05);
-    let required = d.duty.holding_force_n * d.duty.safety_factor;
+    let required = a.segment.required_holding_force_n();
     let fmax = finite_max(
         c.iter()
             .flat_map(|s| [s.radial_force_n, s.actuator_force_n, s.holding_force_n])
@@ -1605,7 +1598,7 @@ const REFERENCES: [&str; 7] = [
     "R. G. Budynas and J. K. Nisbett, Shigley's Mechanical Engineering Design: fatigue (S-N approximation, endurance estimate, Goodman line).",
     "ASME B36.10M, Welded and Seamless Wrought Steel Pipe: outside diameters and nominal walls by NPS and schedule.",
     "ASTM A666 (austenitic stainless strip, e.g. AISI 301 tempers) and ASTM A693 (precipitation-hardening stainless strip), as applicable to the grade entered.",
-    "Material values and their sources are listed in the material section; values marked 'from memory' or 'estimate' must be confirmed against the supplier's certificate.",
+    "Material values are typical minimums of the named standard, typical handbook values or estimates, as the material section says beside each; confirm them against the mill certificate or a test before release.",
 ];
 
 const SAFETY: [&str; 6] = [

@@ -7,6 +7,7 @@ use std::path::Path;
 
 use bowgrip::analysis;
 use bowgrip::app::{GripApp, Recovery};
+use bowgrip::checks::CheckId;
 use bowgrip::design::{self, Design};
 use egui::accesskit::Role;
 use egui::{Key, Modifiers};
@@ -23,7 +24,7 @@ fn check_pass(app: &GripApp, id: &str) -> bool {
     let a = app.analysis().unwrap_or_else(|| panic!("no analysis"));
     a.checks
         .iter()
-        .find(|c| c.id == id)
+        .find(|c| c.id.as_str() == id)
         .unwrap_or_else(|| panic!("no {id} check"))
         .pass
 }
@@ -62,15 +63,27 @@ fn inputs_drive_the_checks() {
         "the list shows the failure"
     );
 
-    // A value outside the plausible range is refused with the range, and the design stays.
+    // A value outside the plausible range is refused in plain words with the range (the
+    // file's, design::limits) and the value kept, on a line of its own that moves no
+    // field; a valid value clears it.
+    let field_x = |h: &Harness<'static, GripApp>| {
+        h.get_by_role_and_label(Role::TextInput, "Thickness")
+            .rect()
+            .min
+            .x
+    };
+    let before = field_x(&h);
     h.get_by_role_and_label(Role::TextInput, "Thickness")
         .set_text_value_accesskit("9");
     h.run();
     assert_eq!(h.state().design().strip.thickness_mm, 0.15);
-    assert!(
-        h.query_by_label_contains("outside the allowed range")
-            .is_some()
-    );
+    let said = "Thickness 9 mm is outside 0.02 to 5 mm; kept 0.15 mm";
+    assert!(h.query_by_label_contains(said).is_some(), "{said}");
+    assert_eq!(field_x(&h), before, "the message moved the fields");
+    h.get_by_role_and_label(Role::TextInput, "Thickness")
+        .set_text_value_accesskit("0.15");
+    h.run();
+    assert!(h.query_by_label_contains("is outside").is_none());
 
     // More strips through the slider. The hub check is plane geometry: adjacent strips
     // of width b on a circle of radius r clear each other when b <= 2 r tan(pi/N)
@@ -105,7 +118,7 @@ fn inputs_drive_the_checks() {
     let fit = a
         .checks
         .iter()
-        .find(|c| c.id == "fit")
+        .find(|c| c.id == CheckId::Fit)
         .and_then(|c| c.margin)
         .unwrap_or(f64::NAN);
     assert!(

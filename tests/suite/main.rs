@@ -1,6 +1,7 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod app;
 mod app_map;
+mod app_window;
 mod calibration;
 mod cli;
 mod command_words;

@@ -346,7 +346,7 @@ fn palette_is_the_okabe_ito_set() {
     }
     // Every check of a design has its own colour from the set.
     let seg = Segment::new(&Design::default()).unwrap_or_else(|e| panic!("{e}"));
-    let ids: Vec<&str> = checks::run(&seg).iter().map(|c| c.id).collect();
+    let ids: Vec<&str> = checks::run(&seg).iter().map(|c| c.id.as_str()).collect();
     let colours: Vec<Rgb> = ids.iter().map(|id| palette::check_colour(id)).collect();
     for (id, c) in ids.iter().zip(&colours) {
         assert!(palette::OKABE_ITO.iter().any(|(_, k)| k == c), "{id}");

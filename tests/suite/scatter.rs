@@ -227,7 +227,7 @@ fn zero_tolerances_give_the_nominal_design_in_every_sample() {
     let report = scatter::run(&design, &spec).expect("runs");
     assert_eq!(report.checks.len(), nominal.len());
     for (c, n) in report.checks.iter().zip(&nominal) {
-        assert_eq!(c.id, n.id);
+        assert_eq!(c.id, n.id.as_str());
         assert_eq!(c.failures, if n.pass { 0 } else { 300 });
         if let Some(m) = n.margin {
             assert_eq!([c.margin_p01, c.margin_p50, c.margin_p99], [Some(m); 3]);

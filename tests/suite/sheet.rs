@@ -405,7 +405,11 @@ fn failing_and_no_state_designs_render_and_say_so() {
     let (_, text) = pdf_text(&pdf);
     assert!(text.contains("CHECKS FAIL"), "{text}");
     let a = analyse(&failing).expect("analyses");
-    let fit = a.checks.iter().find(|c| c.id == "fit").expect("fit check");
+    let fit = a
+        .checks
+        .iter()
+        .find(|c| c.id == bowgrip::checks::CheckId::Fit)
+        .expect("fit check");
     assert!(!fit.pass, "the test design must fail the fit check");
 
     let no_state = pick("no-state");
@@ -462,4 +466,24 @@ fn geometry_cautions_reach_the_first_page_and_the_checks() {
     // The default design has none.
     let pdf = sheet::render(&Design::default(), "d.ron", b"d", Paper::A4).expect("renders");
     assert!(!pdf_text(&pdf).1.contains("Geometry caution"));
+}
+
+/// Issue 16, item 6: the material section prints what a checker can act on, never
+/// "from memory": a stainless grade's strengths as the typical minimums of ASTM A666 with
+/// the mill certificate to confirm them against (the honest notes stay in the data file).
+#[test]
+fn material_values_say_their_basis_in_plain_words() {
+    let (d, text) = sample("duct-anchor-150mm-stainless.ron");
+    let pdf = sheet::render(&d, "duct.ron", text.as_bytes(), Paper::A4).expect("renders");
+    let (_, printed) = pdf_text(&pdf);
+    let flat = printed.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(!flat.contains("from memory"), "{flat}");
+    assert!(
+        flat.contains("typical minimum, ASTM A666 type 301 full hard"),
+        "{flat}"
+    );
+    assert!(
+        flat.contains("confirm against the mill certificate"),
+        "{flat}"
+    );
 }
