@@ -431,7 +431,7 @@ impl MapView {
         };
         let (cx, wx) = span(&map.x.values);
         let (cy, wy) = span(&map.y.values);
-        let ink = ui.visuals().text_color();
+        let ink = ui.visuals().strong_text_color();
         let zero = map.zero_line();
         let current = [map.x.current, map.y.current];
         let height = (ui.available_height() - 70.0).max(240.0);
@@ -460,7 +460,7 @@ impl MapView {
                     p.add(
                         Line::new("smallest margin zero", PlotPoints::new(run.clone()))
                             .color(ink)
-                            .width(2.0),
+                            .width(2.5),
                     );
                 }
                 p.add(

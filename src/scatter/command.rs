@@ -109,7 +109,8 @@ pub fn sd_text(v: Option<f64>, unit: MarginUnit) -> String {
 /// A probability in percent with enough digits for small ones.
 pub fn percent(p: f64) -> String {
     let pc = 100.0 * p;
-    if pc == 0.0 {
+    // Below what four decimals show (a Wilson bound of zero failures computes to ~1e-17).
+    if pc < 5e-5 {
         "0 %".to_string()
     } else if pc < 0.1 {
         format!("{pc:.4} %")

@@ -18,7 +18,7 @@ use crate::scatter::{self, ScatterReport, ScatterSpec, Tolerance};
 /// Title of the section.
 pub const TITLE: &str = "Scatter: the shop's tolerances";
 
-const SIZE: f32 = 7.5;
+const SIZE: f32 = 7.0;
 const ROW_PT: f32 = 11.0;
 
 /// The scatter section of `design` with the tolerances `spec`; refused with the run's
@@ -61,16 +61,16 @@ fn intro(spec: &ScatterSpec, r: &ScatterReport, width: f32) -> Block {
 
 /// Column widths as shares of the width, and the heads.
 const HEADS: [(&str, f32); 10] = [
-    ("check", 0.08),
-    ("P(fail)", 0.08),
-    ("95 % Wilson", 0.16),
-    ("nominal", 0.09),
-    ("p01", 0.09),
-    ("p50", 0.09),
-    ("p99", 0.09),
-    ("sd MC", 0.08),
-    ("sd prop.", 0.08),
-    ("worst case", 0.16),
+    ("check", 0.07),
+    ("P(fail)", 0.07),
+    ("95 % Wilson", 0.15),
+    ("nominal", 0.10),
+    ("p01", 0.10),
+    ("p50", 0.10),
+    ("p99", 0.10),
+    ("sd MC", 0.095),
+    ("sd prop.", 0.095),
+    ("worst case", 0.12),
 ];
 
 fn table(r: &ScatterReport, width: f32) -> Block {
