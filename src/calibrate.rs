@@ -401,11 +401,12 @@ pub struct Factors {
 }
 
 impl Factors {
-    /// The design as it stands: modulus factor 1, no offset, its free length and friction.
+    /// The design as it stands: its calibration's modulus factor and stroke offset (1 and
+    /// 0 without one), its free length and friction.
     pub fn nominal(design: &Design) -> Factors {
         Factors {
-            modulus_factor: 1.0,
-            stroke_offset_mm: 0.0,
+            modulus_factor: design.modulus_factor(),
+            stroke_offset_mm: design.stroke_offset_mm(),
             free_length_mm: design.strip.free_length_mm,
             friction: design.friction,
         }
@@ -433,32 +434,46 @@ impl Factors {
 }
 
 /// The range a fitted factor must stay in, inclusive, for a design: modulus factor 0.2 to
-/// 5, stroke offset within a quarter of the free length either way, free length from half
-/// to one and a half times the design's (within the design file's 5 to 2000 mm), friction
-/// 0.01 to 2 (the design file's range). A fit that ends on one of these is refused.
+/// 5 (the design file's range), stroke offset within a quarter of the free length either
+/// way (and within the file's 100 mm), free length from half to one and a half times the
+/// design's (within the file's 5 to 2000 mm), friction 0.01 to 2 (the file's range). A
+/// fit that ends on one of these is refused, so a fitted value can always be applied.
 pub fn bounds(design: &Design, f: Factor) -> (f64, f64) {
     let l = design.strip.free_length_mm;
     match f {
         Factor::Modulus => (0.2, 5.0),
-        Factor::Offset => (-0.25 * l, 0.25 * l),
+        Factor::Offset => {
+            let most = (0.25 * l).min(100.0);
+            (-most, most)
+        }
         Factor::Length => ((0.5 * l).max(5.0), (1.5 * l).min(2000.0)),
         Factor::Friction => (0.01, 2.0),
     }
 }
 
-/// The segment with the factors applied: the design cloned with the free length and the
-/// friction replaced, then resolved by [`Segment::new`], then `modulus_pa` and
-/// `bending_stiffness_nm2` both multiplied by the modulus factor (so `B = E' b t^3 / 12`
-/// still holds with the scaled `E'`; the allowables, which come from strengths, do not
-/// change). The stroke offset is applied by the caller to each stroke.
-pub fn segment_with(design: &Design, factors: &Factors) -> Result<Segment, SegmentError> {
+/// The design with the factors applied, as "apply" writes it: the free length and the
+/// friction replaced, and the modulus factor and stroke offset in its `calibration`
+/// (which stays as it was, `None` included, when they equal the design's own).
+pub fn design_with(design: &Design, factors: &Factors) -> Design {
     let mut d = design.clone();
     d.strip.free_length_mm = factors.free_length_mm;
     d.friction = factors.friction;
-    let mut seg = Segment::new(&d)?;
-    seg.modulus_pa *= factors.modulus_factor;
-    seg.bending_stiffness_nm2 *= factors.modulus_factor;
-    Ok(seg)
+    let own = (design.modulus_factor(), design.stroke_offset_mm());
+    if (factors.modulus_factor, factors.stroke_offset_mm) != own {
+        d.calibration = Some(crate::design::Calibration {
+            modulus_factor: factors.modulus_factor,
+            stroke_offset_mm: factors.stroke_offset_mm,
+        });
+    }
+    d
+}
+
+/// The segment with the factors applied: [`design_with`] resolved by [`Segment::new`],
+/// which multiplies `E` by the modulus factor (so `E'` and `B = E' b t^3 / 12` with it;
+/// the allowables, which come from strengths, do not change). The stroke offset is
+/// applied by the caller to each measured stroke.
+pub fn segment_with(design: &Design, factors: &Factors) -> Result<Segment, SegmentError> {
+    Segment::new(&design_with(design, factors))
 }
 
 // ---------------------------------------------------------------------------------------
@@ -744,6 +759,104 @@ pub fn residuals(
         }
     }
     Ok(out)
+}
+
+/// The model at one stroke, as measured (the model's stroke less the design's offset).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ModelSample {
+    /// Measured stroke, mm.
+    pub stroke_mm: f64,
+    /// Diameter over the strips, mm.
+    pub outer_diameter_mm: Option<f64>,
+    /// Pull on the end plates, N.
+    pub actuator_force_n: Option<f64>,
+    /// Slip force (the holding force), N.
+    pub slip_force_n: Option<f64>,
+}
+
+impl ModelSample {
+    /// The model's value of a measured quantity.
+    pub fn value(&self, q: Quantity) -> Option<f64> {
+        match q {
+            Quantity::OuterDiameter => self.outer_diameter_mm,
+            Quantity::ActuatorForce => self.actuator_force_n,
+            Quantity::SlipForce => self.slip_force_n,
+        }
+    }
+}
+
+/// The model along the measured strokes at one bore of a measurement file.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ModelCurve {
+    /// The bore, mm.
+    pub bore_mm: f64,
+    /// Evenly spaced strokes over the measured ones there (5 % of their span beyond either
+    /// end), within the model's range.
+    pub samples: Vec<ModelSample>,
+}
+
+impl ModelCurve {
+    /// The measured points of `q` at this curve's bore: `(measured stroke, value)`.
+    pub fn measured(
+        &self,
+        design_nominal_mm: f64,
+        data: &BenchData,
+        q: Quantity,
+    ) -> Vec<(f64, f64)> {
+        data.rows
+            .iter()
+            .filter(|r| r.bore_mm.unwrap_or(design_nominal_mm) == self.bore_mm)
+            .filter_map(|r| r.value(q).map(|v| (r.stroke_mm, v)))
+            .collect()
+    }
+}
+
+/// The design's model (with its calibration) at each bore of the file, in the file's
+/// order, over the strokes measured there: for plotting the measurements over the model.
+/// A bore the relaxed segment does not fit has no curve.
+pub fn model_curves(segment: &Segment, data: &BenchData, points: usize) -> Vec<ModelCurve> {
+    let offset = segment.design.stroke_offset_mm();
+    let nominal = segment.bore_nominal_mm;
+    let mut bores: Vec<f64> = Vec::new();
+    for r in &data.rows {
+        let b = r.bore_mm.unwrap_or(nominal);
+        if !bores.contains(&b) {
+            bores.push(b);
+        }
+    }
+    let points = points.max(2);
+    bores
+        .into_iter()
+        .filter_map(|bore_mm| {
+            let path = segment.at_bore(bore_mm).ok()?;
+            let (lo, hi) = data
+                .rows
+                .iter()
+                .filter(|r| r.bore_mm.unwrap_or(nominal) == bore_mm)
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), r| {
+                    (l.min(r.stroke_mm), h.max(r.stroke_mm))
+                });
+            let pad = 0.05 * (hi - lo).max(0.1);
+            let from = (lo - pad + offset).max(0.0);
+            let to = (hi + pad + offset).min(path.limit_stroke_mm());
+            if to.partial_cmp(&from) != Some(std::cmp::Ordering::Greater) {
+                return None;
+            }
+            let samples = (0..points)
+                .map(|i| {
+                    let s = from + (to - from) * i as f64 / (points - 1) as f64;
+                    let st = path.state(s);
+                    ModelSample {
+                        stroke_mm: s - offset,
+                        outer_diameter_mm: st.outer_diameter_mm,
+                        actuator_force_n: st.actuator_force_n,
+                        slip_force_n: st.holding_force_n,
+                    }
+                })
+                .collect();
+            Some(ModelCurve { bore_mm, samples })
+        })
+        .collect()
 }
 
 // ---------------------------------------------------------------------------------------

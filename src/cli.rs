@@ -168,8 +168,12 @@ pub struct SweepArgs {
     #[arg(long, value_name = "N", default_value_t = SWEEP_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Arguments of `bores`.
@@ -188,8 +192,12 @@ pub struct BoresArgs {
     #[arg(long, value_name = "N", default_value_t = BORES_POINTS, value_parser = points, allow_negative_numbers = true)]
     pub points: usize,
     /// Print CSV with a header row instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "json")]
     pub csv: bool,
+    /// JSON instead of the table: an array of objects keyed by the CSV's column names
+    /// (empty cells are null)
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Bores in a `bores` table when `--points` is not given.
@@ -201,8 +209,12 @@ pub struct CheckArgs {
     /// Design file (.ron).
     pub file: PathBuf,
     /// Print one JSON object instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "csv")]
     pub json: bool,
+    /// CSV instead of the table: one row per check (id, pass, margin, unit, bore_mm,
+    /// stroke_mm, reason)
+    #[arg(long)]
+    pub csv: bool,
 }
 
 /// Arguments of `sheet`.
@@ -222,6 +234,13 @@ pub struct SheetArgs {
     /// The design-map page's vertical axis, as `map --y`.
     #[arg(long = "map-y", value_name = "FIELD:FROM:TO:N", requires = "map_x", value_parser = crate::map::command::axis_spec, allow_hyphen_values = true)]
     pub map_y: Option<crate::map::AxisSpec>,
+    /// Bench measurements (CSV): adds a page with them over the model and the residuals.
+    #[arg(long, value_name = "DATA.csv")]
+    pub measured: Option<PathBuf>,
+    /// With `--measured`: factors to fit and print, comma-separated: any of modulus,
+    /// offset, length, friction.
+    #[arg(long, value_name = "FACTORS", value_parser = crate::compare::fit_list, requires = "measured")]
+    pub fit: Option<crate::compare::FitList>,
 }
 
 /// Paper sizes as spelled on the command line.
@@ -790,11 +809,9 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
     let n = a.points;
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
-    if a.csv {
-        writeln!(out, "{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","))?;
-        for s in states {
-            writeln!(out, "{}", sweep_csv_row(&s))?;
-        }
+    if a.csv || a.json {
+        let header = format!("{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","));
+        tabular(&header, states.map(|s| sweep_csv_row(&s)), a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -865,11 +882,9 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let from_mm = a.from_mm.unwrap_or(seg.bore_smallest_mm);
     let to_mm = a.to_mm.unwrap_or(seg.bore_largest_mm);
     let rows = (0..a.points).map(|i| seg.bore_row(spaced(from_mm, to_mm, i, a.points)));
-    if a.csv {
-        writeln!(out, "{}", BORE_ROW_COLUMNS.join(","))?;
-        for r in rows {
-            writeln!(out, "{}", r.csv_line())?;
-        }
+    if a.csv || a.json {
+        let header = BORE_ROW_COLUMNS.join(",");
+        tabular(&header, rows.map(|r| r.csv_line()), a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -920,6 +935,21 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         });
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
+    } else if a.csv {
+        writeln!(out, "{}", CHECK_COLUMNS.join(","))?;
+        for c in &list {
+            writeln!(
+                out,
+                "{},{},{},{},{},{},{}",
+                c.id,
+                c.pass,
+                csv_cell(c.margin),
+                c.unit().label(),
+                csv_cell(c.bore_mm),
+                csv_cell(c.stroke_mm),
+                csv_text(&c.reason)
+            )?;
+        }
     } else {
         write!(
             out,
@@ -932,6 +962,67 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     } else {
         Status::ChecksFailed
     })
+}
+
+/// Columns of `check --csv`, in order.
+pub const CHECK_COLUMNS: [&str; 7] = [
+    "id",
+    "pass",
+    "margin",
+    "unit",
+    "bore_mm",
+    "stroke_mm",
+    "reason",
+];
+
+/// A text cell for CSV (RFC 4180): quoted when it holds a comma, a quote or a line break,
+/// with quotes doubled.
+fn csv_text(t: &str) -> String {
+    if t.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", t.replace('"', "\"\""))
+    } else {
+        t.to_string()
+    }
+}
+
+/// Writes a table given as a CSV header and CSV rows: as CSV, or (`json`) as one JSON array
+/// of objects keyed by the column names, numbers as numbers, empty cells as null and other
+/// cells as strings. The rows stream; nothing is collected. One source for both forms, so
+/// the JSON has exactly the CSV's columns.
+fn tabular(
+    header: &str,
+    rows: impl Iterator<Item = String>,
+    json: bool,
+    out: &mut impl Write,
+) -> anyhow::Result<()> {
+    if !json {
+        writeln!(out, "{header}")?;
+        for r in rows {
+            writeln!(out, "{r}")?;
+        }
+        return Ok(());
+    }
+    let names: Vec<String> = header
+        .split(',')
+        .map(serde_json::to_string)
+        .collect::<Result<_, _>>()?;
+    write!(out, "[")?;
+    for (i, r) in rows.enumerate() {
+        write!(out, "{}{{", if i == 0 { "" } else { "," })?;
+        for (j, (name, cell)) in names.iter().zip(r.split(',')).enumerate() {
+            let value = match cell {
+                "" => "null".to_string(),
+                c => match c.parse::<f64>() {
+                    Ok(v) if v.is_finite() => c.to_string(),
+                    _ => serde_json::to_string(c)?,
+                },
+            };
+            write!(out, "{}{name}:{value}", if j == 0 { "" } else { "," })?;
+        }
+        write!(out, "}}")?;
+    }
+    writeln!(out, "]")?;
+    Ok(())
 }
 
 fn check_table(
@@ -1001,8 +1092,23 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
         // Refused axes are bad input: say so before any work, as `map` does.
         crate::map::MapSpec::new(&design, x, y).map_err(|e| anyhow!("{label}: {e}"))?;
     }
-    let pdf = sheet::render_with(&design, &label, &bytes, a.paper.into(), &options)
-        .with_context(|| format!("cannot make the sheet for {label}"))?;
+    let measured = match &a.measured {
+        Some(path) => Some(sheet::Measured {
+            label: path.display().to_string(),
+            data: crate::bench_data::load(path).map_err(|e| anyhow!(e.in_file(path)))?,
+            fit: a.fit.as_ref().map(|f| f.0.clone()).unwrap_or_default(),
+        }),
+        None => None,
+    };
+    let pdf = sheet::render_with(
+        &design,
+        &label,
+        &bytes,
+        a.paper.into(),
+        measured.as_ref(),
+        &options,
+    )
+    .with_context(|| format!("cannot make the sheet for {label}"))?;
     crate::atomic::write(&a.output, &pdf)?;
     let _ = writeln!(io::stderr(), "sheet written to {}", a.output.display());
     Ok(Status::Done)

@@ -37,7 +37,7 @@ pub struct CompareArgs {
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct FitList(pub Vec<Factor>);
 
-fn fit_list(text: &str) -> Result<FitList, String> {
+pub fn fit_list(text: &str) -> Result<FitList, String> {
     let allowed = "a comma-separated list of modulus, offset, length, friction";
     let mut out = Vec::new();
     for name in text.split(',').map(str::trim) {
@@ -186,6 +186,13 @@ fn table(
         measured.display(),
         data.rows.len()
     );
+    if let Some(c) = design.calibration {
+        let _ = writeln!(
+            t,
+            "The design's calibration: modulus factor {}, stroke offset {} mm (model stroke = measured stroke + offset)",
+            c.modulus_factor, c.stroke_offset_mm
+        );
+    }
     let _ = writeln!(t);
     let _ = writeln!(
         t,

@@ -312,6 +312,11 @@ impl Segment {
             StiffnessUsed::Beam => e,
             StiffnessUsed::Plate => e / (1.0 - nu * nu),
         };
+        // A bench calibration's factor on E (and so on E'); without one, untouched.
+        let modulus_pa = match design.calibration {
+            Some(c) => modulus_pa * c.modulus_factor,
+            None => modulus_pa,
+        };
         let b = strip.width_mm * 1e-3;
         let t = strip.thickness_mm * 1e-3;
         let bending_stiffness_nm2 = modulus_pa * b * t.powi(3) / 12.0;

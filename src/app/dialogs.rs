@@ -104,6 +104,7 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
                 if ui.button("Save as…        Ctrl+Shift+S").clicked() {
                     app.dialogs.open_save_as(app.doc.path.as_deref());
                 }
+                super::bench::file_menu_ui(app, ui);
                 ui.menu_button("Recent files", |ui| {
                     if app.session.recent.is_empty() {
                         ui.label("none yet");

@@ -671,6 +671,7 @@ impl InputsPanel {
                 .small(),
             );
         }
+        super::bench::calibration_note_ui(ui, d, out);
     }
 
     fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {

@@ -8,6 +8,7 @@
 //! undo steps and re-analyses (once per change, never per frame). [`GripApp::ui`] serves
 //! both eframe and the kittest tests.
 
+mod bench;
 mod dialogs;
 pub mod export;
 pub mod fit;
@@ -182,6 +183,8 @@ pub struct GripApp {
     dialogs: dialogs::Dialogs,
     map_view: map_view::MapView,
     scatter_view: scatter_view::ScatterView,
+    /// Bench measurements and the calibration fit.
+    bench: bench::BenchPanel,
 }
 
 impl GripApp {
@@ -227,6 +230,7 @@ impl GripApp {
             dialogs: dialogs::Dialogs::default(),
             map_view: map_view::MapView::default(),
             scatter_view: scatter_view::ScatterView::default(),
+            bench: bench::BenchPanel::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
         if let Some(path) = start {
@@ -352,6 +356,12 @@ impl GripApp {
     }
 
     /// The state directory.
+    /// Where the three plots were drawn in the last frame (stroke against bore, forces,
+    /// stress), points; `None` before the first frame.
+    pub fn plot_rects(&self) -> [Option<egui::Rect>; 3] {
+        self.plot_rects
+    }
+
     pub fn state_dir(&self) -> &Path {
         &self.state_dir
     }
@@ -400,6 +410,8 @@ impl GripApp {
         dialogs::windows(self, &ctx);
         map_view::window(self, &ctx);
         scatter_view::window(self, &ctx);
+        bench::windows(self, &ctx);
+        bench::take_dropped(self, &ctx);
         self.apply();
         self.autosave(&ctx);
         let title = self.title();
@@ -821,6 +833,7 @@ impl GripApp {
             }
             Err(e) => self.analysis_error = Some(e.to_string()),
         }
+        self.bench.refresh(&self.doc.design);
     }
 
     fn say(&mut self, text: String) {

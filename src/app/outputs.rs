@@ -238,6 +238,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         unit: "N",
         top: top_of(&forces).max(need),
     };
+    let bench = app
+        .bench
+        .nominal_force_points(&seg.design, seg.bore_nominal_mm);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
         plot_cell(
@@ -256,7 +259,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h),
+            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &bench),
         );
     });
     ui.horizontal(|ui| {
@@ -265,8 +268,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
-            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.",
-            None,
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
+            Some("dip after first contact: physical, see heading".to_string()),
             |ui| stress_plot(ui, a, plot_h),
         );
         ui.vertical(|ui| {
@@ -275,7 +278,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
                 Some((s, shape)) => (*s, shape.as_slice(), format!(" (the operating stroke, {:.3} mm, is past the model's limit)", seg.design.operating_stroke_mm)),
                 None => (seg.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
             };
-            ui.strong(format!("To scale at {stroke:.3} mm stroke{note}")).on_hover_text("Left: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore.");
+            let heading = format!("To scale at {stroke:.3} mm stroke{note}");
+            ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
             let h = plot_h;
             let w = ui.available_width();
             // A long strip reads better with the end view below it, a short one beside it.
@@ -310,7 +314,11 @@ fn plot_cell(
     ui.vertical(|ui| {
         ui.set_width(width);
         ui.horizontal(|ui| {
-            ui.strong(title).on_hover_text(tip);
+            // The heading never widens the cell: on a narrow window it is shortened, and
+            // the whole of it is in the tooltip.
+            ui.set_max_width(width);
+            ui.add(egui::Label::new(RichText::new(title).strong()).truncate())
+                .on_hover_text(format!("{title}\n\n{tip}"));
             if let Some(note) = note {
                 ui.with_layout(egui::Layout::right_to_left(egui::Align::Min), |ui| {
                     ui.add(egui::Label::new(RichText::new(&note).small().color(C_ACT)).truncate())
@@ -687,6 +695,7 @@ fn force_plot(
     rating: &Marker,
     need: f64,
     height: f32,
+    bench: &[super::bench::Overlay],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -711,6 +720,7 @@ fn force_plot(
                     .style(LineStyle::dashed_loose()),
             );
             rating.add_to(p);
+            super::bench::overlay_ui(p, bench);
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);

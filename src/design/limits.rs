@@ -132,7 +132,7 @@ const TOLERANCE_SHARE_OF_BORE: f64 = 0.25;
 /// Out-of-roundness up to a tenth of the nominal bore.
 const OUT_OF_ROUND_SHARE_OF_BORE: f64 = 0.1;
 
-static LIMITS: [FieldLimit; 32] = [
+static LIMITS: [FieldLimit; 34] = [
     closed(
         "title",
         0.0,
@@ -330,6 +330,22 @@ static LIMITS: [FieldLimit; 32] = [
         "",
         "grip-release cycles over the life",
     ),
+    // The range a calibration fit may end in (`calibrate::bounds`): a prototype five
+    // times stiffer or softer than its material says is another design, not a correction.
+    closed(
+        "calibration.modulus_factor",
+        0.2,
+        5.0,
+        "",
+        "factor on Young's modulus, fitted to bench measurements",
+    ),
+    closed(
+        "calibration.stroke_offset_mm",
+        -100.0,
+        100.0,
+        "mm",
+        "added to a measured stroke to give the model's stroke",
+    ),
 ];
 
 /// The table of plausible ranges, one row per numeric field (the operating stroke is
@@ -427,6 +443,12 @@ impl Design {
             // Exact for every count up to 2^53, far beyond the 1e12 limit.
             ("duty.cycles", self.duty.cycles as f64),
         ]);
+        if let Some(c) = &self.calibration {
+            fields.extend([
+                ("calibration.modulus_factor", c.modulus_factor),
+                ("calibration.stroke_offset_mm", c.stroke_offset_mm),
+            ]);
+        }
         fields
     }
 
@@ -608,6 +630,7 @@ mod tests {
             max_angle_deg: 1.0,
         };
         design.bore.bend = Some(crate::bend::Bend::RadiusMm(100.0));
+        design.calibration = Some(crate::design::Calibration::default());
         design.strip.material = MaterialChoice::Custom {
             name: "x".into(),
             youngs_modulus_gpa: 1.0,

@@ -46,6 +46,52 @@ pub struct Design {
     /// results never depend on it).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub scatter: Option<crate::scatter::ScatterSpec>,
+    /// Correction factors fitted to bench measurements of a built prototype (`None`: the
+    /// model as it stands). Written only when present.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub calibration: Option<Calibration>,
+}
+
+/// Correction factors from bench measurements, each optional (left out: no correction).
+/// The modulus factor multiplies Young's modulus `E` (so `E'`, the bending stiffness,
+/// every force and the bending stress scale with it). The stroke offset relates the
+/// bench's stroke readings to the model: the model's stroke is the measured stroke plus
+/// the offset. It applies wherever measured strokes meet the model (`compare`, the app's
+/// bench overlay, the sheet's bench page); the design's own strokes (operating stroke,
+/// actuator travel, every stroke reported) stay model strokes, counted from straight
+/// strips. A fitted effective free length and a fitted friction have no field here:
+/// applying them edits `strip.free_length_mm` and `friction`.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Calibration {
+    /// Multiplies Young's modulus (1: the material's value).
+    #[serde(default = "one", skip_serializing_if = "is_one")]
+    pub modulus_factor: f64,
+    /// Added to a measured stroke to give the model's stroke, mm (0: none).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub stroke_offset_mm: f64,
+}
+
+impl Default for Calibration {
+    /// No correction: modulus factor 1, no stroke offset.
+    fn default() -> Self {
+        Calibration {
+            modulus_factor: 1.0,
+            stroke_offset_mm: 0.0,
+        }
+    }
+}
+
+impl Design {
+    /// The modulus factor in force: the calibration's, else 1.
+    pub fn modulus_factor(&self) -> f64 {
+        self.calibration.map_or(1.0, |c| c.modulus_factor)
+    }
+
+    /// The stroke offset in force, mm: the calibration's, else 0.
+    pub fn stroke_offset_mm(&self) -> f64 {
+        self.calibration.map_or(0.0, |c| c.stroke_offset_mm)
+    }
 }
 
 /// The strips: all identical, straight at rest.
@@ -220,6 +266,7 @@ impl Default for Design {
             },
             end_plate_thickness_mm: 0.0,
             scatter: None,
+            calibration: None,
         }
     }
 }
@@ -253,6 +300,15 @@ impl Bore {
 /// Whether an optional number is at its default (left out of written files).
 fn is_zero(v: &f64) -> bool {
     *v == 0.0
+}
+
+fn one() -> f64 {
+    1.0
+}
+
+/// Whether a factor is at its default of 1 (left out of written files).
+fn is_one(v: &f64) -> bool {
+    *v == 1.0
 }
 
 fn cycles_from_number<'de, D: Deserializer<'de>>(deserializer: D) -> Result<u64, D::Error> {

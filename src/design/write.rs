@@ -136,8 +136,9 @@ fn shape(text: &str) -> Shape {
 }
 
 /// `original` with every value that differs between the design it holds and `design`
-/// replaced in place, so comments, order and layout stay. Refused (with the reason) when
-/// the original does not parse, when the change is structural (another actuator or
+/// replaced in place, so comments, order and layout stay; an optional top-level field the
+/// file lacks (`calibration`) is added after its last field. Refused (with the reason)
+/// when the original does not parse, when the change is structural (another actuator or
 /// material variant, a pipe added or removed), when a changed value is not written in the
 /// original (a default left out), or when the edited text would not read back as `design`.
 pub fn edit_in_place(original: &str, design: &Design) -> Result<String, Rewrite> {
@@ -147,8 +148,20 @@ pub fn edit_in_place(original: &str, design: &Design) -> Result<String, Rewrite>
     let before =
         parse(text).map_err(|e| rewrite(format!("the file as opened does not load ({e})")))?;
     let old = shape(&to_ron(&before).map_err(|e| rewrite(e.to_string()))?);
-    let new = shape(&to_ron(design).map_err(|e| rewrite(e.to_string()))?);
-    if old.outline != new.outline {
+    let whole = to_ron(design).map_err(|e| rewrite(e.to_string()))?;
+    let new = shape(&whole);
+    // Optional top-level fields the design has and the file does not: added at its end.
+    let added: Vec<&str> = INSERTABLE
+        .into_iter()
+        .filter(|k| new.has(k) && !old.has(k))
+        .collect();
+    let outline: Vec<_> = new
+        .outline
+        .iter()
+        .filter(|(p, ..)| !added.iter().any(|k| under(p, k)))
+        .cloned()
+        .collect();
+    if old.outline != outline {
         return Err(rewrite(
             "the change is to the design's structure (another actuator, material or bore kind)"
                 .to_string(),
@@ -161,13 +174,17 @@ pub fn edit_in_place(original: &str, design: &Design) -> Result<String, Rewrite>
         .collect();
     let mut edits: Vec<(std::ops::Range<usize>, &str)> = Vec::new();
     for (path, value) in &new.leaves {
-        if old.leaves.get(path) == Some(value) {
+        if old.leaves.get(path) == Some(value) || added.iter().any(|k| under(path, k)) {
             continue;
         }
         let Some(entry) = written.get(path) else {
             return Err(rewrite(format!("{path} is not written in the file")));
         };
         edits.push((entry.value.clone(), value));
+    }
+    let insertion = appended(text, &whole, &added).map_err(rewrite)?;
+    if let Some((at, insert)) = &insertion {
+        edits.push((*at..*at, insert.as_str()));
     }
     edits.sort_by_key(|(span, _)| std::cmp::Reverse(span.start));
     let mut edited = text.to_string();
@@ -180,6 +197,54 @@ pub fn edit_in_place(original: &str, design: &Design) -> Result<String, Rewrite>
             "the edited text would not read back as the design".to_string(),
         )),
     }
+}
+
+/// Optional top-level fields that a save adds at the end of a file that lacks them, so the
+/// file's comments and layout stay.
+const INSERTABLE: [&str; 1] = ["calibration"];
+
+/// Whether `path` is `key` or lies under it.
+fn under(path: &str, key: &str) -> bool {
+    path == key
+        || path
+            .strip_prefix(key)
+            .is_some_and(|rest| rest.starts_with('.'))
+}
+
+impl Shape {
+    fn has(&self, key: &str) -> bool {
+        self.outline.iter().any(|(p, ..)| p == key)
+    }
+}
+
+/// Where and what to insert in `text` so it also holds the top-level fields `added`, as
+/// `whole` (the design written afresh) spells them: after the file's last top-level
+/// entry (and its comma, or with one), one line each. `None` when nothing is added.
+fn appended(text: &str, whole: &str, added: &[&str]) -> Result<Option<(usize, String)>, String> {
+    if added.is_empty() {
+        return Ok(None);
+    }
+    let last = entries(text)
+        .into_iter()
+        .filter(|e| !e.path.contains('.'))
+        .max_by_key(|e| e.value.end)
+        .ok_or_else(|| "the file has no field to add after".to_string())?;
+    let fresh = entries(whole);
+    let mut lines = String::new();
+    for key in added {
+        let entry = fresh
+            .iter()
+            .find(|e| e.path == *key)
+            .ok_or_else(|| format!("{key} could not be written"))?;
+        lines.push_str(&format!("\n    {key}: {},", &whole[entry.value.clone()]));
+    }
+    let rest = &text[last.value.end..];
+    let gap = rest.len() - rest.trim_start().len();
+    Ok(Some(if rest.trim_start().starts_with(',') {
+        (last.value.end + gap + 1, lines)
+    } else {
+        (last.value.end, format!(",{lines}"))
+    }))
 }
 
 /// Writes the design to `path` through the atomic writer ([`crate::atomic::write`]):

@@ -12,6 +12,7 @@
 //! the same layout to PDF with krilla, the text real and selectable, the two embedded
 //! faces subset.
 
+mod bench;
 mod draw;
 mod font;
 mod format;
@@ -30,6 +31,7 @@ use crate::design::Design;
 use draw::{Block, GREY, INK, Mark};
 use font::Weight;
 
+pub use bench::{CALIBRATION_TITLE, Measured, TITLE as BENCH_TITLE};
 pub use format::{civil_from_days, utc_stamp};
 
 /// Paper size of the sheet.
@@ -222,17 +224,41 @@ pub fn layout_dated(
         file_bytes,
         paper,
         date,
+        None,
         &SheetOptions::default(),
     )
 }
 
-/// Lays the sheet out with its optional parts (with the given date text).
+/// Lays the sheet out with the given date, and with a page of bench measurements against
+/// the model when `measured` is given.
+pub fn layout_measured(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    date: &str,
+    measured: Option<&Measured>,
+) -> anyhow::Result<SheetLayout> {
+    layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        date,
+        measured,
+        &SheetOptions::default(),
+    )
+}
+
+/// Lays the sheet out with every optional part: bench measurements when `measured` is
+/// given, and the parts `options` asks for (with the given date text).
 pub fn layout_with(
     design: &Design,
     file_label: &str,
     file_bytes: &[u8],
     paper: Paper,
     date: &str,
+    measured: Option<&Measured>,
     options: &SheetOptions,
 ) -> anyhow::Result<SheetLayout> {
     font::faces()?;
@@ -262,6 +288,10 @@ pub fn layout_with(
         .position(|s| s.title == CLOSING_FIRST)
         .unwrap_or(sections.len());
     sections.splice(at..at, extra);
+    sections.extend(bench::calibration_section(&analysis, content_w));
+    if let Some(m) = measured {
+        sections.push(bench::section(&analysis, m, content_w));
+    }
     Ok(paginate(
         sections, &meta, &analysis, paper, printable, design,
     ))
@@ -290,16 +320,18 @@ pub fn render(
         file_label,
         file_bytes,
         paper,
+        None,
         &SheetOptions::default(),
     )
 }
 
-/// Renders the sheet with its optional parts to PDF bytes, dated now (UTC).
+/// Renders the sheet with every optional part (see [`layout_with`]), dated now (UTC).
 pub fn render_with(
     design: &Design,
     file_label: &str,
     file_bytes: &[u8],
     paper: Paper,
+    measured: Option<&Measured>,
     options: &SheetOptions,
 ) -> anyhow::Result<Vec<u8>> {
     let laid = layout_with(
@@ -308,7 +340,28 @@ pub fn render_with(
         file_bytes,
         paper,
         &format::now_utc(),
+        measured,
         options,
+    )?;
+    write_pdf(&laid, design)
+}
+
+/// Renders the sheet with a page of bench measurements against the model (see
+/// [`layout_measured`]).
+pub fn render_measured(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    measured: Option<&Measured>,
+) -> anyhow::Result<Vec<u8>> {
+    let laid = layout_measured(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        &format::now_utc(),
+        measured,
     )?;
     write_pdf(&laid, design)
 }

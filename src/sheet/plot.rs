@@ -58,6 +58,12 @@ pub enum Item {
         x0: f64,
         x1: f64,
     },
+    /// Measured points, each a small filled square (outside the range: not drawn).
+    Points {
+        label: String,
+        color: Rgb,
+        points: Vec<(f64, f64)>,
+    },
 }
 
 impl Item {
@@ -253,6 +259,13 @@ impl Plot {
                         pen.dash.clone(),
                     );
                 }
+                Item::Points { color, points, .. } => {
+                    for &(x, y) in points {
+                        if (xlo..=xhi).contains(&x) && (ylo..=yhi).contains(&y) {
+                            b.fill_rect(px(x) - 1.6, py(y) - 1.6, 3.2, 3.2, *color);
+                        }
+                    }
+                }
                 _ => {}
             }
         }
@@ -267,7 +280,7 @@ impl Plot {
                 Item::Series { label, pen, .. }
                 | Item::HLine { label, pen, .. }
                 | Item::VLine { label, pen, .. } => (label, Some(pen)),
-                Item::Band { label, .. } => (label, None),
+                Item::Band { label, .. } | Item::Points { label, .. } => (label, None),
             };
             if label.is_empty() {
                 continue;
@@ -287,6 +300,9 @@ impl Plot {
                 (None, Item::Band { color, .. }) => {
                     b.fill_rect(lx, ly - 6.0, 16.0, 7.0, *color);
                     b.rect(lx, ly - 6.0, 16.0, 7.0, 0.3, GREY);
+                }
+                (None, Item::Points { color, .. }) => {
+                    b.fill_rect(lx + 6.4, ly - 4.1, 3.2, 3.2, *color);
                 }
                 _ => {}
             }

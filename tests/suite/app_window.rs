@@ -43,3 +43,56 @@ fn the_window_opens_where_it_was_closed() {
     assert_eq!(v.position, Some(egui::pos2(64.0, 48.0)));
     assert!(v.title.as_deref().is_some_and(|t| t.contains("bowgrip")));
 }
+
+/// Issue 16, item 2: at 1280 x 720 and at 1680 x 1050 every plot lies inside the window
+/// and left of the checks column (long headings are shortened, never widen their cell).
+#[test]
+fn every_plot_fits_beside_the_checks_at_two_window_sizes() {
+    use egui::accesskit::Role;
+    use egui_kittest::kittest::Queryable;
+    let riser = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs/riser-climber-2in-sch40.ron");
+    for size in [[1280.0, 720.0], [1680.0, 1050.0]] {
+        let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let app = GripApp::new(state.path().to_path_buf(), Some(riser.clone()));
+        let mut h = Harness::builder()
+            .with_size(size)
+            .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app);
+        h.run();
+        let checks_left = h
+            .get_by_role_and_label(Role::Label, "Every check passes")
+            .rect()
+            .min
+            .x;
+        for (i, r) in h.state().plot_rects().iter().enumerate() {
+            let r = r.unwrap_or_else(|| panic!("plot {i} not drawn at {size:?}"));
+            assert!(r.width() > 150.0 && r.height() > 100.0, "plot {i}: {r:?}");
+            assert!(
+                r.max.x <= checks_left && r.max.y <= size[1],
+                "plot {i} at {r:?} runs under the checks (from x = {checks_left}) at {size:?}"
+            );
+        }
+    }
+}
+
+/// Issue 16, item 2: a long title typed into the design keeps the input panel's width (the
+/// plots do not move).
+#[test]
+fn a_long_title_keeps_the_panels_in_place() {
+    use egui::accesskit::Role;
+    use egui_kittest::kittest::Queryable;
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let app = GripApp::new(state.path().to_path_buf(), None);
+    let mut h = Harness::builder()
+        .with_size([1280.0, 720.0])
+        .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app);
+    h.run();
+    let before = h.state().plot_rects()[0].expect("window plot");
+    h.get_by_role_and_label(Role::TextInput, "Title")
+        .set_text_value_accesskit(&"A very long design title, ".repeat(7));
+    h.run();
+    h.run();
+    let after = h.state().plot_rects()[0].expect("window plot");
+    assert_eq!(h.state().design().title.len(), 26 * 7);
+    assert_eq!(before.min.x, after.min.x, "{before:?} -> {after:?}");
+}

@@ -438,6 +438,185 @@ fn nominal_factors_leave_the_model_as_it_is() {
 }
 
 // ---------------------------------------------------------------------------------------
+// The design field `calibration`.
+
+/// The riser sample's text with a calibration line added before the closing parenthesis.
+fn riser_text_with(calibration: &str) -> String {
+    let path = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let text = fs::read_to_string(&path).expect("read sample");
+    let end = text.rfind(')').expect("closing parenthesis");
+    format!("{}    {calibration},\n{}", &text[..end], &text[end..])
+}
+
+#[test]
+fn calibration_field_round_trips_and_is_written_only_when_present() {
+    // The contract: `calibration: Some((modulus_factor, stroke_offset_mm))`, each optional.
+    let text = riser_text_with("calibration: Some((modulus_factor: 0.93, stroke_offset_mm: 0.12))");
+    let d = design::parse(&text).unwrap_or_else(|e| panic!("{e}"));
+    let c = d.calibration.expect("calibration read");
+    assert_eq!((c.modulus_factor, c.stroke_offset_mm), (0.93, 0.12));
+    let written = design::to_ron(&d).expect("writes");
+    assert!(
+        written.contains("calibration: Some((") && written.contains("modulus_factor: 0.93"),
+        "{written}"
+    );
+    assert_eq!(design::parse(&written).expect("reads back"), d);
+    // Each optional: the one left out takes its neutral value.
+    let only_offset = design::parse(&riser_text_with(
+        "calibration: Some((stroke_offset_mm: -0.3))",
+    ))
+    .expect("offset only");
+    assert_eq!(only_offset.modulus_factor(), 1.0);
+    assert_eq!(only_offset.stroke_offset_mm(), -0.3);
+    // Absent: nothing written, so a file without it saves as it was.
+    let plain = riser();
+    assert_eq!(plain.calibration, None);
+    assert!(
+        !design::to_ron(&plain)
+            .expect("writes")
+            .contains("calibration")
+    );
+    // In place: a changed factor is replaced where it is written, the comments stay.
+    let mut changed = d.clone();
+    changed.calibration = Some(design::Calibration {
+        modulus_factor: 0.95,
+        ..c
+    });
+    let saved = design::save_text(Some(&text), &changed).expect("plans a save");
+    assert!(!saved.loses_layout());
+    assert!(saved.text().contains("// Sample design (invented)"));
+    assert!(saved.text().contains("modulus_factor: 0.95"));
+    assert_eq!(design::parse(saved.text()).expect("reads back"), changed);
+    // Added to a file that has none: written after its last field, the comments stay.
+    let original = fs::read_to_string(root().join("sample-designs/riser-climber-2in-sch40.ron"))
+        .expect("read sample");
+    let mut calibrated = riser();
+    calibrated.calibration = Some(c);
+    calibrated.friction = 0.37;
+    let saved = design::save_text(Some(&original), &calibrated).expect("plans a save");
+    assert!(!saved.loses_layout(), "{saved:?}");
+    assert!(saved.text().contains("// Sample design (invented)"));
+    assert!(saved.text().contains("friction: 0.37"));
+    assert_eq!(design::parse(saved.text()).expect("reads back"), calibrated);
+    // Taken out again: a structural change, the whole design is written (after a prompt).
+    let removed = design::save_text(Some(saved.text()), &riser()).expect("plans a save");
+    assert!(removed.loses_layout());
+    assert_eq!(
+        design::parse(removed.text())
+            .expect("reads back")
+            .calibration,
+        None
+    );
+}
+
+#[test]
+fn calibration_values_outside_their_range_are_refused_where_written() {
+    // The limits table's rows, printed in the message with the allowed range.
+    for (line, field, range) in [
+        (
+            "calibration: Some((modulus_factor: 7.0))",
+            "calibration.modulus_factor",
+            "0.2 to 5",
+        ),
+        (
+            "calibration: Some((stroke_offset_mm: -150.0))",
+            "calibration.stroke_offset_mm",
+            "-100 to 100 mm",
+        ),
+    ] {
+        let text = riser_text_with(line);
+        let e = design::parse(&text).expect_err("out of range");
+        let (l, c) = e.position().unwrap_or_else(|| panic!("no position: {e}"));
+        let at_line = text.lines().nth(l - 1).expect("line exists");
+        assert!(
+            at_line.contains(field.rsplit('.').next().unwrap_or(field)),
+            "{e}"
+        );
+        assert!(c > 1, "{e}");
+        let msg = e.to_string();
+        assert!(msg.contains(field) && msg.contains(range), "{msg}");
+        assert!(design::limit(field).is_some());
+    }
+    // An unknown name inside is refused too.
+    assert!(design::parse(&riser_text_with("calibration: Some((stiffness: 1.0))")).is_err());
+}
+
+#[test]
+fn a_calibrated_design_predicts_the_factor_adjusted_model() {
+    // The design's modulus factor multiplies E: every force of the model scales by it
+    // (the elastica is displacement driven, forces go as the bending stiffness B = E I:
+    // Timoshenko and Gere, Theory of Elastic Stability, the elastica), shapes do not.
+    let plain = riser();
+    let factor = 0.93;
+    let mut calibrated = plain.clone();
+    calibrated.calibration = Some(design::Calibration {
+        modulus_factor: factor,
+        stroke_offset_mm: 0.12,
+    });
+    let a = bowgrip::analysis::analyse(&plain).expect("plain");
+    let b = bowgrip::analysis::analyse(&calibrated).expect("calibrated");
+    assert_eq!(a.curve.len(), b.curve.len());
+    for (p, q) in a.curve.iter().zip(&b.curve) {
+        assert_eq!(p.stroke_mm, q.stroke_mm);
+        assert_eq!(p.outer_diameter_mm, q.outer_diameter_mm);
+        for (x, y) in [
+            (p.actuator_force_n, q.actuator_force_n),
+            (p.holding_force_n, q.holding_force_n),
+            (p.radial_force_n, q.radial_force_n),
+        ] {
+            if let (Some(x), Some(y)) = (x, y) {
+                assert!((y - factor * x).abs() <= 1e-9 * x.abs().max(1.0), "{x} {y}");
+            } else {
+                assert_eq!(x.is_some(), y.is_some());
+            }
+        }
+    }
+    // The residuals of the calibrated design are those of the plain design with the same
+    // factors given to the fit's model (measured stroke + offset = model stroke).
+    let bench = bench_data::load(&root().join(SAMPLE_BENCH)).expect("sample bench file");
+    let factors = Factors {
+        modulus_factor: factor,
+        stroke_offset_mm: 0.12,
+        ..Factors::nominal(&plain)
+    };
+    assert_eq!(Factors::nominal(&calibrated), factors);
+    let via_design = calibrate::residuals(&calibrated, &bench, &Factors::nominal(&calibrated))
+        .expect("residuals");
+    let via_factors = calibrate::residuals(&plain, &bench, &factors).expect("residuals");
+    assert_eq!(via_design, via_factors);
+    // And by hand: each prediction is the state of the scaled segment at stroke + offset.
+    let seg = calibrate::segment_with(&plain, &factors).expect("segment");
+    for q in &via_design {
+        for p in &q.points {
+            let s = seg
+                .at_bore(p.bore_mm)
+                .expect("path")
+                .state(p.stroke_mm + 0.12);
+            let want = match q.quantity {
+                Quantity::OuterDiameter => s.outer_diameter_mm,
+                Quantity::ActuatorForce => s.actuator_force_n,
+                Quantity::SlipForce => s.holding_force_n,
+            };
+            assert_eq!(Some(p.predicted), want, "line {}", p.line);
+        }
+    }
+    // Applying the factors as "apply" does: free length and friction into their own
+    // fields, the other two into `calibration`.
+    let applied = calibrate::design_with(&plain, &truth(&plain));
+    assert_eq!(applied.strip.free_length_mm, truth(&plain).free_length_mm);
+    assert_eq!(applied.friction, 0.36);
+    assert_eq!(
+        applied.calibration,
+        Some(design::Calibration {
+            modulus_factor: 0.93,
+            stroke_offset_mm: 0.12
+        })
+    );
+    assert_eq!(Factors::nominal(&applied), truth(&plain));
+    applied.validate().expect("applied factors are in range");
+}
+
+// ---------------------------------------------------------------------------------------
 // Malformed measurement files.
 
 fn refused_at(text: &str) -> ((usize, usize), String) {
@@ -675,4 +854,170 @@ fn compare_table_and_bad_input() {
         .expect("run");
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bad.csv:2:5:"), "{err}");
+
+    // A calibrated design: the table names its calibration, and the residuals are those
+    // of the model with it.
+    let calibrated = dir.path().join("calibrated.ron");
+    fs::write(
+        &calibrated,
+        riser_text_with("calibration: Some((modulus_factor: 0.93, stroke_offset_mm: 0.12))"),
+    )
+    .expect("write");
+    let out = bowgrip()
+        .args(["compare", s(&calibrated), "--measured", s(&bench), "--json"])
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("JSON");
+    let d = design::load(&calibrated).expect("loads");
+    let data = bench_data::load(&bench).expect("bench");
+    let want = calibrate::residuals(&d, &data, &Factors::nominal(&d)).expect("residuals");
+    for q in &want {
+        let rms = v["residuals"][q.quantity.column()]["rms"]
+            .as_f64()
+            .expect("rms");
+        let exact = q.summary().rms;
+        assert!((rms - exact).abs() <= 1e-12 * exact, "{rms} {exact}");
+    }
+    let out = bowgrip()
+        .args(["compare", s(&calibrated), "--measured", s(&bench)])
+        .output()
+        .expect("run");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("calibration: modulus factor 0.93, stroke offset 0.12 mm"),
+        "{text}"
+    );
+}
+
+// ---------------------------------------------------------------------------------------
+// The sheet's bench page.
+
+/// All text of a PDF by lopdf, whitespace collapsed (as `sheet.rs` reads sheets).
+fn pdf_text(pdf: &[u8]) -> String {
+    let doc = lopdf::Document::load_mem(pdf).expect("the sheet parses as PDF");
+    let pages: Vec<u32> = doc.get_pages().keys().copied().collect();
+    let text = doc.extract_text(&pages).expect("text extracts");
+    text.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+/// A number as the sheet prints it: fixed decimals, a true minus sign.
+fn printed(v: f64, decimals: usize) -> String {
+    format!("{v:.decimals$}").replace('-', "\u{2212}")
+}
+
+/// A signed number as the sheet prints it: `+1.039`, `\u{2212}0.026`.
+fn printed_signed(v: f64, decimals: usize) -> String {
+    format!("{v:+.decimals$}").replace('-', "\u{2212}")
+}
+
+#[test]
+fn sheet_with_measurements_prints_the_bench_page_and_its_residuals() {
+    let design_path = root().join("sample-designs/riser-climber-2in-sch40.ron");
+    let bench = root().join(SAMPLE_BENCH);
+    let dir = tempfile::tempdir().expect("temp dir");
+    let out = dir.path().join("sheet.pdf");
+    let run = bowgrip()
+        .args([
+            "sheet",
+            s(&design_path),
+            "-o",
+            s(&out),
+            "--measured",
+            s(&bench),
+        ])
+        .args(["--fit", "modulus,friction"])
+        .output()
+        .expect("run");
+    assert_eq!(
+        run.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let text = pdf_text(&fs::read(&out).expect("sheet written"));
+    assert!(
+        text.contains(bowgrip::sheet::BENCH_TITLE),
+        "the page is there"
+    );
+    // The residuals of calibrate, printed to 3 decimals with their unit, and where.
+    let d = riser();
+    let data = bench_data::load(&bench).expect("bench");
+    let before = calibrate::residuals(&d, &data, &Factors::nominal(&d)).expect("residuals");
+    let fit = calibrate::calibrate(&d, &data, &[Factor::Modulus, Factor::Friction]).expect("fit");
+    for q in &before {
+        let sm = q.summary();
+        let unit = q.quantity.unit();
+        for want in [
+            format!("{} {unit}", printed(sm.rms, 3)),
+            format!("{} {unit}", printed_signed(sm.max_signed, 3)),
+            format!(
+                "line {}, stroke {}",
+                sm.max_line,
+                printed(sm.max_stroke_mm, 3)
+            ),
+        ] {
+            assert!(text.contains(&want), "sheet lacks {want:?}");
+        }
+    }
+    for f in &fit.fitted {
+        assert!(
+            text.contains(&printed(f.value, 5)),
+            "sheet lacks {} {}",
+            f.factor,
+            f.value
+        );
+    }
+    assert!(text.contains("Caution"));
+
+    // Without --measured, no such page; a malformed file is refused (exit 2, one line).
+    let plain = dir.path().join("plain.pdf");
+    let run = bowgrip()
+        .args(["sheet", s(&design_path), "-o", s(&plain)])
+        .output()
+        .expect("run");
+    assert_eq!(run.status.code(), Some(0));
+    assert!(!pdf_text(&fs::read(&plain).expect("written")).contains(bowgrip::sheet::BENCH_TITLE));
+    let bad = dir.path().join("bad.csv");
+    fs::write(&bad, "stroke_mm,actuator_force_n\n1.0,x\n").expect("write");
+    let refused = dir.path().join("refused.pdf");
+    let run = bowgrip()
+        .args([
+            "sheet",
+            s(&design_path),
+            "-o",
+            s(&refused),
+            "--measured",
+            s(&bad),
+        ])
+        .output()
+        .expect("run");
+    let err = String::from_utf8_lossy(&run.stderr);
+    assert_eq!(run.status.code(), Some(2), "{err}");
+    assert!(err.contains("bad.csv:2:5:"), "{err}");
+    assert!(!refused.exists(), "nothing written");
+
+    // A calibrated design's sheet says so, with the modulus the model used; a design
+    // without calibration prints no such section.
+    let mut calibrated = d.clone();
+    calibrated.calibration = Some(design::Calibration {
+        modulus_factor: 0.93,
+        stroke_offset_mm: 0.12,
+    });
+    let pdf = bowgrip::sheet::render(&calibrated, "c.ron", b"c", bowgrip::sheet::Paper::A4)
+        .expect("renders");
+    let text = pdf_text(&pdf);
+    let e_used = bowgrip::segment::Segment::new(&calibrated)
+        .expect("segment")
+        .modulus_pa
+        * 1e-9;
+    assert!(text.contains(bowgrip::sheet::CALIBRATION_TITLE));
+    assert!(text.contains("Modulus factor 0.9300"), "{text}");
+    assert!(
+        text.contains(&format!("E' = {:.1} GPa", e_used)),
+        "{e_used}"
+    );
+    let pdf =
+        bowgrip::sheet::render(&d, "d.ron", b"d", bowgrip::sheet::Paper::A4).expect("renders");
+    assert!(!pdf_text(&pdf).contains(bowgrip::sheet::CALIBRATION_TITLE));
 }

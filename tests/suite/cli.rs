@@ -679,3 +679,84 @@ fn check_prints_geometry_cautions_for_strips_that_leave_the_plates() {
     let cautions = v["geometry_cautions"].as_array().expect("cautions array");
     assert!(!cautions.is_empty(), "{v}");
 }
+
+/// Issue 16, item 8: `--json` and `--csv` on every command that prints data. The JSON of
+/// `sweep` and `bores` is the CSV's table as objects keyed by its column names (the
+/// contract's columns; numbers as numbers, empty cells as null), and `check --csv` has
+/// one row per check with the same verdicts and margins as `check --json`.
+#[test]
+fn sweep_bores_and_check_print_both_json_and_csv() {
+    let dir = Scratch::new();
+    let f = dir.design("demo.ron", &Design::default());
+    let f = s(&f);
+    for args in [
+        vec!["sweep", f, "--points", "40"],
+        vec![
+            "bores",
+            f,
+            "--from-mm",
+            "60",
+            "--to-mm",
+            "80",
+            "--points",
+            "21",
+        ],
+    ] {
+        let csv = run(&[args.as_slice(), &["--csv"]].concat());
+        let js = run(&[args.as_slice(), &["--json"]].concat());
+        assert_eq!((csv.code, js.code), (Some(0), Some(0)), "{args:?}");
+        let mut lines = csv.stdout.lines();
+        let header: Vec<&str> = lines.next().expect("header").split(',').collect();
+        let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+        let doc = json(&js.stdout);
+        let objects = doc.as_array().expect("an array");
+        assert_eq!(objects.len(), rows.len(), "{args:?}");
+        assert!(rows.len() >= 21);
+        for (o, row) in objects.iter().zip(&rows) {
+            let o = o.as_object().expect("an object");
+            assert_eq!(o.keys().count(), header.len());
+            for (name, cell) in header.iter().zip(row) {
+                let v = &o[*name];
+                match cell.parse::<f64>() {
+                    _ if cell.is_empty() => assert!(v.is_null(), "{name}: {v}"),
+                    // The JSON carries the CSV's digits verbatim; serde_json's default
+                    // float parser may land one unit in the last place away, so the value is
+                    // compared to that and the text itself is looked up.
+                    Ok(x) => {
+                        let y = v.as_f64().unwrap_or(f64::NAN);
+                        assert!((y - x).abs() <= 2.0 * f64::EPSILON * x.abs(), "{name}");
+                        assert!(js.stdout.contains(&format!("\"{name}\":{cell}")), "{name}");
+                    }
+                    Err(_) => assert_eq!(v.as_str(), Some(*cell), "{name}"),
+                }
+            }
+        }
+    }
+    let both = run(&["sweep", f, "--csv", "--json"]);
+    assert_eq!(both.code, Some(2), "{}", both.stderr);
+
+    let js = json(&run(&["check", f, "--json"]).stdout);
+    let csv = run(&["check", f, "--csv"]);
+    let mut lines = csv.stdout.lines();
+    assert_eq!(
+        lines.next(),
+        Some("id,pass,margin,unit,bore_mm,stroke_mm,reason")
+    );
+    let rows: Vec<&str> = lines.collect();
+    let checks = js["checks"].as_array().expect("checks");
+    assert_eq!(rows.len(), checks.len());
+    for (row, c) in rows.iter().zip(checks) {
+        let cells: Vec<&str> = row.splitn(7, ',').collect();
+        assert_eq!(cells[0], c["id"].as_str().expect("id"));
+        assert_eq!(cells[1], c["pass"].to_string());
+        match c["margin"].as_f64() {
+            // Within one unit in the last place: serde_json's default parser is not
+            // always correctly rounded.
+            Some(m) => {
+                let x = cells[2].parse::<f64>().unwrap_or(f64::NAN);
+                assert!((x - m).abs() <= 2.0 * f64::EPSILON * m.abs(), "{x} vs {m}");
+            }
+            None => assert_eq!(cells[2], ""),
+        }
+    }
+}

@@ -1,5 +1,6 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
 mod app;
+mod app_bench;
 mod app_map;
 mod app_window;
 mod calibration;

@@ -576,8 +576,16 @@ fn the_sheet_has_a_map_page_when_asked() {
     for paper in [Paper::A4, Paper::Letter] {
         let plain = sheet::layout_dated(&design, "demo.ron", b"demo", paper, "2026-01-01")
             .unwrap_or_else(|e| panic!("{e}"));
-        let laid = sheet::layout_with(&design, "demo.ron", b"demo", paper, "2026-01-01", &options)
-            .unwrap_or_else(|e| panic!("{e}"));
+        let laid = sheet::layout_with(
+            &design,
+            "demo.ron",
+            b"demo",
+            paper,
+            "2026-01-01",
+            None,
+            &options,
+        )
+        .unwrap_or_else(|e| panic!("{e}"));
         let title = "Design map: strip.count against strip.thickness_mm";
         assert!(!plain.sections.iter().any(|s| s.title == title));
         let Some(page) = laid.sections.iter().find(|s| s.title == title) else {
