@@ -349,7 +349,7 @@ impl MapView {
                     .response
                     .labelled_by(name_label.id)
                     .on_hover_text(format!("{label}: the input on this axis"));
-                let unit = map::fields(design)
+                let unit = fields
                     .iter()
                     .find(|r| r.field == axis.field)
                     .map_or("", |r| r.unit);
