@@ -105,6 +105,17 @@ impl MapView {
         self.for_design = None;
     }
 
+    /// What the sizing sheet adds for this window: a map page over its axes while the
+    /// window is open and its axes are accepted.
+    pub fn sheet_options(&self) -> crate::sheet::SheetOptions {
+        crate::sheet::SheetOptions {
+            map: self
+                .axes
+                .clone()
+                .filter(|_| self.open && self.error.is_none()),
+        }
+    }
+
     /// Where the centre of cell `(ix, iy)` was drawn last frame, in screen points.
     pub fn cell_screen_pos(&self, ix: usize, iy: usize) -> Option<egui::Pos2> {
         let t = self.transform.as_ref()?;
