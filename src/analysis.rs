@@ -5,6 +5,7 @@
 
 use serde::Serialize;
 
+use crate::actuation;
 use crate::checks::{self, Check};
 use crate::segment::{BoreRow, Segment, SegmentError, SegmentState};
 
@@ -74,6 +75,10 @@ pub struct Analysis {
     /// Geometry cautions ([`checks::geometry_cautions`]): where the strips at the operating
     /// stroke swing behind a plate or cross themselves. Usually empty.
     pub cautions: Vec<String>,
+    /// Under force control, the operating stroke and actuator travel at each bore of the
+    /// window, mm (`None` where the set pull is never reached); empty under displacement
+    /// control, where the stroke is the same at every bore.
+    pub operating_window: Vec<actuation::WindowPoint>,
 }
 
 /// The bore window around the design's tolerance band: wide enough to show the band and
@@ -92,7 +97,6 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
     let checks = checks::run(&segment);
     let cautions = checks::geometry_cautions(&segment);
     let limiting = checks::limiting(&checks);
-    let op = design.operating_stroke_mm;
     let bores = BoreCase::ALL
         .iter()
         .map(|&case| {
@@ -107,8 +111,8 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
                 bore_mm,
                 operating: path
                     .as_ref()
-                    .map(|p| p.state(op))
-                    .map_err(|e| e.to_string()),
+                    .map_err(|e| e.to_string())
+                    .and_then(actuation::operating_result),
                 row: path
                     .map(|p| p.row())
                     .unwrap_or_else(|_| segment.bore_row(bore_mm)),
@@ -116,7 +120,12 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
         })
         .collect();
     let (curve, shape_mm) = match segment.at_bore(segment.bore_nominal_mm) {
-        Ok(p) => (p.sweep(CURVE_POINTS), p.shape_mm(op, 48)),
+        Ok(p) => (
+            p.sweep(CURVE_POINTS),
+            actuation::operating_stroke_mm(&p)
+                .map(|op| p.shape_mm(op, 48))
+                .unwrap_or_default(),
+        ),
         Err(_) => (Vec::new(), Vec::new()),
     };
     let window_mm = window_range_mm(&segment);
@@ -126,6 +135,7 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
             segment.bore_row(window_mm.0 + t * (window_mm.1 - window_mm.0))
         })
         .collect();
+    let operating_window = actuation::window(&segment, window_mm, WINDOW_POINTS);
     Ok(Analysis {
         segment,
         checks,
@@ -136,5 +146,6 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
         window_mm,
         shape_mm,
         cautions,
+        operating_window,
     })
 }

@@ -8,6 +8,8 @@ use std::f64::consts::PI;
 
 use serde::{Serialize, Serializer};
 
+use crate::actuation;
+use crate::design::Operating;
 use crate::segment::{Segment, SegmentError, SegmentState};
 
 /// Unit of a check's margin (serialised as its label, `mm` or `ratio`).
@@ -218,7 +220,7 @@ impl Serialize for Check {
 
 impl Check {
     /// A check of `id` judged at `bore_mm` and `stroke_mm`.
-    fn new(
+    pub(crate) fn new(
         id: CheckId,
         pass: bool,
         margin: Option<f64>,
@@ -240,7 +242,12 @@ impl Check {
 /// Every check of a segment, in a fixed order ([`CheckId::BASIC`]).
 pub fn run(seg: &Segment) -> Vec<Check> {
     let d = &seg.design;
-    let op = d.operating_stroke_mm;
+    // The set stroke under displacement control; under force control each bore has its
+    // own operating stroke (`actuation::operating_state`).
+    let set_op = match d.operating() {
+        Operating::Stroke(s) => Some(s),
+        _ => None,
+    };
     let small = seg.bore_smallest_mm;
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
@@ -270,14 +277,16 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         Ok(p) => match p.first_contact_stroke_mm() {
             Some(fc) => Check::new(
                 CheckId::Reach,
-                fc <= max_stroke,
-                Some(max_stroke - fc),
+                actuation::travel_at_mm(p, fc) <= max_stroke,
+                Some(max_stroke - actuation::travel_at_mm(p, fc)),
                 match p.stress_limit_stroke_mm().ok().filter(|&s| s < fc) {
                     Some(s) => format!(
-                        "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall"
+                        "first contact at {fc:.3} mm stroke{} vs actuator maximum {max_stroke:.3} mm; the strips reach their stress limit at {s:.3} mm, before they touch the wall",
+                        actuation::travel_note(p, fc)
                     ),
                     None => format!(
-                        "first contact at {fc:.3} mm stroke vs actuator maximum {max_stroke:.3} mm"
+                        "first contact at {fc:.3} mm stroke{} vs actuator maximum {max_stroke:.3} mm",
+                        actuation::travel_note(p, fc)
                     ),
                 },
                 Some(large),
@@ -303,7 +312,8 @@ pub fn run(seg: &Segment) -> Vec<Check> {
     let required = seg.required_holding_force_n();
     let hold = match &large_path {
         Ok(p) => {
-            let s = p.state(op);
+            let operating = actuation::operating_state(p);
+            let (op, s) = (operating.stroke_mm, operating.state);
             match s.holding_force_n {
                 Some(h) if required > 0.0 => Check::new(
                     CheckId::Hold,
@@ -314,7 +324,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                         s.phase, d.duty.holding_force_n, d.duty.safety_factor
                     ),
                     Some(large),
-                    Some(op),
+                    op,
                 ),
                 Some(h) => Check::new(
                     CheckId::Hold,
@@ -322,35 +332,42 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                     None,
                     format!("no holding force required; the segment holds {h:.2} N"),
                     Some(large),
-                    Some(op),
+                    op,
                 ),
                 None => beyond(CheckId::Hold, large, op, &s),
             }
         }
-        Err(e) => no_state(CheckId::Hold, large, Some(op), e),
+        Err(e) => no_state(CheckId::Hold, large, set_op, e),
     };
     out.push(hold);
 
     // 4-7 at the smallest bore and the operating stroke.
     match seg.at_bore(small) {
         Ok(p) => {
-            let s = p.state(op);
-            out.push(stress_check(seg, &s, small, op, CheckId::Static));
-            out.push(stress_check(seg, &s, small, op, CheckId::Fatigue));
-            out.push(actuator_check(seg, &s, small, op));
-            let limit = p.limit_stroke_mm();
-            let margin = (max_stroke - op).min(limit - op);
-            out.push(Check::new(
-                CheckId::Stroke,
-                op <= max_stroke && op < limit,
-                Some(margin),
-                format!(
-                    "operating {op:.3} mm vs actuator maximum {max_stroke:.3} mm and model limit {limit:.3} mm ({})",
-                    p.limit_reason().describe()
-                ),
-                Some(small),
-                Some(op),
-            ));
+            let operating = actuation::operating_state(&p);
+            let (op, s) = (operating.stroke_mm, &operating.state);
+            out.push(stress_check(seg, s, small, op, CheckId::Static));
+            out.push(stress_check(seg, s, small, op, CheckId::Fatigue));
+            out.push(actuator_check(seg, s, small, op));
+            out.push(match (op, operating.travel_mm) {
+                (Some(op), Some(travel)) => {
+                    let limit = p.limit_stroke_mm();
+                    let margin = (max_stroke - travel).min(limit - op);
+                    Check::new(
+                        CheckId::Stroke,
+                        travel <= max_stroke && op < limit,
+                        Some(margin),
+                        format!(
+                            "operating {op:.3} mm{} vs actuator maximum {max_stroke:.3} mm and model limit {limit:.3} mm ({})",
+                            actuation::travel_note(&p, op),
+                            p.limit_reason().describe()
+                        ),
+                        Some(small),
+                        Some(op),
+                    )
+                }
+                _ => beyond(CheckId::Stroke, small, op, s),
+            });
         }
         Err(e) => {
             for id in [
@@ -359,7 +376,7 @@ pub fn run(seg: &Segment) -> Vec<Check> {
                 CheckId::Actuator,
                 CheckId::Stroke,
             ] {
-                out.push(no_state(id, small, Some(op), &e));
+                out.push(no_state(id, small, set_op, &e));
             }
         }
     }
@@ -378,11 +395,15 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         None,
         Some(0.0),
     ));
+    // 9. Stable at the operating point: only for force control or a compliant drive.
+    if d.uses_actuation() {
+        out.push(actuation::stable_check(seg));
+    }
     out
 }
 
 /// The static or the fatigue check (`id`) of the state `s`.
-fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, id: CheckId) -> Check {
+fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: Option<f64>, id: CheckId) -> Check {
     let is_static = id == CheckId::Static;
     let (Some(stress), Some(fos)) = (
         s.max_stress_mpa,
@@ -407,17 +428,10 @@ fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64, id: CheckId
             seg.material.tensile_strength_mpa
         )
     };
-    Check::new(
-        id,
-        fos >= 1.0,
-        Some(fos - 1.0),
-        reason,
-        Some(bore),
-        Some(op),
-    )
+    Check::new(id, fos >= 1.0, Some(fos - 1.0), reason, Some(bore), op)
 }
 
-fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check {
+fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: Option<f64>) -> Check {
     let Some(reading) = s.actuator else {
         return beyond(CheckId::Actuator, bore, op, s);
     };
@@ -435,13 +449,13 @@ fn actuator_check(seg: &Segment, s: &SegmentState, bore: f64, op: f64) -> Check 
         margin.is_finite().then_some(margin),
         format!("needs {need:.3} {unit} vs rating {rating:.3} {unit}"),
         Some(bore),
-        Some(op),
+        op,
     )
 }
 
 /// A check with no state to judge at the operating stroke (past the model's limit, or a
 /// failed solve): the state's own reason.
-fn beyond(id: CheckId, bore: f64, op: f64, s: &SegmentState) -> Check {
+fn beyond(id: CheckId, bore: f64, op: Option<f64>, s: &SegmentState) -> Check {
     Check::new(
         id,
         false,
@@ -450,7 +464,7 @@ fn beyond(id: CheckId, bore: f64, op: f64, s: &SegmentState) -> Check {
             .clone()
             .unwrap_or_else(|| "no state at the operating stroke".to_string()),
         Some(bore),
-        Some(op),
+        op,
     )
 }
 
@@ -485,7 +499,6 @@ pub fn all_pass(checks: &[Check]) -> bool {
 /// they do not. Not a check of the contract: the checks judge the mechanics note's model;
 /// these say where its states stop being physical.
 pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
-    let op = seg.design.operating_stroke_mm;
     [
         ("smallest", seg.bore_smallest_mm),
         ("nominal", seg.bore_nominal_mm),
@@ -494,6 +507,7 @@ pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
     .iter()
     .filter_map(|&(label, bore)| {
         let path = seg.at_bore(bore).ok()?;
+        let op = actuation::operating_stroke_mm(&path)?;
         let (onset, kind) = path.overlap_mm(op)?;
         Some(format!(
             "at the {label} bore ({bore:.3} mm) and the operating stroke ({op:.3} mm) {}, from {onset:.3} mm of stroke on: states there are not physical",

@@ -17,6 +17,7 @@ use std::process::ExitCode;
 use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
+use crate::actuation::{self, Drive};
 use crate::checks::{self, Check, CheckId};
 use crate::design::{self, Design, show_number};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
@@ -92,9 +93,10 @@ pub enum Command {
 pub struct PointArgs {
     /// Design file (.ron).
     pub file: PathBuf,
-    /// End-plate travel from rest, mm.
+    /// End-plate travel from rest, mm [default: the operating point at this bore: the set
+    /// stroke, or the first stroke reaching the set pull or torque].
     #[arg(long = "stroke-mm", value_name = "MM", value_parser = stroke_mm, allow_negative_numbers = true)]
-    pub stroke_mm: f64,
+    pub stroke_mm: Option<f64>,
     /// Bore diameter, mm [default: the design's nominal bore].
     #[arg(long = "bore-mm", value_name = "MM", value_parser = bore_mm, allow_negative_numbers = true)]
     pub bore_mm: Option<f64>,
@@ -575,22 +577,44 @@ fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64)
 fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let (design, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
-    if a.stroke_mm > seg.max_stroke_mm() {
+    let drive = Drive::of(&seg);
+    // Without --stroke-mm: the operating point at this bore. A set pull never reached has
+    // no stroke; its state says why.
+    let (stroke_mm, unreached) = match a.stroke_mm {
+        Some(s) => (s, None),
+        None => {
+            let op = actuation::operating_state(&path);
+            match op.stroke_mm {
+                Some(s) => (s, None),
+                None => (f64::NAN, Some(op.state)),
+            }
+        }
+    };
+    if let Some(state) = unreached {
+        if a.json {
+            serde_json::to_writer(&mut *out, &point_json(&state, &drive)?)?;
+            writeln!(out)?;
+        } else {
+            write!(out, "{}", point_table(&seg, &state))?;
+        }
+        return Ok(Status::Done);
+    }
+    if stroke_mm > seg.max_stroke_mm() {
         // A note, not an error: the model state is still asked for. On stderr, so the JSON
         // and the table stay as they were.
         eprintln!(
             "bowgrip: note: stroke {} mm is past the actuator's maximum stroke of {} mm; the \
              actuator cannot reach it",
-            show_number(a.stroke_mm),
+            show_number(stroke_mm),
             show_number(seg.max_stroke_mm())
         );
     }
     let shared =
         sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
     if !shared {
-        let state = path.state(a.stroke_mm);
+        let state = path.state(stroke_mm);
         if a.json {
-            serde_json::to_writer(&mut *out, &state)?;
+            serde_json::to_writer(&mut *out, &point_json(&state, &drive)?)?;
             writeln!(out)?;
         } else {
             write!(out, "{}", point_table(&seg, &state))?;
@@ -608,28 +632,59 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         }),
     };
     let bore = path.bore_mm();
-    let loaded = sharing::loaded_point(
-        &seg,
-        bore,
-        a.stroke_mm,
-        choice,
-        sharing::Judge::HighestStress,
-    )
-    .map_err(|e| {
-        anyhow!(
-            "{}: load sharing at bore {} mm: {e}",
-            a.file.display(),
-            show_number(bore)
-        )
-    })?;
+    let loaded =
+        sharing::loaded_point(&seg, bore, stroke_mm, choice, sharing::Judge::HighestStress)
+            .map_err(|e| {
+                anyhow!(
+                    "{}: load sharing at bore {} mm: {e}",
+                    a.file.display(),
+                    show_number(bore)
+                )
+            })?;
     if a.json {
-        serde_json::to_writer(&mut *out, &loaded_json(&loaded)?)?;
+        let mut v = loaded_json(&loaded)?;
+        add_drive_keys(&mut v, &loaded.segment_state, &drive)?;
+        serde_json::to_writer(&mut *out, &v)?;
         writeln!(out)?;
     } else {
         write!(out, "{}", point_table(&seg, &loaded.segment_state))?;
         write!(out, "{}", strips_table(&loaded))?;
     }
     Ok(Status::Done)
+}
+
+/// A state as `point --json` prints it: the state's keys, then the actuation keys.
+fn point_json(state: &SegmentState, drive: &Drive) -> anyhow::Result<serde_json::Value> {
+    let mut v = serde_json::to_value(state)?;
+    add_drive_keys(&mut v, state, drive)?;
+    Ok(v)
+}
+
+/// Adds `travel_mm` (stroke + pull / stiffness; the stroke itself when rigid; `null`
+/// where there is no stroke, or no pull through a compliant drive) and `operating_mode`.
+fn add_drive_keys(
+    v: &mut serde_json::Value,
+    state: &SegmentState,
+    drive: &Drive,
+) -> anyhow::Result<()> {
+    let obj = v
+        .as_object_mut()
+        .ok_or_else(|| anyhow!("a state did not serialise as an object"))?;
+    obj.insert(
+        "travel_mm".into(),
+        serde_json::to_value(travel_of(state, drive))?,
+    );
+    obj.insert("operating_mode".into(), drive.mode_name().into());
+    Ok(())
+}
+
+/// Actuator travel at a state, mm (`None`: no stroke, or no pull through a compliant drive).
+fn travel_of(state: &SegmentState, drive: &Drive) -> Option<f64> {
+    let stroke = Some(state.stroke_mm).filter(|s| s.is_finite())?;
+    match drive.stiffness_n_per_mm {
+        None => Some(stroke),
+        Some(_) => state.actuator_force_n.map(|p| drive.travel_mm(stroke, p)),
+    }
 }
 
 /// The state's keys (means over the strips, the worst strip's stress), then the load
@@ -709,6 +764,25 @@ fn fixed(v: Option<f64>, decimals: usize) -> String {
     }
 }
 
+/// The operating mode in words with its value: `stroke 1.8 mm`, `pull 300 N`,
+/// `torque 0.5 N m (pull 942.5 N)`, and the drive's stiffness when it gives.
+fn operating_words(drive: &Drive) -> String {
+    let op = drive.operating;
+    let mut words = format!(
+        "{} {} {}",
+        op.mode_name(),
+        show_number(op.value()),
+        op.unit()
+    );
+    if let (crate::design::Operating::Torque(_), Some(p)) = (op, drive.set_pull_n) {
+        let _ = write!(words, " (pull {p:.2} N)");
+    }
+    if let Some(k) = drive.stiffness_n_per_mm {
+        let _ = write!(words, ", drive stiffness {} N/mm", show_number(k));
+    }
+    words
+}
+
 fn point_table(seg: &Segment, s: &SegmentState) -> String {
     let mut t = String::new();
     let bore_label = if s.bore_mm == seg.bore_nominal_mm {
@@ -719,7 +793,11 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
     let rows: Vec<(&str, String, &str)> = vec![
         (bore_label, format!("{:.3}", s.bore_mm), "mm"),
         ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
-        ("stroke", format!("{:.3}", s.stroke_mm), "mm"),
+        (
+            "stroke",
+            fixed(Some(s.stroke_mm).filter(|v| v.is_finite()), 3),
+            "mm",
+        ),
         ("phase", s.phase.to_string(), ""),
         (
             "axial force per strip",
@@ -774,6 +852,16 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
         );
     }
     let _ = writeln!(t, "{:<26} {}", "limit reason", s.limit_reason);
+    if seg.design.uses_actuation() {
+        let drive = Drive::of(seg);
+        let _ = writeln!(t, "{:<26} {}", "operating mode", operating_words(&drive));
+        let _ = writeln!(
+            t,
+            "{:<26} {:>14} mm",
+            "actuator travel",
+            fixed(travel_of(s, &drive), 3)
+        );
+    }
     if let Some(reason) = &s.reason {
         let _ = writeln!(t, "{:<26} {reason}", "no state");
     }
@@ -789,8 +877,8 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
 const SWEEP_EXTRA: &str = "bore_mm,crest_height_mm,static_safety_factor,\
 fatigue_safety_factor,limit_stroke_mm,limit_reason";
 
-fn sweep_csv_row(s: &SegmentState) -> String {
-    let extra = [
+fn sweep_csv_row(s: &SegmentState, drive: Option<&Drive>) -> String {
+    let mut extra = vec![
         s.bore_mm.to_string(),
         csv_cell(s.crest_height_mm),
         csv_cell(s.static_safety_factor),
@@ -798,6 +886,9 @@ fn sweep_csv_row(s: &SegmentState) -> String {
         s.limit_stroke_mm.to_string(),
         s.limit_reason.to_string(),
     ];
+    if let Some(drive) = drive {
+        extra.push(csv_cell(travel_of(s, drive)));
+    }
     format!("{},{}", s.csv_cells().join(","), extra.join(","))
 }
 
@@ -809,9 +900,13 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
     let n = a.points;
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
+    // Designs with a set pull or torque, or a compliant drive, get the actuator travel.
+    let drive = seg.design.uses_actuation().then(|| Drive::of(&seg));
     if a.csv || a.json {
-        let header = format!("{},{SWEEP_EXTRA}", STATE_COLUMNS.join(","));
-        tabular(&header, states.map(|s| sweep_csv_row(&s)), a.json, out)?;
+        let travel = if drive.is_some() { ",travel_mm" } else { "" };
+        let header = format!("{},{SWEEP_EXTRA}{travel}", STATE_COLUMNS.join(","));
+        let rows = states.map(|s| sweep_csv_row(&s, drive.as_ref()));
+        tabular(&header, rows, a.json, out)?;
         return Ok(Status::Done);
     }
     writeln!(
@@ -826,6 +921,9 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         path.limit_reason().describe(),
         seg.max_stroke_mm()
     )?;
+    if let Some(drive) = &drive {
+        writeln!(out, "{}", operating_line(&path, drive))?;
+    }
     writeln!(
         out,
         "{:>10} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
@@ -861,8 +959,34 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             fixed(s.max_stress_mpa, 1),
         )?;
     }
+    if drive
+        .as_ref()
+        .is_some_and(|d| d.stiffness_n_per_mm.is_some())
+    {
+        writeln!(
+            out,
+            "(actuator travel = stroke + pull / drive stiffness: column travel_mm of the CSV and JSON output)"
+        )?;
+    }
     writeln!(out, "{CAUTION}")?;
     Ok(Status::Done)
+}
+
+/// One line on the operating point at a path's bore: the mode, the operating stroke and
+/// the actuator travel, or why a set pull is never reached.
+fn operating_line(path: &BorePath, drive: &Drive) -> String {
+    let op = actuation::operating_state(path);
+    match (op.stroke_mm, op.travel_mm) {
+        (Some(s), Some(t)) => format!(
+            "operating point ({}): stroke {s:.3} mm, actuator travel {t:.3} mm",
+            operating_words(drive)
+        ),
+        _ => format!(
+            "operating point ({}): {}",
+            operating_words(drive),
+            op.state.reason.unwrap_or_default()
+        ),
+    }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -882,25 +1006,63 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let from_mm = a.from_mm.unwrap_or(seg.bore_smallest_mm);
     let to_mm = a.to_mm.unwrap_or(seg.bore_largest_mm);
     let rows = (0..a.points).map(|i| seg.bore_row(spaced(from_mm, to_mm, i, a.points)));
+    // Designs with a set pull or torque, or a compliant drive, get the operating stroke
+    // and the actuator travel at each bore.
+    let operating = seg.design.uses_actuation();
+    let op_cells = |bore_mm: f64| match actuation::operating_state_at(&seg, bore_mm) {
+        Ok(op) => (op.stroke_mm, op.travel_mm),
+        Err(_) => (None, None),
+    };
     if a.csv || a.json {
-        let header = BORE_ROW_COLUMNS.join(",");
-        tabular(&header, rows.map(|r| r.csv_line()), a.json, out)?;
+        let extra = if operating {
+            ",operating_stroke_mm,travel_mm"
+        } else {
+            ""
+        };
+        let header = format!("{}{extra}", BORE_ROW_COLUMNS.join(","));
+        let rows = rows.map(|r| {
+            if operating {
+                let (s, t) = op_cells(r.bore_mm);
+                format!("{},{},{}", r.csv_line(), csv_cell(s), csv_cell(t))
+            } else {
+                r.csv_line()
+            }
+        });
+        tabular(&header, rows, a.json, out)?;
         return Ok(Status::Done);
+    }
+    if operating {
+        writeln!(
+            out,
+            "operating point: {}",
+            operating_words(&Drive::of(&seg))
+        )?;
     }
     writeln!(
         out,
         "strokes in mm against bore; '-' where the quantity does not exist (the segment does not \
          fit or reach, or the path never gets there)"
     )?;
+    let (op_head, travel_head) = if operating {
+        (" operating", "  travel")
+    } else {
+        ("", "")
+    };
     writeln!(
         out,
-        "{:>10} {:>14} {:>10} {:>13} {:>13} {:>10}",
+        "{:>10} {:>14} {:>10} {:>13} {:>13} {:>10}{op_head}{travel_head}",
         "bore mm", "first contact", "holding", "stress limit", "line contact", "limit"
     )?;
     for r in rows {
+        let extra = if operating {
+            let (s, t) = op_cells(r.bore_mm);
+            format!(" {:>9} {:>7}", fixed(s, 3), fixed(t, 3))
+        } else {
+            String::new()
+        };
         writeln!(
             out,
-            "{:>10.3} {:>14} {:>10} {:>13} {:>13} {:>10}",
+            "{:>10.3} {:>14} {:>10} {:>13} {:>13} {:>10}{extra}",
             r.bore_mm,
             fixed(r.first_contact_stroke_mm, 3),
             fixed(r.holding_stroke_mm, 3),
@@ -923,7 +1085,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let limiting = checks::limiting(&list).map(|i| list[i].id);
     let cautions = checks::geometry_cautions(&seg);
     if a.json {
-        let doc = serde_json::json!({
+        let mut doc = serde_json::json!({
             "file": a.file.display().to_string(),
             "title": design.title,
             "pass": pass,
@@ -933,6 +1095,12 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "checks": list,
             "geometry_cautions": cautions,
         });
+        if design.uses_actuation()
+            && let Some(obj) = doc.as_object_mut()
+        {
+            obj.insert("operating_mode".into(), Drive::of(&seg).mode_name().into());
+            obj.insert("operating".into(), operating_json(&seg));
+        }
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
     } else if a.csv {
@@ -962,6 +1130,40 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     } else {
         Status::ChecksFailed
     })
+}
+
+/// The operating point at the smallest, nominal and largest bore, for `check --json`:
+/// `{case, bore_mm, stroke_mm, travel_mm, pull_n, reason}` (`null` stroke and travel, and a
+/// reason, where a set pull is never reached).
+fn operating_json(seg: &Segment) -> serde_json::Value {
+    let cases = [
+        ("smallest", seg.bore_smallest_mm),
+        ("nominal", seg.bore_nominal_mm),
+        ("largest", seg.bore_largest_mm),
+    ];
+    cases
+        .iter()
+        .map(
+            |&(case, bore)| match actuation::operating_state_at(seg, bore) {
+                Ok(op) => serde_json::json!({
+                    "case": case,
+                    "bore_mm": bore,
+                    "stroke_mm": op.stroke_mm,
+                    "travel_mm": op.travel_mm,
+                    "pull_n": op.state.actuator_force_n,
+                    "reason": op.unreached.map(|_| op.state.reason.clone()),
+                }),
+                Err(why) => serde_json::json!({
+                    "case": case,
+                    "bore_mm": bore,
+                    "stroke_mm": null,
+                    "travel_mm": null,
+                    "pull_n": null,
+                    "reason": why,
+                }),
+            },
+        )
+        .collect()
 }
 
 /// Columns of `check --csv`, in order.
@@ -1062,6 +1264,25 @@ fn check_table(
         let _ = writeln!(t, "all {} checks pass", list.len());
     } else {
         let _ = writeln!(t, "{failed} of {} checks fail", list.len());
+    }
+    if design.uses_actuation() {
+        let _ = writeln!(t, "operating point: {}", operating_words(&Drive::of(seg)));
+        for (case, bore) in [
+            ("smallest", seg.bore_smallest_mm),
+            ("nominal", seg.bore_nominal_mm),
+            ("largest", seg.bore_largest_mm),
+        ] {
+            let line = match actuation::operating_state_at(seg, bore) {
+                Ok(op) => match (op.stroke_mm, op.travel_mm) {
+                    (Some(s), Some(tr)) => {
+                        format!("stroke {s:.3} mm, actuator travel {tr:.3} mm")
+                    }
+                    _ => op.state.reason.unwrap_or_default(),
+                },
+                Err(why) => why,
+            };
+            let _ = writeln!(t, "  at the {case} bore {bore:.3} mm: {line}");
+        }
     }
     for c in cautions {
         let _ = writeln!(t, "geometry caution: {c}");

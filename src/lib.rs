@@ -5,6 +5,7 @@
 //! `material`, `pipe`, `friction`) import nothing from the GUI, file dialogs or the PDF
 //! writer. `design` is the RON design file; `cli`, `app` and `sheet` are the front ends.
 
+pub mod actuation;
 pub mod analysis;
 pub mod app;
 pub mod atomic;

@@ -455,6 +455,7 @@ mod tests {
             radius_mm: 5.0,
             max_torque_nm: 1.0,
             max_angle_deg: 360.0,
+            stiffness_n_per_mm: None,
         };
         let r = spool.reading(10.0, 200.0);
         assert!((r.position - (2.0f64).to_degrees()).abs() < 1e-12);
@@ -467,6 +468,7 @@ mod tests {
             efficiency: 0.5,
             max_torque_nm: 1.0,
             max_turns: 10.0,
+            stiffness_n_per_mm: None,
         };
         let r = screw.reading(6.0, 1000.0 * PI / 2.0);
         assert!((r.position - 3.0).abs() < 1e-12 && (r.effort - 1.0).abs() < 1e-12);
@@ -503,7 +505,7 @@ mod tests {
         let (from, to) = u.range_mm().unwrap_or_else(|| panic!("{}", u.describe()));
         let passes = |stroke: f64| {
             let mut d = d.clone();
-            d.operating_stroke_mm = stroke;
+            d.operating_stroke_mm = Some(stroke);
             let seg = Segment::new(&d).unwrap_or_else(|e| panic!("{e}"));
             checks::run(&seg)
                 .iter()

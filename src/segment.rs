@@ -413,9 +413,15 @@ impl Segment {
         self.design.actuator.max_pull_n()
     }
 
-    /// Actuator position and effort for a stroke and plate pull.
+    /// Actuator position and effort for a stroke and plate pull. The position counts the
+    /// actuator's travel, `stroke + pull / stiffness` through a compliant drive (the
+    /// stroke itself when the drive is rigid).
     pub fn actuator_reading(&self, stroke_mm: f64, pull_n: f64) -> ActuatorReading {
-        self.design.actuator.reading(stroke_mm, pull_n)
+        let travel_mm = match self.design.actuator.stiffness_n_per_mm() {
+            Some(k) => stroke_mm + pull_n / k,
+            None => stroke_mm,
+        };
+        self.design.actuator.reading(travel_mm, pull_n)
     }
 
     /// The actuator's rating in its own effort unit (N or N m).
@@ -503,6 +509,16 @@ impl BorePath<'_> {
     /// Gap to the wall, mm.
     pub fn gap_mm(&self) -> f64 {
         self.gap_mm
+    }
+
+    /// The segment this path belongs to.
+    pub fn segment(&self) -> &Segment {
+        self.segment
+    }
+
+    /// Strip free length, mm.
+    pub fn free_length_mm(&self) -> f64 {
+        self.l_mm()
     }
 
     /// The nondimensional path underneath.

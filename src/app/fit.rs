@@ -5,7 +5,7 @@
 //! [`checks::run`], then bisection at the holding boundary. No GUI types.
 
 use crate::checks::{self, Check, CheckId};
-use crate::design::Design;
+use crate::design::{Design, Operating};
 use crate::segment::Segment;
 
 /// Samples in the first scan.
@@ -64,7 +64,7 @@ impl FitVar {
             FitVar::Count => f64::from(d.strip.count),
             FitVar::FreeLength => d.strip.free_length_mm,
             FitVar::MountRadius => d.mount_radius_mm,
-            FitVar::OperatingStroke => d.operating_stroke_mm,
+            FitVar::OperatingStroke => set_stroke_mm(d),
         }
     }
 
@@ -76,7 +76,7 @@ impl FitVar {
             FitVar::Count => out.strip.count = v.round().clamp(2.0, 64.0) as u32,
             FitVar::FreeLength => out.strip.free_length_mm = v,
             FitVar::MountRadius => out.mount_radius_mm = v,
-            FitVar::OperatingStroke => out.operating_stroke_mm = v,
+            FitVar::OperatingStroke => out.set_operating(Operating::Stroke(v)),
         }
         out
     }
@@ -88,7 +88,7 @@ impl FitVar {
             FitVar::Thickness => (0.02, 2.0_f64.min(d.strip.width_mm), true),
             FitVar::Count => (2.0, 64.0, false),
             FitVar::FreeLength => (
-                (1.01 * d.operating_stroke_mm).max(5.0),
+                (1.01 * set_stroke_mm(d)).max(5.0),
                 2000.0_f64.min(50.0 * bore.max(1.0)),
                 true,
             ),
@@ -107,6 +107,15 @@ impl FitVar {
                 (0.0, d.strip.free_length_mm.min(hi), false)
             }
         }
+    }
+}
+
+/// The set stroke under displacement control, mm; 0 under force control (where the stroke
+/// follows from the pull at each bore).
+fn set_stroke_mm(d: &Design) -> f64 {
+    match d.operating() {
+        Operating::Stroke(s) => s,
+        Operating::Pull(_) | Operating::Torque(_) => 0.0,
     }
 }
 

@@ -10,7 +10,7 @@ use egui::{Color32, RichText, Ui};
 
 use super::{Command, Gesture};
 use crate::analysis::Analysis;
-use crate::design::{self, Actuator, Design, Ends, MaterialChoice, PipeRef, Stiffness};
+use crate::design::{self, Actuator, Design, Ends, MaterialChoice, Operating, PipeRef, Stiffness};
 use crate::{friction, material, pipe};
 
 /// One numeric row: what it edits and how its slider behaves.
@@ -106,6 +106,7 @@ fn direct(d: &mut Design) -> Option<(&mut f64, &mut f64)> {
         Actuator::Direct {
             max_force_n,
             max_stroke_mm,
+            ..
         } => Some((max_force_n, max_stroke_mm)),
         _ => None,
     }
@@ -118,6 +119,7 @@ fn spool(d: &mut Design) -> Option<(&mut f64, &mut f64, &mut f64)> {
             radius_mm,
             max_torque_nm,
             max_angle_deg,
+            ..
         } => Some((radius_mm, max_torque_nm, max_angle_deg)),
         _ => None,
     }
@@ -131,6 +133,7 @@ fn lead_screw(d: &mut Design) -> Option<(&mut f64, &mut f64, &mut f64, &mut f64)
             efficiency,
             max_torque_nm,
             max_turns,
+            ..
         } => Some((lead_mm, efficiency, max_torque_nm, max_turns)),
         _ => None,
     }
@@ -249,7 +252,9 @@ impl InputsPanel {
                     self.actuator_ui(ui, d, analysis, &mut out)
                 });
                 section(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
-                section(ui, "Operating point", |ui| self.stroke_ui(ui, d, &mut out));
+                section(ui, "Operating point", |ui| {
+                    self.stroke_ui(ui, d, analysis, &mut out)
+                });
             });
         out
     }
@@ -826,6 +831,7 @@ impl InputsPanel {
                     Actuator::Direct {
                         max_force_n: pull_n,
                         max_stroke_mm: stroke_mm,
+                        stiffness_n_per_mm: None,
                     },
                 ),
                 (
@@ -835,6 +841,7 @@ impl InputsPanel {
                         radius_mm: 5.0,
                         max_torque_nm: pull_n * 5e-3,
                         max_angle_deg: (stroke_mm / 5.0).to_degrees(),
+                        stiffness_n_per_mm: None,
                     },
                 ),
                 (
@@ -845,6 +852,7 @@ impl InputsPanel {
                         efficiency: 0.3,
                         max_torque_nm: pull_n * 1e-3 / (2.0 * std::f64::consts::PI * 0.3),
                         max_turns: stroke_mm,
+                        stiffness_n_per_mm: None,
                     },
                 ),
             ];
@@ -853,6 +861,7 @@ impl InputsPanel {
                 if ui.radio(on, name).on_hover_text(tip).clicked() && !on {
                     let mut next = d.clone();
                     next.actuator = proto;
+                    super::drive::keep_drive(d, &mut next);
                     self.propose_whole(next, "actuator", out);
                 }
             }
@@ -869,7 +878,19 @@ impl InputsPanel {
             (Row::new("actuator.efficiency", "Efficiency", "", 0.05, 1.0, "Screw efficiency: torque = pull x lead / (2 pi x efficiency)."), |d| lead_screw(d).map(|a| a.1)),
             (Row::new("actuator.max_torque_nm", "Max torque", "N m", 1e-3, 100.0, "Largest torque at the screw.").log(), |d| lead_screw(d).map(|a| a.2)),
             (Row::new("actuator.max_turns", "Max turns", "turns", 0.1, 200.0, "Largest number of screw turns.").log(), |d| lead_screw(d).map(|a| a.3)),
+            (Row::new("actuator.stiffness_n_per_mm", "Drive stiffness", "N/mm", 1.0, 1e6, "Series stiffness of the cord or drive between the actuator and the plates: the actuator travels stroke + pull / stiffness, and where the segment softens faster than this, a position-controlled drive lets it jump.").log(), drive_stiffness),
         ];
+        let mut compliant = d.actuator.stiffness_n_per_mm().is_some();
+        if ui
+            .checkbox(&mut compliant, "Compliant drive")
+            .on_hover_text("Off: the cord or drive is taken as rigid (travel = stroke). On: give its series stiffness; travel limits, spool angle and screw turns then count the travel, and the checks look for a jump under position control.")
+            .changed()
+        {
+            let mut next = d.clone();
+            next.actuator
+                .set_stiffness_n_per_mm(compliant.then_some(super::drive::DEFAULT_STIFFNESS_N_PER_MM));
+            self.propose_whole(next, "actuator", out);
+        }
         grid(ui, "actuator", |ui| self.rows(ui, d, out, rows));
         if let Some(e) = self.errors.get("actuator") {
             ui.label(RichText::new(e).color(error_color(ui)).small());
@@ -950,66 +971,201 @@ impl InputsPanel {
         }
     }
 
-    fn stroke_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
+    fn stroke_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        analysis: Option<&Analysis>,
+        out: &mut Vec<Command>,
+    ) {
         let l = d.strip.free_length_mm;
-        grid(ui, "stroke", |ui| {
-            self.row(
-                ui,
-                d,
-                Row::new(
-                    "operating_stroke_mm",
-                    "Operating stroke",
-                    "mm",
-                    0.0,
-                    l,
-                    "End-plate travel at which the segment is meant to hold.",
-                ),
-                d.operating_stroke_mm,
-                out,
-                |d, v| d.operating_stroke_mm = v,
+        let operating = d.operating();
+        // Switching keeps the operating point at the nominal bore where the analysis has it.
+        let nominal = analysis.and_then(|a| {
+            a.bores
+                .iter()
+                .find(|b| b.case == crate::analysis::BoreCase::Nominal)
+                .and_then(|b| b.operating.as_ref().ok())
+        });
+        let stroke_now = nominal.map_or(0.25 * l, |s| s.stroke_mm);
+        let pull_now = nominal.and_then(|s| s.actuator_force_n).unwrap_or(100.0);
+        let torque_now = nominal
+            .and_then(|s| s.actuator)
+            .filter(|r| r.effort_unit == "N m")
+            .map_or(0.1, |r| r.effort);
+        let direct = matches!(d.actuator, Actuator::Direct { .. });
+        ui.horizontal(|ui| {
+            ui.label("Set by").on_hover_text(
+                "What the actuator holds at the operating point. Switching keeps the operating point at the nominal bore.",
             );
-            match d.actuator {
-                Actuator::Spool { radius_mm, .. } => {
-                    let hi = (l / radius_mm).to_degrees();
-                    let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "operating.spool_angle_deg",
-                            "As spool angle",
-                            "deg",
-                            0.0,
-                            hi,
-                            &tip,
-                        ),
-                        (d.operating_stroke_mm / radius_mm).to_degrees(),
-                        out,
-                        move |d, v| d.operating_stroke_mm = v.to_radians() * radius_mm,
-                    );
+            let modes = [
+                (
+                    "Stroke",
+                    "Displacement control: the plates are drawn together by a set stroke, the same in every bore.",
+                    Operating::Stroke(stroke_now),
+                ),
+                (
+                    "Pull",
+                    "Force control: the actuator pulls with a set force (a spring, a pressure, a force-limited drive). In each bore the plates travel until the pull is reached, so the stroke differs across the bore tolerance.",
+                    Operating::Pull(pull_now),
+                ),
+                (
+                    "Torque",
+                    "Force control through the spool or screw: a torque-limited motor. The torque sets the pull on the plates, and the stroke differs across the bore tolerance.",
+                    Operating::Torque(torque_now),
+                ),
+            ];
+            for (name, tip, proto) in modes {
+                let on = std::mem::discriminant(&operating) == std::mem::discriminant(&proto);
+                let enabled = !(direct && matches!(proto, Operating::Torque(_)));
+                let tip = if enabled {
+                    tip.to_string()
+                } else {
+                    format!("{tip}\nA direct pull has no spool or screw: choose a spool or a lead screw first.")
+                };
+                let resp = ui
+                    .add_enabled(enabled, egui::RadioButton::new(on, name))
+                    .on_hover_text(&tip)
+                    .on_disabled_hover_text(&tip);
+                if resp.clicked() && !on {
+                    let mut next = d.clone();
+                    next.set_operating(proto);
+                    self.propose_whole(next, "operating", out);
                 }
-                Actuator::LeadScrew { lead_mm, .. } => {
-                    let hi = l / lead_mm;
-                    let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
-                    self.row(
-                        ui,
-                        d,
-                        Row::new(
-                            "operating.screw_turns",
-                            "As screw turns",
-                            "turns",
-                            0.0,
-                            hi,
-                            &tip,
-                        ),
-                        d.operating_stroke_mm / lead_mm,
-                        out,
-                        move |d, v| d.operating_stroke_mm = v * lead_mm,
-                    );
-                }
-                Actuator::Direct { .. } => {}
             }
         });
+        if let Some(e) = self.errors.get("operating") {
+            ui.label(RichText::new(e).color(error_color(ui)).small());
+        }
+        grid(ui, "stroke", |ui| {
+            match operating {
+                Operating::Stroke(stroke) => {
+                    let key = if d.operating.is_some() {
+                        "operating.Stroke"
+                    } else {
+                        "operating_stroke_mm"
+                    };
+                    self.row(
+                        ui,
+                        d,
+                        Row::new(
+                            key,
+                            "Operating stroke",
+                            "mm",
+                            0.0,
+                            l,
+                            "End-plate travel at which the segment is meant to hold.",
+                        ),
+                        stroke,
+                        out,
+                        |d, v| d.set_operating(Operating::Stroke(v)),
+                    );
+                    self.stroke_at_actuator_ui(ui, d, stroke, out);
+                }
+                Operating::Pull(pull) => self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "operating.Pull",
+                        "Set pull",
+                        "N",
+                        1.0,
+                        1e5,
+                        "Pull the actuator holds on the end plates. In each bore the operating stroke is the first stroke where the strips resist this pull.",
+                    )
+                    .log(),
+                    pull,
+                    out,
+                    |d, v| d.set_operating(Operating::Pull(v)),
+                ),
+                Operating::Torque(torque) => self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "operating.Torque",
+                        "Set torque",
+                        "N m",
+                        1e-3,
+                        100.0,
+                        "Torque the motor holds at the spool or screw; it sets the pull on the plates (spool: torque / radius; screw: 2 pi x efficiency x torque / lead).",
+                    )
+                    .log(),
+                    torque,
+                    out,
+                    |d, v| d.set_operating(Operating::Torque(v)),
+                ),
+            }
+        });
+        if let Some(a) = analysis {
+            super::drive::operating_summary_ui(ui, a);
+        }
+    }
+
+    /// The operating stroke in the actuator's own unit (spool angle, screw turns).
+    fn stroke_at_actuator_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        stroke: f64,
+        out: &mut Vec<Command>,
+    ) {
+        let l = d.strip.free_length_mm;
+        match d.actuator {
+            Actuator::Spool { radius_mm, .. } => {
+                let hi = (l / radius_mm).to_degrees();
+                let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "operating.spool_angle_deg",
+                        "As spool angle",
+                        "deg",
+                        0.0,
+                        hi,
+                        &tip,
+                    ),
+                    (stroke / radius_mm).to_degrees(),
+                    out,
+                    move |d, v| d.set_operating(Operating::Stroke(v.to_radians() * radius_mm)),
+                );
+            }
+            Actuator::LeadScrew { lead_mm, .. } => {
+                let hi = l / lead_mm;
+                let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
+                self.row(
+                    ui,
+                    d,
+                    Row::new(
+                        "operating.screw_turns",
+                        "As screw turns",
+                        "turns",
+                        0.0,
+                        hi,
+                        &tip,
+                    ),
+                    stroke / lead_mm,
+                    out,
+                    move |d, v| d.set_operating(Operating::Stroke(v * lead_mm)),
+                );
+            }
+            Actuator::Direct { .. } => {}
+        }
+    }
+}
+
+/// The drive's series stiffness, when the design gives one.
+fn drive_stiffness(d: &mut Design) -> Option<&mut f64> {
+    match &mut d.actuator {
+        Actuator::Direct {
+            stiffness_n_per_mm, ..
+        }
+        | Actuator::Spool {
+            stiffness_n_per_mm, ..
+        }
+        | Actuator::LeadScrew {
+            stiffness_n_per_mm, ..
+        } => stiffness_n_per_mm.as_mut(),
     }
 }
 

@@ -10,6 +10,7 @@
 
 mod bench;
 mod dialogs;
+mod drive;
 pub mod export;
 pub mod fit;
 mod help;

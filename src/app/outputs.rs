@@ -275,8 +275,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.vertical(|ui| {
             ui.set_width(cell.x);
             let (stroke, shape, note) = match &app.fallback_shape {
-                Some((s, shape)) => (*s, shape.as_slice(), format!(" (the operating stroke, {:.3} mm, is past the model's limit)", seg.design.operating_stroke_mm)),
-                None => (seg.design.operating_stroke_mm, a.shape_mm.as_slice(), String::new()),
+                Some((s, shape)) => (*s, shape.as_slice(), match a.nominal_operating_stroke_mm() { Some(op) => format!(" (the operating stroke, {op:.3} mm, is past the model's limit)"), None => " (the set pull is never reached at the nominal bore)".to_string() }),
+                None => (a.nominal_operating_stroke_mm().unwrap_or(0.0), a.shape_mm.as_slice(), String::new()),
             };
             let heading = format!("To scale at {stroke:.3} mm stroke{note}");
             ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
@@ -603,12 +603,7 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
                 c.add_to(p);
             }
             travel.add_to(p);
-            p.add(
-                HLine::new("operating stroke", seg.design.operating_stroke_mm)
-                    .color(mark)
-                    .style(LineStyle::dashed_dense())
-                    .width(1.5),
-            );
+            super::drive::operating_marker(p, a, mark);
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
@@ -666,11 +661,13 @@ fn phase_backdrop(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, bands: &[Band], m
     for b in bands {
         b.add_to(p);
     }
-    p.add(
-        VLine::new("operating stroke", a.segment.design.operating_stroke_mm)
-            .color(mark)
-            .style(LineStyle::dashed_dense()),
-    );
+    if let Some(op) = a.nominal_operating_stroke_mm() {
+        p.add(
+            VLine::new("operating stroke", op)
+                .color(mark)
+                .style(LineStyle::dashed_dense()),
+        );
+    }
 }
 
 /// In place of a plot against stroke when the nominal bore has no curve: says why, in the

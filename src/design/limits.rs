@@ -5,7 +5,7 @@
 //! file's size and nesting depth have their limits here too.
 
 use super::error::{DesignError, show_number};
-use super::types::{Actuator, Design, FORMAT_VERSION, MaterialChoice};
+use super::types::{Actuator, Design, FORMAT_VERSION, MaterialChoice, Operating};
 
 /// What a limit's upper bound is also tied to, besides its fixed maximum.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -132,7 +132,7 @@ const TOLERANCE_SHARE_OF_BORE: f64 = 0.25;
 /// Out-of-roundness up to a tenth of the nominal bore.
 const OUT_OF_ROUND_SHARE_OF_BORE: f64 = 0.1;
 
-static LIMITS: [FieldLimit; 34] = [
+static LIMITS: [FieldLimit; 38] = [
     closed(
         "title",
         0.0,
@@ -298,6 +298,11 @@ static LIMITS: [FieldLimit; 34] = [
         "turns",
         "largest number of screw turns",
     ),
+    rating(
+        "actuator.stiffness_n_per_mm",
+        "N/mm",
+        "series stiffness of the cord or drive (absent: rigid)",
+    ),
     FieldLimit {
         max_relative: Some((LimitBasis::FreeLength, 1.0)),
         ..closed(
@@ -308,6 +313,26 @@ static LIMITS: [FieldLimit; 34] = [
             "end-plate travel when holding",
         )
     },
+    FieldLimit {
+        max_relative: Some((LimitBasis::FreeLength, 1.0)),
+        ..closed(
+            "operating.Stroke",
+            0.0,
+            2000.0,
+            "mm",
+            "end-plate travel when holding (displacement control)",
+        )
+    },
+    rating(
+        "operating.Pull",
+        "N",
+        "set pull on the end plates (force control)",
+    ),
+    rating(
+        "operating.Torque",
+        "N m",
+        "set torque at the spool or screw (force control)",
+    ),
     closed("duty.holding_force_n", 0.0, 1e7, "N", "axial force to hold"),
     closed(
         "duty.radial_load_n",
@@ -410,6 +435,7 @@ impl Design {
             Actuator::Direct {
                 max_force_n,
                 max_stroke_mm,
+                ..
             } => fields.extend([
                 ("actuator.max_force_n", *max_force_n),
                 ("actuator.max_stroke_mm", *max_stroke_mm),
@@ -418,6 +444,7 @@ impl Design {
                 radius_mm,
                 max_torque_nm,
                 max_angle_deg,
+                ..
             } => fields.extend([
                 ("actuator.radius_mm", *radius_mm),
                 ("actuator.max_torque_nm", *max_torque_nm),
@@ -428,6 +455,7 @@ impl Design {
                 efficiency,
                 max_torque_nm,
                 max_turns,
+                ..
             } => fields.extend([
                 ("actuator.lead_mm", *lead_mm),
                 ("actuator.efficiency", *efficiency),
@@ -435,8 +463,16 @@ impl Design {
                 ("actuator.max_turns", *max_turns),
             ]),
         }
+        if let Some(k) = self.actuator.stiffness_n_per_mm() {
+            fields.push(("actuator.stiffness_n_per_mm", k));
+        }
+        if let Some(s) = self.operating_stroke_mm {
+            fields.push(("operating_stroke_mm", s));
+        }
+        if let Some(op) = self.operating {
+            fields.push((op.field(), op.value()));
+        }
         fields.extend([
-            ("operating_stroke_mm", self.operating_stroke_mm),
             ("duty.holding_force_n", self.duty.holding_force_n),
             ("duty.radial_load_n", self.duty.radial_load_n),
             ("duty.safety_factor", self.duty.safety_factor),
@@ -479,6 +515,7 @@ impl Design {
                 schedule: pipe.schedule.clone(),
             });
         }
+        self.validate_operating()?;
         for (field, value) in self.numeric_fields() {
             let Some(row) = limit(field) else { continue };
             if !row.admits(value, row.max_for(self)) {
@@ -560,6 +597,36 @@ fn scatter_error(e: crate::scatter::ScatterError) -> DesignError {
     }
 }
 
+impl Design {
+    /// The operating point is given once (`operating`, or the older
+    /// `operating_stroke_mm`), and a torque has a spool or screw to act through.
+    fn validate_operating(&self) -> Result<(), DesignError> {
+        let invalid = |message: &str| {
+            Err(DesignError::Invalid {
+                field: "operating".to_string(),
+                message: message.to_string(),
+            })
+        };
+        match (self.operating, self.operating_stroke_mm) {
+            (Some(_), Some(_)) => invalid(
+                "the operating point is given twice, here and as operating_stroke_mm; keep one \
+                 (operating_stroke_mm: S means operating: Stroke(S))",
+            ),
+            (None, None) => invalid(
+                "the operating point is missing: give operating: Stroke(mm), Pull(n) or \
+                 Torque(nm) (or the older operating_stroke_mm)",
+            ),
+            (Some(Operating::Torque(_)), _) if matches!(self.actuator, Actuator::Direct { .. }) => {
+                invalid(
+                    "Torque needs a spool or a lead screw to act through; a Direct actuator \
+                     takes Stroke(mm) or Pull(n)",
+                )
+            }
+            _ => Ok(()),
+        }
+    }
+}
+
 fn out_of_range(field: &str, value: f64, row: Option<&FieldLimit>, design: &Design) -> DesignError {
     DesignError::OutOfRange {
         field: field.to_string(),
@@ -614,6 +681,10 @@ mod tests {
             panic!("no tolerance row");
         };
         assert_eq!(minus.max_for(&design), 0.25 * design.bore.diameter_mm);
+        let Some(stroke) = limit("operating.Stroke") else {
+            panic!("no stroke row");
+        };
+        assert_eq!(stroke.max_for(&design), design.strip.free_length_mm);
         let Some(stroke) = limit("operating_stroke_mm") else {
             panic!("no stroke row");
         };
@@ -628,7 +699,9 @@ mod tests {
             radius_mm: 1.0,
             max_torque_nm: 1.0,
             max_angle_deg: 1.0,
+            stiffness_n_per_mm: Some(1.0),
         };
+        design.operating = Some(Operating::Pull(1.0));
         design.bore.bend = Some(crate::bend::Bend::RadiusMm(100.0));
         design.calibration = Some(crate::design::Calibration::default());
         design.strip.material = MaterialChoice::Custom {
@@ -643,7 +716,11 @@ mod tests {
         design.actuator = Actuator::Direct {
             max_force_n: 1.0,
             max_stroke_mm: 1.0,
+            stiffness_n_per_mm: None,
         };
+        design.operating = Some(Operating::Stroke(1.0));
+        seen.extend(design.numeric_fields().iter().map(|f| f.0));
+        design.operating = Some(Operating::Torque(1.0));
         seen.extend(design.numeric_fields().iter().map(|f| f.0));
         for field in &seen {
             assert!(limit(field).is_some(), "{field} has no limit row");

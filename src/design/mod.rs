@@ -24,7 +24,7 @@ pub use limits::{
 pub use positions::locate;
 pub use read::{decode, load, parse, read_bytes, read_text};
 pub use types::{
-    Actuator, Bore, Calibration, Design, Duty, Ends, FORMAT_VERSION, MaterialChoice, PipeRef,
-    Stiffness, Strip,
+    Actuator, Bore, Calibration, Design, Duty, Ends, FORMAT_VERSION, MaterialChoice, Operating,
+    PipeRef, Stiffness, Strip,
 };
 pub use write::{Rewrite, SaveText, edit_in_place, save_atomic, save_text, to_ron};

@@ -399,6 +399,26 @@ pub(crate) fn too_deep(text: &str, max: usize) -> (Option<(usize, usize)>, Optio
     (None, scanner.unclosed)
 }
 
+/// 1-based `(line, column)` of the bracket that closes the outermost value (where a field
+/// that is missing altogether would go).
+pub(crate) fn top_level_end(text: &str) -> Option<(usize, usize)> {
+    let mut scanner = Scanner::new(text);
+    let mut depth = 0usize;
+    while let Some(tok) = scanner.next_token() {
+        match tok.kind {
+            Kind::Open => depth += 1,
+            Kind::Close => {
+                depth = depth.saturating_sub(1);
+                if depth == 0 {
+                    return Some((tok.line, tok.column));
+                }
+            }
+            _ => {}
+        }
+    }
+    None
+}
+
 /// The first double-quoted string that starts before byte `before` and runs over a line
 /// end: where a missing closing quote really is (the parser only notices lines later,
 /// where the swallowed text ends). `(line, column)` of its opening quote.

@@ -11,7 +11,7 @@ use std::path::Path;
 use super::error::{DesignError, read_error};
 use super::limits::{MAX_FILE_BYTES, MAX_NESTING};
 use super::positions::{
-    declared_format, entry_at, locate, offset_of, string_across_lines, too_deep,
+    declared_format, entry_at, locate, offset_of, string_across_lines, too_deep, top_level_end,
 };
 use super::types::{Design, FORMAT_VERSION};
 
@@ -75,7 +75,12 @@ pub fn parse(text: &str) -> Result<Design, DesignError> {
             max,
             ..
         }) => {
-            let position = locate(text, &field);
+            // `operating.Pull` is the value inside `operating: Pull(...)`.
+            let position = locate(text, &field).or_else(|| {
+                field
+                    .rsplit_once('.')
+                    .and_then(|(parent, _)| locate(text, parent))
+            });
             Err(DesignError::OutOfRange {
                 field,
                 value,
@@ -91,7 +96,12 @@ pub fn parse(text: &str) -> Result<Design, DesignError> {
 
 /// `error` at the position of the field it is about, when the text spells it out.
 fn at_field(text: &str, error: DesignError) -> DesignError {
-    let position = error.field().and_then(|f| locate(text, f));
+    // A field that is missing altogether (the operating point) is placed where the
+    // design ends, as the parser places a missing field.
+    let position = error
+        .field()
+        .and_then(|f| locate(text, f))
+        .or_else(|| (error.field() == Some("operating")).then(|| top_level_end(text))?);
     match position {
         Some((line, column)) => DesignError::Positioned {
             line,

@@ -5,7 +5,7 @@
 
 use std::fmt;
 
-use serde::{Deserialize, Deserializer, Serialize};
+use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use super::error::{DesignError, show_number};
 use super::limits::pipe_inside_diameter_mm;
@@ -34,8 +34,23 @@ pub struct Design {
     pub friction: f64,
     /// What draws the end plates together.
     pub actuator: Actuator,
-    /// End-plate travel at which the segment is meant to hold.
-    pub operating_stroke_mm: f64,
+    /// End-plate travel at which the segment is meant to hold: the older spelling of
+    /// `operating: Stroke(mm)`. A file gives this or `operating`, not both; read the
+    /// operating point through [`Design::operating`].
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        serialize_with = "plain_some"
+    )]
+    pub operating_stroke_mm: Option<f64>,
+    /// How the actuator sets the operating point: a stroke, a pull or a torque (`None`:
+    /// the file gives `operating_stroke_mm` instead).
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        serialize_with = "plain_some"
+    )]
+    pub operating: Option<Operating>,
     /// The load to hold and how often.
     pub duty: Duty,
     /// Thickness of each end plate, mm: with the free length, the rigid length that must
@@ -189,12 +204,26 @@ pub enum Actuator {
     Direct {
         max_force_n: f64,
         max_stroke_mm: f64,
+        /// Series stiffness of the cord or drive, N/mm (`None`: rigid).
+        #[serde(
+            default,
+            skip_serializing_if = "Option::is_none",
+            serialize_with = "plain_some"
+        )]
+        stiffness_n_per_mm: Option<f64>,
     },
     /// A cord wound on a spool.
     Spool {
         radius_mm: f64,
         max_torque_nm: f64,
         max_angle_deg: f64,
+        /// Series stiffness of the cord, N/mm (`None`: rigid).
+        #[serde(
+            default,
+            skip_serializing_if = "Option::is_none",
+            serialize_with = "plain_some"
+        )]
+        stiffness_n_per_mm: Option<f64>,
     },
     /// A lead screw turning against a nut.
     LeadScrew {
@@ -202,7 +231,95 @@ pub enum Actuator {
         efficiency: f64,
         max_torque_nm: f64,
         max_turns: f64,
+        /// Series stiffness of the screw, nut and rods, N/mm (`None`: rigid).
+        #[serde(
+            default,
+            skip_serializing_if = "Option::is_none",
+            serialize_with = "plain_some"
+        )]
+        stiffness_n_per_mm: Option<f64>,
     },
+}
+
+/// How the actuator sets the operating point (`operating` in the file).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum Operating {
+    /// Displacement control: a fixed end-plate stroke, mm.
+    Stroke(f64),
+    /// Force control: a set pull on the end plates, N (a spring, a pressure, a
+    /// force-limited drive).
+    Pull(f64),
+    /// Force control through the spool or screw: a set torque, N m (a torque-limited
+    /// motor).
+    Torque(f64),
+}
+
+impl Operating {
+    /// The mode's name as `point --json` prints it: `stroke`, `pull` or `torque`.
+    pub fn mode_name(self) -> &'static str {
+        match self {
+            Operating::Stroke(_) => "stroke",
+            Operating::Pull(_) => "pull",
+            Operating::Torque(_) => "torque",
+        }
+    }
+
+    /// The value as set, in the mode's unit.
+    pub fn value(self) -> f64 {
+        match self {
+            Operating::Stroke(v) | Operating::Pull(v) | Operating::Torque(v) => v,
+        }
+    }
+
+    /// The unit of [`Operating::value`]: `mm`, `N` or `N m`.
+    pub fn unit(self) -> &'static str {
+        match self {
+            Operating::Stroke(_) => "mm",
+            Operating::Pull(_) => "N",
+            Operating::Torque(_) => "N m",
+        }
+    }
+
+    /// The dotted name of the value in [`super::limits`]: `operating.Stroke`, ...
+    pub fn field(self) -> &'static str {
+        match self {
+            Operating::Stroke(_) => "operating.Stroke",
+            Operating::Pull(_) => "operating.Pull",
+            Operating::Torque(_) => "operating.Torque",
+        }
+    }
+}
+
+impl Actuator {
+    /// Series stiffness of the cord or drive, N/mm (`None`: rigid).
+    pub fn stiffness_n_per_mm(&self) -> Option<f64> {
+        match self {
+            Actuator::Direct {
+                stiffness_n_per_mm, ..
+            }
+            | Actuator::Spool {
+                stiffness_n_per_mm, ..
+            }
+            | Actuator::LeadScrew {
+                stiffness_n_per_mm, ..
+            } => *stiffness_n_per_mm,
+        }
+    }
+
+    /// Sets (or, with `None`, removes) the series stiffness.
+    pub fn set_stiffness_n_per_mm(&mut self, value: Option<f64>) {
+        match self {
+            Actuator::Direct {
+                stiffness_n_per_mm, ..
+            }
+            | Actuator::Spool {
+                stiffness_n_per_mm, ..
+            }
+            | Actuator::LeadScrew {
+                stiffness_n_per_mm, ..
+            } => *stiffness_n_per_mm = value,
+        }
+    }
 }
 
 /// The load to hold.
@@ -256,8 +373,10 @@ impl Default for Design {
                 efficiency: 0.3,
                 max_torque_nm: 0.8,
                 max_turns: 8.0,
+                stiffness_n_per_mm: None,
             },
-            operating_stroke_mm: 1.8,
+            operating_stroke_mm: Some(1.8),
+            operating: None,
             duty: Duty {
                 holding_force_n: 20.0,
                 safety_factor: 2.0,
@@ -268,6 +387,35 @@ impl Default for Design {
             scatter: None,
             calibration: None,
         }
+    }
+}
+
+impl Design {
+    /// The operating point: `operating` when the file gives it, else the older
+    /// `operating_stroke_mm` as a stroke (a design that gives neither does not validate;
+    /// it reads as a zero stroke here).
+    pub fn operating(&self) -> Operating {
+        self.operating
+            .unwrap_or(Operating::Stroke(self.operating_stroke_mm.unwrap_or(0.0)))
+    }
+
+    /// Sets the operating point in the spelling the design already uses: a stroke stays
+    /// `operating_stroke_mm` where the design writes it so; anything else is `operating`.
+    pub fn set_operating(&mut self, operating: Operating) {
+        match operating {
+            Operating::Stroke(s) if self.operating.is_none() => self.operating_stroke_mm = Some(s),
+            other => {
+                self.operating = Some(other);
+                self.operating_stroke_mm = None;
+            }
+        }
+    }
+
+    /// Whether the design asks for more than today's rigid, fixed-stroke actuation: a set
+    /// pull or torque, or a drive stiffness. Without it every result is as before.
+    pub fn uses_actuation(&self) -> bool {
+        !matches!(self.operating(), Operating::Stroke(_))
+            || self.actuator.stiffness_n_per_mm().is_some()
     }
 }
 
@@ -294,6 +442,15 @@ impl Bore {
     /// The largest bore within tolerance: nominal plus `plus_mm`.
     pub fn largest_mm(&self) -> Result<f64, DesignError> {
         Ok(self.nominal_mm()? + self.plus_mm)
+    }
+}
+
+/// An optional value written without `Some(...)`, as a file spells it (the reader takes
+/// the bare value as present).
+fn plain_some<T: Serialize, S: Serializer>(value: &Option<T>, s: S) -> Result<S::Ok, S::Error> {
+    match value {
+        Some(v) => v.serialize(s),
+        None => s.serialize_none(),
     }
 }
 

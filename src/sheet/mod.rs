@@ -17,6 +17,7 @@ mod draw;
 mod font;
 mod format;
 mod map_page;
+mod operating;
 mod plot;
 mod scatter;
 mod sections;

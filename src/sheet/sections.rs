@@ -385,7 +385,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
             INK,
             &format!(
                 "At the operating stroke {} in the nominal bore {}: {}, holding force {} against {} required ({} x safety factor {}), actuator pull {}{act}.",
-                f::mm(d.operating_stroke_mm),
+                f::mm(s.stroke_mm),
                 f::mm(a.segment.bore_nominal_mm),
                 s.phase,
                 f::newton(h),
@@ -515,6 +515,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         Actuator::Direct {
             max_force_n,
             max_stroke_mm,
+            ..
         } => vec![
             pair("Kind", "direct pull on the plates".to_string()),
             pair("Maximum force", f::newton(*max_force_n)),
@@ -524,6 +525,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             radius_mm,
             max_torque_nm,
             max_angle_deg,
+            ..
         } => vec![
             pair("Kind", "cord on a spool".to_string()),
             pair("Spool radius r_s", f::mm(*radius_mm)),
@@ -537,6 +539,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             efficiency,
             max_torque_nm,
             max_turns,
+            ..
         } => vec![
             pair("Kind", "lead screw and nut".to_string()),
             pair("Lead", f::mm(*lead_mm)),
@@ -551,15 +554,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         ],
     };
     group(&mut right, &mut y, "Actuator", act);
-    let op = d.operating_stroke_mm;
-    let mut duty = vec![pair("Operating stroke δ", f::mm(op))];
-    let reading = seg.actuator_reading(op, 0.0);
-    if reading.position_unit != "mm" {
-        duty.push(pair(
-            "Operating stroke at the actuator",
-            f::in_unit(reading.position, reading.position_unit),
-        ));
-    }
+    let mut duty = super::operating::input_pairs(a);
     duty.extend([
         pair("Holding force to resist", f::newton(d.duty.holding_force_n)),
         pair("Safety factor on holding", f::factor(d.duty.safety_factor)),
@@ -676,7 +671,6 @@ fn material(a: &Analysis, width: f32) -> Section {
 
 fn bore_results(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let op = seg.design.operating_stroke_mm;
     let cases: Vec<&BoreResult> = BoreCase::ALL.iter().filter_map(|c| bore(a, *c)).collect();
     let mut rows = Vec::new();
     let per = |name: &str, get: &dyn Fn(&BoreResult) -> String| {
@@ -713,10 +707,19 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
         Ok(s) => s.limit_reason.to_string(),
         Err(_) => NONE.to_string(),
     }));
-    let mut band = row([format!("At the operating stroke {}", f::mm(op))]);
+    let mut band = row([super::operating::band_title(a)]);
     band.bold = true;
     band.shade = Some(SHADE);
     rows.push(band);
+    if let Some(first) = cases.first() {
+        for (i, (name, _)) in super::operating::bore_rows(a, first).iter().enumerate() {
+            rows.push(per(name, &|r| {
+                super::operating::bore_rows(a, r)
+                    .get(i)
+                    .map_or_else(String::new, |c| c.1.clone())
+            }));
+        }
+    }
     rows.push(per("Phase", &|r| match &r.operating {
         Ok(s) => s.phase.to_string(),
         Err(_) => "no state".to_string(),
@@ -947,7 +950,9 @@ fn finite_max(vals: impl IntoIterator<Item = f64>) -> f64 {
 
 fn window_plot(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let op = seg.design.operating_stroke_mm;
+    // Under force control the operating stroke is a curve across the bores.
+    let op_curve = super::operating::window_series(a);
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let max_stroke = seg.max_stroke_mm();
     let w = &a.window;
     let series = |get: fn(&crate::segment::BoreRow) -> Option<f64>| {
@@ -966,7 +971,8 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
                 ]
             })
             .flatten()
-            .chain([op]),
+            .chain([op])
+            .chain(op_curve.iter().filter_map(|p| p.1)),
     );
     let limit_top = finite_max(w.iter().filter_map(|r| r.limit_stroke_mm));
     let shown = if limit_top <= 1.5 * shown {
@@ -1043,10 +1049,18 @@ fn window_plot(a: &Analysis, width: f32) -> Section {
                 pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
                 y: max_stroke,
             },
-            Item::HLine {
-                label: format!("operating stroke {}", f::mm(op)),
-                pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-                y: op,
+            if op_curve.is_empty() {
+                Item::HLine {
+                    label: format!("operating stroke {}", f::mm(op)),
+                    pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                    y: op,
+                }
+            } else {
+                Item::series(
+                    "operating stroke (set pull reached)",
+                    Pen::dashed(INK, 0.9, &[2.0, 2.0]),
+                    op_curve,
+                )
             },
             Item::series(
                 "first contact",
@@ -1100,8 +1114,7 @@ fn stroke_marker(op: f64) -> Item {
 
 fn curve_plots(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let d = &seg.design;
-    let op = d.operating_stroke_mm;
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let c = &a.curve;
     if c.is_empty() {
         let mut b = Block::new();
@@ -1151,7 +1164,10 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
     };
     let first = a.curve.first().and_then(|s| s.first_contact_stroke_mm);
     let mut items = vec![
-        stroke_marker(op),
+        match a.nominal_operating_stroke_mm() {
+            Some(op) => stroke_marker(op),
+            None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
+        },
         Item::HLine {
             label: format!("required holding {}", f::newton(required)),
             pen: Pen::dashed(GREEN, 1.0, &[5.0, 2.5]),
@@ -1234,7 +1250,10 @@ fn curve_plots(a: &Analysis, width: f32) -> Section {
         x_range: (0.0, x_end),
         y_range: (0.0, if smax.is_finite() { 1.1 * smax } else { 1.0 }),
         items: vec![
-            stroke_marker(op),
+            match a.nominal_operating_stroke_mm() {
+                Some(op) => stroke_marker(op),
+                None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
+            },
             Item::HLine {
                 label: format!(
                     "static allowable 0.75 Su {}",
@@ -1312,7 +1331,7 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     let seg = &a.segment;
     let d = &seg.design;
     let s = &d.strip;
-    let op = d.operating_stroke_mm;
+    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
     let bore_d = seg.bore_nominal_mm as f32;
     let big_r = 0.5 * bore_d;
     let l = s.free_length_mm as f32;
@@ -1344,10 +1363,15 @@ fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         9.0,
         9.0,
         Weight::Bold,
-        format!(
-            "Side view, section through two strips, at stroke {}, scale {scale_label}",
-            f::mm(op)
-        ),
+        match super::operating::unreached_note(a) {
+            None => format!(
+                "Side view, section through two strips, at stroke {}, scale {scale_label}",
+                f::mm(op)
+            ),
+            Some(_) => format!(
+                "Side view, section through two strips, relaxed (the set pull is never reached in the nominal bore), scale {scale_label}"
+            ),
+        },
     );
     // Side view: x along the axis from the first end plate; the drawing, from the left
     // overhang to the right one, is centred in its box.

@@ -484,7 +484,7 @@ fn strips_that_swing_behind_the_plates_raise_a_geometry_caution() {
     std::fs::write(&file, design::to_ron(&d).unwrap_or_else(|e| panic!("{e}")))
         .unwrap_or_else(|e| panic!("{e}"));
     open_through_the_window(&mut h, &file);
-    assert_eq!(h.state().design().operating_stroke_mm, 27.0);
+    assert_eq!(h.state().design().operating_stroke_mm, Some(27.0));
     assert!(h.query_by_label_contains("Geometry caution").is_some());
     // One line for each of the three bores.
     assert_eq!(

@@ -250,7 +250,6 @@ fn bad_numbers_on_the_command_line_exit_2() {
         &["point", f, "--stroke-mm", "1", "--bore-mm", "-70"],
         &["--bore-mm", "> 0"],
     );
-    assert_refused(&["point", f], &["--stroke-mm"]);
     assert_refused(&["sweep", f, "--points", "1"], &["--points", "from 2"]);
     assert_refused(
         &[

@@ -6,14 +6,15 @@ use std::fs;
 use std::path::{Path, PathBuf};
 
 use bowgrip::design::{
-    self, Actuator, Bore, Design, DesignError, Ends, MaterialChoice, PipeRef, Stiffness,
+    self, Actuator, Bore, Design, DesignError, Ends, MaterialChoice, Operating, PipeRef, Stiffness,
 };
 use proptest::prelude::*;
 
-const SAMPLES: [&str; 3] = [
+const SAMPLES: [&str; 4] = [
     "riser-climber-2in-sch40.ron",
     "duct-anchor-150mm-stainless.ron",
     "drain-crawler-anchor-100mm.ron",
+    "water-main-tractor-torque-screw.ron",
 ];
 
 fn sample_path(name: &str) -> PathBuf {
@@ -198,20 +199,35 @@ fn arbitrary_design() -> impl Strategy<Value = Design> {
                     0 => Actuator::Direct {
                         max_force_n: a,
                         max_stroke_mm: s,
+                        stiffness_n_per_mm: None,
                     },
                     1 => Actuator::Spool {
                         radius_mm: a,
                         max_torque_nm: s,
                         max_angle_deg: h,
+                        stiffness_n_per_mm: None,
                     },
                     _ => Actuator::LeadScrew {
                         lead_mm: a,
                         efficiency: s,
                         max_torque_nm: h,
                         max_turns: mu,
+                        stiffness_n_per_mm: None,
                     },
                 };
-                design.operating_stroke_mm = h;
+                // Every spelling of the operating point, and a drive stiffness or none.
+                match cycles % 4 {
+                    0 => design.operating_stroke_mm = Some(h),
+                    1 => design.operating = Some(Operating::Stroke(h)),
+                    2 => design.operating = Some(Operating::Pull(h)),
+                    _ => design.operating = Some(Operating::Torque(h)),
+                }
+                if design.operating.is_some() {
+                    design.operating_stroke_mm = None;
+                }
+                if (cycles >> 2) % 2 == 1 {
+                    design.actuator.set_stiffness_n_per_mm(Some(d));
+                }
                 design.duty.holding_force_n = h;
                 design.duty.cycles = cycles;
                 design
@@ -224,7 +240,11 @@ proptest! {
     #[test]
     fn any_design_round_trips_exactly(d in arbitrary_design()) {
         let text = design::to_ron(&d).unwrap_or_else(|e| panic!("{e}"));
-        let back: Design = ron::from_str(&text).map_err(|e| TestCaseError::fail(format!("{e}\n{text}")))?;
+        // Read as the design reader reads: optional fields written as bare values.
+        let back: Design = ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME)
+            .from_str(&text)
+            .map_err(|e| TestCaseError::fail(format!("{e}\n{text}")))?;
         prop_assert_eq!(back, d);
     }
 }
@@ -270,10 +290,11 @@ fn issue_literal_loads_unchanged() {
         d.actuator,
         Actuator::Direct {
             max_force_n: 1000.0,
-            max_stroke_mm: 10.0
+            max_stroke_mm: 10.0,
+            stiffness_n_per_mm: None,
         }
     );
-    assert_eq!(d.operating_stroke_mm, 4.0);
+    assert_eq!(d.operating_stroke_mm, Some(4.0));
     assert_eq!(
         (d.duty.holding_force_n, d.duty.safety_factor, d.duty.cycles),
         (40.0, 2.0, 100_000)
@@ -326,6 +347,7 @@ fn issue_alternatives_load() {
                 radius_mm: 8.0,
                 max_torque_nm: 2.0,
                 max_angle_deg: 720.0,
+                stiffness_n_per_mm: None,
             },
         ),
         (
@@ -335,6 +357,7 @@ fn issue_alternatives_load() {
                 efficiency: 0.4,
                 max_torque_nm: 1.5,
                 max_turns: 10.0,
+                stiffness_n_per_mm: None,
             },
         ),
     ] {
@@ -1076,6 +1099,7 @@ fn a_structural_change_is_rewritten_and_says_so_first() {
     d.actuator = Actuator::Direct {
         max_force_n: 500.0,
         max_stroke_mm: 12.0,
+        stiffness_n_per_mm: None,
     };
     let plan = design::save_text(Some(&original), &d).unwrap_or_else(|e| panic!("{e}"));
     assert!(plan.loses_layout(), "{plan:?}");

@@ -53,13 +53,14 @@ fn poke(d: &mut Design, i: usize, v: f64) {
         7 => d.bore.minus_mm = v,
         8 => d.bore.plus_mm = v,
         9 => d.friction = v,
-        10 => d.operating_stroke_mm = v,
+        10 => d.operating_stroke_mm = Some(v),
         11 => d.duty.holding_force_n = v,
         12 => d.duty.safety_factor = v,
         13 => {
             d.actuator = Actuator::Direct {
                 max_force_n: v,
                 max_stroke_mm: 10.0,
+                stiffness_n_per_mm: None,
             };
         }
         14 => {
@@ -68,6 +69,7 @@ fn poke(d: &mut Design, i: usize, v: f64) {
                 efficiency: v,
                 max_torque_nm: 1.0,
                 max_turns: 5.0,
+                stiffness_n_per_mm: None,
             };
         }
         _ => {
@@ -75,6 +77,7 @@ fn poke(d: &mut Design, i: usize, v: f64) {
                 radius_mm: v,
                 max_torque_nm: 1.0,
                 max_angle_deg: 360.0,
+                stiffness_n_per_mm: None,
             };
         }
     }

@@ -676,7 +676,7 @@ fn design_entry_gives_the_governing_case_and_its_check_inputs() {
     assert!(!sharing::design_uses_sharing(&plain));
     let seg = Segment::new(&plain).expect("valid");
     let bore = seg.bore_largest_mm;
-    let stroke = seg.design.operating_stroke_mm;
+    let stroke = seg.design.operating().value();
     let centred = seg.at_bore(bore).expect("fits").state(stroke);
     let p = sharing::loaded_point(
         &seg,

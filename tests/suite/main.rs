@@ -1,4 +1,5 @@
 //! The one integration-test binary: cross-module and reference checks, each citing its source.
+mod actuation;
 mod app;
 mod app_bench;
 mod app_map;

@@ -83,7 +83,7 @@ impl MarginModel for FreeAxialForce {
 
 fn free_phase_design() -> Design {
     Design {
-        operating_stroke_mm: FREE_STROKE_MM,
+        operating_stroke_mm: Some(FREE_STROKE_MM),
         ..Design::default()
     }
 }

@@ -106,6 +106,7 @@ fn actuator_mappings() {
             radius_mm: 5.0,
             max_torque_nm: 2.0,
             max_angle_deg: 720.0,
+            stiffness_n_per_mm: None,
         },
         ..Design::default()
     };
@@ -119,6 +120,7 @@ fn actuator_mappings() {
         efficiency: 0.35,
         max_torque_nm: 0.4,
         max_turns: 12.0,
+        stiffness_n_per_mm: None,
     };
     let seg = Segment::new(&d).expect("valid");
     let r = seg.actuator_reading(2.0, 300.0);
@@ -146,7 +148,7 @@ fn checks_are_judged_where_the_contract_says() {
     assert_eq!(at("hold").bore_mm, Some(seg.bore_largest_mm));
     for id in ["static", "fatigue", "actuator", "stroke"] {
         assert_eq!(at(id).bore_mm, Some(seg.bore_smallest_mm), "{id}");
-        assert_eq!(at(id).stroke_mm, Some(d.operating_stroke_mm), "{id}");
+        assert_eq!(at(id).stroke_mm, d.operating_stroke_mm, "{id}");
     }
     // Hub check: b <= 2 r_m tan(pi/N), margin in mm.
     let room = 2.0 * d.mount_radius_mm * (PI / f64::from(d.strip.count)).tan();
@@ -239,7 +241,7 @@ fn design_strategy_with_gaps(gaps: std::ops::Range<f64>) -> impl Strategy<Value 
                 d.bore.diameter_mm = 2.0 * (r * r + 0.25 * d.strip.width_mm.powi(2)).sqrt();
                 d.bore.minus_mm = 0.0;
                 d.bore.plus_mm = 0.0;
-                d.operating_stroke_mm = 0.05 * length;
+                d.operating_stroke_mm = Some(0.05 * length);
                 d
             },
         )
@@ -374,11 +376,11 @@ fn geometry_cautions_name_strips_that_leave_the_plates() {
     let mut d = crate::shared::wide_gap_design();
     d.bore.minus_mm = 0.0;
     d.bore.plus_mm = 0.0;
-    d.operating_stroke_mm = 12.0; // delta/L = 0.2: no overlap yet
+    d.operating_stroke_mm = Some(12.0); // delta/L = 0.2: no overlap yet
     let seg = Segment::new(&d).expect("valid");
     assert!(rel(seg.gap_mm(100.0) / 60.0, 0.229) < 0.01);
     assert!(checks::geometry_cautions(&seg).is_empty());
-    d.operating_stroke_mm = 27.0; // delta/L = 0.45
+    d.operating_stroke_mm = Some(27.0); // delta/L = 0.45
     let seg = Segment::new(&d).expect("valid");
     let cautions = checks::geometry_cautions(&seg);
     assert_eq!(cautions.len(), 3, "{cautions:?}"); // all three bores are the same here

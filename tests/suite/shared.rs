@@ -12,7 +12,7 @@ pub fn wide_gap_design() -> Design {
         title: "Wide gap: strips swing behind the plates".to_string(),
         mount_radius_mm: 36.0,
         end_plate_diameter_mm: 70.0,
-        operating_stroke_mm: 27.0,
+        operating_stroke_mm: Some(27.0),
         ..Design::default()
     };
     d.strip.free_length_mm = 60.0;

@@ -82,6 +82,7 @@ fn designs() -> Vec<(String, Design)> {
                 radius_mm: 6.0,
                 max_torque_nm: 1.5,
                 max_angle_deg: 90.0,
+                stiffness_n_per_mm: None,
             };
         }),
     ));
@@ -91,6 +92,7 @@ fn designs() -> Vec<(String, Design)> {
             d.actuator = Actuator::Direct {
                 max_force_n: 300.0,
                 max_stroke_mm: 4.0,
+                stiffness_n_per_mm: None,
             };
         }),
     ));
