@@ -147,11 +147,31 @@ impl MapView {
         };
         let spec = match MapSpec::new(design, &x, &y) {
             Ok(spec) => Ok(spec),
-            Err(first @ (MapError::OutOfRange { .. } | MapError::Range { .. })) => {
-                // The design moved: the old ranges may reach outside its limits now.
+            Err(
+                first @ (MapError::OutOfRange { .. }
+                | MapError::Range { .. }
+                | MapError::UnknownField { .. }),
+            ) => {
+                // The design moved: the old ranges may reach outside its limits now, or a
+                // field may be gone (another actuator or material): that axis goes back
+                // to its default field.
+                let known: Vec<&str> = map::fields(design).iter().map(|r| r.field).collect();
+                // The asked field if the design still has it, else the first default
+                // the other axis does not use.
+                let field = |asked: &str, other: &str| {
+                    if known.contains(&asked) {
+                        asked.to_string()
+                    } else if DEFAULT_FIELDS.0 != other {
+                        DEFAULT_FIELDS.0.to_string()
+                    } else {
+                        DEFAULT_FIELDS.1.to_string()
+                    }
+                };
+                let xf = field(&x.field, &y.field);
+                let yf = field(&y.field, &xf);
                 let again = (
-                    AxisSpec::around(design, &x.field, x.points),
-                    AxisSpec::around(design, &y.field, y.points),
+                    AxisSpec::around(design, &xf, x.points),
+                    AxisSpec::around(design, &yf, y.points),
                 );
                 match again {
                     (Some(x2), Some(y2)) => MapSpec::new(design, &x2, &y2)

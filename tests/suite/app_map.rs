@@ -141,3 +141,43 @@ fn a_click_on_the_map_moves_the_design_and_undo_restores_it() {
     assert_eq!(*h.state().design(), d0);
     assert!(!h.state().is_dirty());
 }
+
+#[test]
+fn an_axis_whose_field_goes_returns_to_a_default_field() {
+    // A map over the lead screw's lead: when the design changes to a direct pull, that
+    // field is gone, and the axis goes back to a default field instead of leaving the
+    // window empty (the fields a map can vary are the design's own, issue #15).
+    use bowgrip::app::{Command, Gesture};
+    use bowgrip::design::Actuator;
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    h.state_mut().map_view_mut().open = true;
+    h.state_mut().map_view_mut().set_axes(
+        axis("actuator.lead_mm:0.5:2:4"),
+        axis("strip.thickness_mm:0.2:0.3:3"),
+    );
+    wait_for_map(&mut h);
+    let mut d = h.state().design().clone();
+    d.actuator = Actuator::Direct {
+        max_force_n: 2000.0,
+        max_stroke_mm: 8.0,
+        stiffness_n_per_mm: None,
+    };
+    h.state_mut()
+        .push(Command::Edit(Box::new(d), Gesture::Done));
+    h.run_steps(2);
+    let (x, y) = h
+        .state()
+        .map_view()
+        .axes()
+        .cloned()
+        .unwrap_or_else(|| panic!("no axes"));
+    assert_eq!(y.field, "strip.thickness_mm", "the field still there stays");
+    assert_eq!(
+        x.field, "strip.free_length_mm",
+        "the lost one takes a default"
+    );
+    assert!(h.state().map_view().error().is_none());
+    wait_for_map(&mut h);
+}
