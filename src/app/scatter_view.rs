@@ -278,6 +278,12 @@ fn sensitivity_ui(ui: &mut Ui, r: &ScatterReport, chart_check: &mut Option<&'sta
         return;
     }
     let Some(centre) = centre else { return };
+    // Ratio margins in per cent, as the table shows them.
+    let scale = if unit == MarginUnit::Ratio {
+        100.0
+    } else {
+        1.0
+    };
     let n = list.len();
     let mut low = Vec::new();
     let mut high = Vec::new();
@@ -287,23 +293,31 @@ fn sensitivity_ui(ui: &mut Ui, r: &ScatterReport, chart_check: &mut Option<&'sta
         let at = (n - 1 - k) as f64;
         names.push((at, s.input));
         if let Some(m) = s.margin_low {
-            low.push(Bar::new(at + 0.18, m - centre).width(0.34).name(format!(
-                "{} low end: margin {}",
-                s.input,
-                margin_text(Some(m), unit)
-            )));
+            low.push(
+                Bar::new(at + 0.18, scale * (m - centre))
+                    .width(0.34)
+                    .name(format!(
+                        "{} low end: margin {}",
+                        s.input,
+                        margin_text(Some(m), unit)
+                    )),
+            );
         }
         if let Some(m) = s.margin_high {
-            high.push(Bar::new(at - 0.18, m - centre).width(0.34).name(format!(
-                "{} high end: margin {}",
-                s.input,
-                margin_text(Some(m), unit)
-            )));
+            high.push(
+                Bar::new(at - 0.18, scale * (m - centre))
+                    .width(0.34)
+                    .name(format!(
+                        "{} high end: margin {}",
+                        s.input,
+                        margin_text(Some(m), unit)
+                    )),
+            );
         }
     }
     let unit_words = match unit {
         MarginUnit::Mm => "change of margin, mm",
-        MarginUnit::Ratio => "change of margin (ratio)",
+        MarginUnit::Ratio => "change of margin, percentage points",
     };
     let names_for_axis = names.clone();
     Plot::new("scatter-sensitivities")
@@ -502,11 +516,13 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
             ui.end_row();
             for (c, w) in r.checks.iter().zip(&r.worst_case) {
                 let swatch = palette::check_colour(c.id);
-                ui.label(
-                    RichText::new(c.id)
-                        .color(Color32::from_rgb(swatch.r, swatch.g, swatch.b))
-                        .strong(),
-                );
+                // The palette's black (the hub) would vanish on a dark theme: text colour.
+                let id = RichText::new(c.id).strong();
+                ui.label(if swatch == palette::OKABE_ITO[0].1 {
+                    id
+                } else {
+                    id.color(Color32::from_rgb(swatch.r, swatch.g, swatch.b))
+                });
                 let p = RichText::new(percent(c.probability_of_failure));
                 ui.label(if c.failures > 0 {
                     p.color(error_color(ui))
