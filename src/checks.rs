@@ -1,4 +1,5 @@
-//! The design checks: each judged at its own bore and stroke (the project's contract),
+//! The design checks: each judged at its own bore and stroke (docs/contract.md, "Checks:
+//! where each is judged"),
 //! with pass/fail, a margin in the check's own unit (mm for geometry, otherwise a ratio
 //! minus one; positive when passing) and a one-line reason. [`CheckId`] names each check
 //! and holds its title and unit in one place; [`Check::margin_text`] is the one way the
@@ -346,8 +347,10 @@ pub fn run(seg: &Segment) -> Vec<Check> {
         Ok(p) => {
             let operating = actuation::operating_state(&p);
             let (op, s) = (operating.stroke_mm, &operating.state);
-            out.push(stress_check(seg, s, small, op, CheckId::Static));
-            out.push(stress_check(seg, s, small, op, CheckId::Fatigue));
+            for id in [CheckId::Static, CheckId::Fatigue] {
+                let here = stress_check(seg, s, small, op, id);
+                out.push(worse_under_set_pull(seg, here, large, id));
+            }
             out.push(actuator_check(seg, s, small, op));
             out.push(match (op, operating.travel_mm) {
                 (Some(op), Some(travel)) => {
@@ -403,6 +406,33 @@ pub fn run(seg: &Segment) -> Vec<Check> {
 }
 
 /// The static or the fatigue check (`id`) of the state `s`.
+/// Under a set pull or torque the stroke is longest, and so the stress highest, in the
+/// largest bore, not the smallest where a fixed stroke stresses the strips most. There the
+/// stress checks are judged at whichever end of the bore tolerance gives the smaller margin,
+/// and the reason says so; under a fixed stroke `at_smallest` is returned unchanged.
+fn worse_under_set_pull(seg: &Segment, at_smallest: Check, large: f64, id: CheckId) -> Check {
+    if !actuation::Drive::of(seg).is_force_controlled() {
+        return at_smallest;
+    }
+    let Ok(p) = seg.at_bore(large) else {
+        return at_smallest;
+    };
+    let o = actuation::operating_state(&p);
+    let mut there = stress_check(seg, &o.state, large, o.stroke_mm, id);
+    let worse = match (at_smallest.margin, there.margin) {
+        (Some(a), Some(b)) => b < a,
+        _ => at_smallest.pass && !there.pass,
+    };
+    if !worse {
+        return at_smallest;
+    }
+    there.reason = format!(
+        "judged at the largest bore, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
+        there.reason
+    );
+    there
+}
+
 fn stress_check(seg: &Segment, s: &SegmentState, bore: f64, op: Option<f64>, id: CheckId) -> Check {
     let is_static = id == CheckId::Static;
     let (Some(stress), Some(fos)) = (
@@ -496,7 +526,8 @@ pub fn all_pass(checks: &[Check]) -> bool {
 /// Geometry cautions beside the checks: at each of the smallest, nominal and largest bore,
 /// whether the strips at the operating stroke leave the room between the plates (swing
 /// behind an end plate or cross themselves), which the model does not prevent. Empty when
-/// they do not. Not a check of the contract: the checks judge the mechanics note's model;
+/// they do not. Not one of the contract's checks: the checks judge the model of
+/// docs/mechanics.md;
 /// these say where its states stop being physical.
 pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
     [

@@ -8,11 +8,11 @@
 use super::Section;
 use super::draw::{Block, GREY, INK, LIGHT, Rgb};
 use super::font::Weight;
-use super::plot::ticks;
 use super::sections::section as titled;
 use crate::design::Design;
 use crate::map::palette::{self, Rgb as MapRgb};
 use crate::map::{Axis, AxisSpec, DesignMap, MapSpec};
+use crate::ticks::ticks;
 
 /// Room left of the map for the y tick labels and the axis label, points.
 const LEFT_PT: f32 = 54.0;
