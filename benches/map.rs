@@ -2,6 +2,10 @@
 //! 100 x 100 map of the demo design <= 1 s; the first coarse picture of a 200 x 200 map
 //! (every 16th row and column complete) <= 100 ms, the time the app waits for a first
 //! picture.
+//!
+//! Measured (criterion, `--warm-up-time 1 --measurement-time 3`, this machine with other
+//! builds running, branch h5-map-scatter after 8bf855e): 100 x 100 map of the demo
+//! 179 ms (150 to 198 ms); first coarse picture of a 200 x 200 map 4.5 ms.
 
 use std::hint::black_box;
 use std::sync::atomic::{AtomicBool, Ordering};

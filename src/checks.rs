@@ -31,6 +31,16 @@ impl MarginUnit {
             MarginUnit::Ratio => "ratio",
         }
     }
+
+    /// A margin `m` in this unit as [`Check::margin_text`] writes it (`+0.125 mm`,
+    /// `+42.0 %`); `None` when it is not finite.
+    pub fn margin_text(self, m: f64) -> Option<String> {
+        let m = Some(m).filter(|m| m.is_finite())?;
+        Some(match self {
+            MarginUnit::Mm => format!("{:+.3} mm", no_negative_zero(m, 3)),
+            MarginUnit::Ratio => format!("{:+.1} %", no_negative_zero(100.0 * m, 1)),
+        })
+    }
 }
 
 /// Which check: the stable id (serialised in kebab-case, as `check --json` prints it) with,
@@ -169,11 +179,7 @@ impl Check {
     /// (`+42.0 %`, for capacity 1.42 times the demand). The one margin formatter of the
     /// command line, the app and the sheet.
     pub fn margin_text(&self) -> Option<String> {
-        let m = self.margin.filter(|m| m.is_finite())?;
-        Some(match self.unit() {
-            MarginUnit::Mm => format!("{:+.3} mm", no_negative_zero(m, 3)),
-            MarginUnit::Ratio => format!("{:+.1} %", no_negative_zero(100.0 * m, 1)),
-        })
+        self.unit().margin_text(self.margin?)
     }
 }
 

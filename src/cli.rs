@@ -81,6 +81,9 @@ pub enum Command {
     Compare(crate::compare::CompareArgs),
     /// The design map: two inputs over a grid, each design's limiting check and margin.
     Map(crate::map::command::MapArgs),
+    /// What the shop's tolerances (the file's scatter section) do to every check: the
+    /// probability of failing, margin percentiles, the worst case and sensitivities.
+    Scatter(crate::scatter::command::ScatterArgs),
     /// Print a completion script for a shell, e.g. `bowgrip completions bash >
     /// ~/.local/share/bash-completion/completions/bowgrip`.
     Completions(CompletionsArgs),
@@ -232,6 +235,12 @@ pub struct SheetArgs {
     /// Paper size.
     #[arg(long, value_enum, default_value_t = PaperArg::A4)]
     pub paper: PaperArg,
+    /// Add a design-map page: its horizontal axis, as `map --x` (FIELD:FROM:TO:N).
+    #[arg(long = "map-x", value_name = "FIELD:FROM:TO:N", requires = "map_y", value_parser = crate::map::command::axis_spec, allow_hyphen_values = true)]
+    pub map_x: Option<crate::map::AxisSpec>,
+    /// The design-map page's vertical axis, as `map --y`.
+    #[arg(long = "map-y", value_name = "FIELD:FROM:TO:N", requires = "map_x", value_parser = crate::map::command::axis_spec, allow_hyphen_values = true)]
+    pub map_y: Option<crate::map::AxisSpec>,
     /// Bench measurements (CSV): adds a page with them over the model and the residuals.
     #[arg(long, value_name = "DATA.csv")]
     pub measured: Option<PathBuf>,
@@ -504,6 +513,7 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Sheet(a) => write_sheet(&a)?,
         Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
+        Command::Scatter(a) => crate::scatter::command::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Completions(a) => {
             let mut command = <Cli as clap::CommandFactory>::command();
             clap_complete::generate(a.shell.generator(), &mut command, "bowgrip", &mut out);
@@ -1317,6 +1327,13 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
         );
     }
     let label = a.file.display().to_string();
+    let options = sheet::SheetOptions {
+        map: a.map_x.clone().zip(a.map_y.clone()),
+    };
+    if let Some((x, y)) = &options.map {
+        // Refused axes are bad input: say so before any work, as `map` does.
+        crate::map::MapSpec::new(&design, x, y).map_err(|e| anyhow!("{label}: {e}"))?;
+    }
     let measured = match &a.measured {
         Some(path) => Some(sheet::Measured {
             label: path.display().to_string(),
@@ -1325,8 +1342,15 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
         }),
         None => None,
     };
-    let pdf = sheet::render_measured(&design, &label, &bytes, a.paper.into(), measured.as_ref())
-        .with_context(|| format!("cannot make the sheet for {label}"))?;
+    let pdf = sheet::render_with(
+        &design,
+        &label,
+        &bytes,
+        a.paper.into(),
+        measured.as_ref(),
+        &options,
+    )
+    .with_context(|| format!("cannot make the sheet for {label}"))?;
     crate::atomic::write(&a.output, &pdf)?;
     let _ = writeln!(io::stderr(), "sheet written to {}", a.output.display());
     Ok(Status::Done)

@@ -179,6 +179,20 @@ pub fn menu_bar_ui(app: &mut GripApp, ui: &mut Ui) {
                 if ui.button("Fit one value…").clicked() {
                     app.dialogs.show_fit = true;
                 }
+                if ui
+                    .button("Design map…")
+                    .on_hover_text("Two inputs over a grid: where every check passes")
+                    .clicked()
+                {
+                    app.map_view.open = true;
+                }
+                if ui
+                    .button("Scatter…")
+                    .on_hover_text("What the shop's tolerances do to every check")
+                    .clicked()
+                {
+                    app.scatter_view.open = true;
+                }
                 if ui.button("Print sizing sheet…").clicked() {
                     app.dialogs.show_print = true;
                     app.dialogs.print_path = default_beside(app.doc.path.as_deref(), "pdf");
@@ -788,6 +802,9 @@ fn print_window(app: &mut GripApp, ctx: &Context) {
         if ui.button("Write the sheet").clicked() {
             print_sheet(app);
         }
+        if app.map_view.sheet_options().map.is_some() {
+            ui.label(RichText::new("The design map is open: the sheet adds a page with its map.").small());
+        }
         ui.label(RichText::new("The sheet carries the same safety cautions; it is a design aid, not an approval.").small());
     });
     app.dialogs.show_print = open;
@@ -815,7 +832,9 @@ fn print_sheet(app: &mut GripApp) {
         PaperChoice::A4 => Paper::A4,
         PaperChoice::Letter => Paper::Letter,
     };
-    match sheet::render(&app.doc.design, &label, &bytes, paper) {
+    // With the design map open, the sheet carries its page.
+    let options = app.map_view.sheet_options();
+    match sheet::render_with(&app.doc.design, &label, &bytes, paper, None, &options) {
         Err(e) => app.fail(format!("The sizing sheet could not be made: {e}")),
         Ok(pdf) => match crate::atomic::write(&path, &pdf) {
             Err(e) => app.fail(format!(

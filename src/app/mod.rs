@@ -14,7 +14,9 @@ mod drive;
 pub mod export;
 mod help;
 mod inputs;
+pub mod map_view;
 mod outputs;
+pub mod scatter_view;
 pub mod state;
 pub mod strips;
 
@@ -189,6 +191,8 @@ pub struct GripApp {
     dialogs: dialogs::Dialogs,
     /// Load sharing, computed on a worker thread.
     sharing: strips::SharingWork,
+    map_view: map_view::MapView,
+    scatter_view: scatter_view::ScatterView,
     /// Bench measurements and the calibration fit.
     bench: bench::BenchPanel,
 }
@@ -234,6 +238,8 @@ impl GripApp {
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
             sharing: strips::SharingWork::default(),
+            map_view: map_view::MapView::default(),
+            scatter_view: scatter_view::ScatterView::default(),
             bench: bench::BenchPanel::default(),
         };
         let start = file.or_else(|| app.session.last_file.clone().filter(|p| p.is_file()));
@@ -346,6 +352,26 @@ impl GripApp {
         &self.session
     }
 
+    /// The design map window (open it with `map_view_mut().open = true`).
+    pub fn map_view(&self) -> &map_view::MapView {
+        &self.map_view
+    }
+
+    /// The design map window, to open it or set its axes.
+    pub fn map_view_mut(&mut self) -> &mut map_view::MapView {
+        &mut self.map_view
+    }
+
+    /// The scatter window (open it with `scatter_view_mut().open = true`).
+    pub fn scatter_view(&self) -> &scatter_view::ScatterView {
+        &self.scatter_view
+    }
+
+    /// The scatter window, to open it.
+    pub fn scatter_view_mut(&mut self) -> &mut scatter_view::ScatterView {
+        &mut self.scatter_view
+    }
+
     /// The state directory.
     /// Where the three plots were drawn in the last frame (stroke against bore, forces,
     /// stress), points; `None` before the first frame.
@@ -400,6 +426,8 @@ impl GripApp {
             .show(ui, |ui| outputs::verdict_ui(self, ui));
         egui::CentralPanel::default().show(ui, |ui| outputs::results_ui(self, ui));
         dialogs::windows(self, &ctx);
+        map_view::window(self, &ctx);
+        scatter_view::window(self, &ctx);
         bench::windows(self, &ctx);
         bench::take_dropped(self, &ctx);
         self.apply();

@@ -522,6 +522,9 @@ impl Design {
                 return Err(out_of_range(field, value, Some(row), self));
             }
         }
+        if let Some(scatter) = &self.scatter {
+            scatter.validate().map_err(scatter_error)?;
+        }
         match &self.strip.material {
             MaterialChoice::Grade(id) => {
                 if !grade_exists(id) {
@@ -563,6 +566,34 @@ impl Design {
             }
         }
         Ok(())
+    }
+}
+
+/// A refused scatter value as the design file names it (`scatter.thickness_mm`; the two
+/// ends of the friction range are placed at `scatter.friction`).
+fn scatter_error(e: crate::scatter::ScatterError) -> DesignError {
+    match e {
+        crate::scatter::ScatterError::OutOfRange {
+            field,
+            value,
+            allowed,
+        } => {
+            let (path, end) = match field.split_once('.') {
+                Some((path, end)) => (path, format!(" ({end})")),
+                None => (field, String::new()),
+            };
+            DesignError::Invalid {
+                field: format!("scatter.{path}"),
+                message: format!(
+                    "{}{end} is outside the allowed range: {allowed}",
+                    show_number(value)
+                ),
+            }
+        }
+        other => DesignError::Invalid {
+            field: "scatter".to_string(),
+            message: other.to_string(),
+        },
     }
 }
 

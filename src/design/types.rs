@@ -57,6 +57,10 @@ pub struct Design {
     /// pass a bend (0: thin plates).
     #[serde(default, skip_serializing_if = "is_zero")]
     pub end_plate_thickness_mm: f64,
+    /// The shop's tolerances for the scatter run (`None`: no scatter section; nominal
+    /// results never depend on it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scatter: Option<crate::scatter::ScatterSpec>,
     /// Correction factors fitted to bench measurements of a built prototype (`None`: the
     /// model as it stands). Written only when present.
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -380,6 +384,7 @@ impl Default for Design {
                 radial_load_n: 0.0,
             },
             end_plate_thickness_mm: 0.0,
+            scatter: None,
             calibration: None,
         }
     }

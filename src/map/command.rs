@@ -44,7 +44,8 @@ pub struct MapArgs {
     pub json: bool,
 }
 
-fn axis_spec(text: &str) -> Result<AxisSpec, String> {
+/// Parses an axis argument (`FIELD:FROM:TO:N`) for clap.
+pub fn axis_spec(text: &str) -> Result<AxisSpec, String> {
     text.parse().map_err(|e: super::MapError| e.to_string())
 }
 

@@ -30,7 +30,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use rayon::prelude::*;
 use serde_json::Value;
 
-use crate::checks::{self, Check};
+use crate::checks::{self, Check, MarginUnit};
 use crate::design::{self, Design, DesignError, FieldLimit};
 use crate::segment::Segment;
 
@@ -691,10 +691,14 @@ fn axis(
 pub struct CellCheck {
     /// The check's id.
     pub id: CheckKey,
+    /// What the check judges, in words.
+    pub title: &'static str,
     /// Whether it passes.
     pub pass: bool,
     /// Its margin in its own unit; `None` where `check` gives none.
     pub margin: Option<f64>,
+    /// The unit of the margin.
+    pub unit: MarginUnit,
 }
 
 /// One design of the grid, as `check` judges it.
@@ -728,8 +732,10 @@ impl Cell {
                 .iter()
                 .map(|c| CellCheck {
                     id: c.id.as_str(),
+                    title: c.title(),
                     pass: c.pass,
                     margin: c.margin,
+                    unit: c.unit(),
                 })
                 .collect(),
         }

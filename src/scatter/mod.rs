@@ -13,6 +13,7 @@
 //! run goes in chunks (a first one of [`FIRST_CHUNK`] samples for an early estimate), with
 //! a progress callback and a cancel flag between and within them.
 
+pub mod command;
 pub mod model;
 pub mod spec;
 pub mod stats;

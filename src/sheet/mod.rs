@@ -16,9 +16,11 @@ mod bench;
 mod draw;
 mod font;
 mod format;
+mod map_page;
 mod operating;
 mod plot;
 mod plots;
+mod scatter;
 mod sections;
 mod views;
 
@@ -200,6 +202,17 @@ pub fn content_hash16(bytes: &[u8]) -> String {
     digest.iter().take(8).map(|b| format!("{b:02x}")).collect()
 }
 
+/// Title of the first closing section (assumptions, references, cautions follow it):
+/// the optional parts go before it, or at the end if it is not found.
+const CLOSING_FIRST: &str = "Model, assumptions and limits";
+
+/// What the sheet holds beyond its fixed sections.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SheetOptions {
+    /// A design-map page over these two axes (across, up).
+    pub map: Option<(crate::map::AxisSpec, crate::map::AxisSpec)>,
+}
+
 /// Lays the sheet out (with the given date text) without writing the PDF.
 pub fn layout_dated(
     design: &Design,
@@ -208,7 +221,15 @@ pub fn layout_dated(
     paper: Paper,
     date: &str,
 ) -> anyhow::Result<SheetLayout> {
-    layout_measured(design, file_label, file_bytes, paper, date, None)
+    layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        date,
+        None,
+        &SheetOptions::default(),
+    )
 }
 
 /// Lays the sheet out with the given date, and with a page of bench measurements against
@@ -220,6 +241,28 @@ pub fn layout_measured(
     paper: Paper,
     date: &str,
     measured: Option<&Measured>,
+) -> anyhow::Result<SheetLayout> {
+    layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        date,
+        measured,
+        &SheetOptions::default(),
+    )
+}
+
+/// Lays the sheet out with every optional part: bench measurements when `measured` is
+/// given, and the parts `options` asks for (with the given date text).
+pub fn layout_with(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    date: &str,
+    measured: Option<&Measured>,
+    options: &SheetOptions,
 ) -> anyhow::Result<SheetLayout> {
     font::faces()?;
     let analysis = analysis::analyse(design)
@@ -235,6 +278,19 @@ pub fn layout_measured(
     let printable = [MARGIN_PT, MARGIN_PT, w - MARGIN_PT, h - MARGIN_PT];
     let content_w = printable[2] - printable[0];
     let mut sections = sections::build(&analysis, &meta, content_w);
+    // Optional parts go before the closing text sections (assumptions, references, cautions).
+    let mut extra = Vec::new();
+    if let Some(spec) = &design.scatter {
+        extra.push(scatter::section(design, spec, content_w)?);
+    }
+    if let Some((x, y)) = &options.map {
+        extra.push(map_page::section(design, x, y, content_w)?);
+    }
+    let at = sections
+        .iter()
+        .position(|s| s.title == CLOSING_FIRST)
+        .unwrap_or(sections.len());
+    sections.splice(at..at, extra);
     sections.extend(bench::calibration_section(&analysis, content_w));
     if let Some(m) = measured {
         sections.push(bench::section(&analysis, m, content_w));
@@ -262,7 +318,34 @@ pub fn render(
     file_bytes: &[u8],
     paper: Paper,
 ) -> anyhow::Result<Vec<u8>> {
-    let laid = layout(design, file_label, file_bytes, paper)?;
+    render_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        None,
+        &SheetOptions::default(),
+    )
+}
+
+/// Renders the sheet with every optional part (see [`layout_with`]), dated now (UTC).
+pub fn render_with(
+    design: &Design,
+    file_label: &str,
+    file_bytes: &[u8],
+    paper: Paper,
+    measured: Option<&Measured>,
+    options: &SheetOptions,
+) -> anyhow::Result<Vec<u8>> {
+    let laid = layout_with(
+        design,
+        file_label,
+        file_bytes,
+        paper,
+        &format::now_utc(),
+        measured,
+        options,
+    )?;
     write_pdf(&laid, design)
 }
 

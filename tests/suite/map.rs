@@ -551,3 +551,130 @@ fn map_refusals_exit_2_with_one_line() {
         }
     }
 }
+
+// ---------------------------------------------------------------------------------------
+// The sheet's map page.
+
+#[test]
+fn the_sheet_has_a_map_page_when_asked() {
+    // Issue #15: an optional sheet page with the map of two chosen inputs. The page is the
+    // map module's map (held equal to `check` above): its count of passing designs is the
+    // map's, and every line of it lies inside the printable area.
+    use bowgrip::sheet::{self, Paper, SheetOptions};
+    let design = Design::default();
+    let (x, y) = (
+        axis("strip.thickness_mm:0.15:0.35:9"),
+        axis("strip.count:6:14:9"),
+    );
+    let map = MapSpec::new(&design, &x, &y)
+        .and_then(|s| s.compute_all())
+        .unwrap_or_else(|e| panic!("{e}"));
+    let passing = map.cells().filter(|c| c.pass).count();
+    let options = SheetOptions {
+        map: Some((x.clone(), y.clone())),
+    };
+    for paper in [Paper::A4, Paper::Letter] {
+        let plain = sheet::layout_dated(&design, "demo.ron", b"demo", paper, "2026-01-01")
+            .unwrap_or_else(|e| panic!("{e}"));
+        let laid = sheet::layout_with(
+            &design,
+            "demo.ron",
+            b"demo",
+            paper,
+            "2026-01-01",
+            None,
+            &options,
+        )
+        .unwrap_or_else(|e| panic!("{e}"));
+        let title = "Design map: strip.count against strip.thickness_mm";
+        assert!(!plain.sections.iter().any(|s| s.title == title));
+        let Some(page) = laid.sections.iter().find(|s| s.title == title) else {
+            panic!("no map section on {paper:?}");
+        };
+        // Before the closing sections, which stay last.
+        assert_eq!(
+            laid.sections.last().map(|s| s.title.as_str()),
+            Some("Safety cautions")
+        );
+        let texts: Vec<&str> = laid
+            .texts
+            .iter()
+            .filter(|t| t.page == page.page)
+            .map(|t| t.text.as_str())
+            .collect();
+        let count = format!("Every check passes in {passing} of 81 designs");
+        assert!(texts.iter().any(|t| t.starts_with(&count)), "{texts:?}");
+        assert!(texts.contains(&"hold"), "the legend names the checks");
+        let [left, top, right, bottom] = laid.printable_pt;
+        for t in laid.texts.iter().filter(|t| t.page == page.page) {
+            assert!(
+                t.left_pt >= left - 0.5 && t.right_pt <= right + 0.5,
+                "{:?} runs outside the page width",
+                t.text
+            );
+            assert!(
+                t.baseline_pt >= top && t.baseline_pt <= bottom,
+                "{:?}",
+                t.text
+            );
+        }
+        for (p, b) in laid.drawing_extents() {
+            if p == page.page {
+                assert!(
+                    b[0] >= left - 0.5
+                        && b[2] <= right + 0.5
+                        && b[1] >= top - 0.5
+                        && b[3] <= bottom + 0.5,
+                    "a mark {b:?} leaves the printable area"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn sheet_map_options_write_the_page_and_refuse_bad_axes() {
+    // README: bad input exits 2 with one line naming what is allowed; a good pair of axes
+    // writes a PDF.
+    let dir = TempDir::new().expect("temp dir");
+    let file = write(&dir, "demo.ron", &Design::default());
+    let pdf = dir.path().join("demo.pdf");
+    let (code, _, err) = bowgrip(&[
+        "sheet",
+        text(&file),
+        "-o",
+        text(&pdf),
+        "--map-x",
+        "strip.thickness_mm:0.2:0.3:5",
+        "--map-y",
+        "friction:0.2:0.4:5",
+    ]);
+    assert_eq!(code, Some(0), "{err}");
+    let bytes = std::fs::read(&pdf).expect("the sheet is written");
+    assert!(bytes.starts_with(b"%PDF"));
+    let (code, _, err) = bowgrip(&[
+        "sheet",
+        text(&file),
+        "-o",
+        text(&dir.path().join("bad.pdf")),
+        "--map-x",
+        "strip.thick:0.2:0.3:5",
+        "--map-y",
+        "friction:0.2:0.4:5",
+    ]);
+    assert_eq!(code, Some(2), "{err}");
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(err.contains("strip.thickness_mm"), "{err}");
+    assert!(!dir.path().join("bad.pdf").exists());
+    // One axis alone is refused by the command line.
+    let (code, _, err) = bowgrip(&[
+        "sheet",
+        text(&file),
+        "-o",
+        text(&pdf),
+        "--map-x",
+        "strip.thickness_mm:0.2:0.3:5",
+    ]);
+    assert_eq!(code, Some(2), "{err}");
+    assert!(err.contains("--map-y"), "{err}");
+}

@@ -434,3 +434,294 @@ fn too_wide_a_tolerance_is_refused_in_one_line() {
     .expect_err("refused");
     assert!(err.to_string().contains("0 to 25 percent"), "{err}");
 }
+
+// ---------------------------------------------------------------------------------------
+// The design file's scatter section, the `scatter` command, the sheet and the app.
+
+/// A design file with a commented scatter section (invented shop values).
+const WITH_SCATTER: &str = r#"// Demo with the shop's tolerances.
+Design(
+    format: 1,
+    title: "Demo with tolerances",
+    strip: (count: 10, free_length_mm: 90.0, width_mm: 12.0, thickness_mm: 0.25,
+        material: Grade("ss301-full-hard")),
+    mount_radius_mm: 27.0,
+    end_plate_diameter_mm: 56.0,
+    bore: (diameter_mm: 70.0, minus_mm: 0.3, plus_mm: 0.3),
+    friction: 0.3,
+    actuator: LeadScrew(lead_mm: 1.0, efficiency: 0.3, max_torque_nm: 0.8, max_turns: 8.0),
+    operating_stroke_mm: 1.8,
+    duty: (holding_force_n: 20.0, safety_factor: 2.0, cycles: 10000),
+    scatter: Some((
+        thickness_mm: 0.005, // stock tolerance, keep this comment
+        modulus_percent: 3.0,
+        friction: (0.25, 0.35),
+        samples: 300,
+        seed: 5,
+    )),
+)
+"#;
+
+#[test]
+fn the_scatter_section_reads_with_defaults_and_saves_in_place() {
+    // The project's contract: every tolerance optional (0), Normal3Sigma, samples and
+    // seed as given; written only when present; an in-place save keeps the comments.
+    let d = bowgrip::design::parse(WITH_SCATTER).unwrap_or_else(|e| panic!("{e}"));
+    let spec = d.scatter.clone().unwrap_or_else(|| panic!("no scatter"));
+    assert_eq!(spec.thickness_mm, 0.005);
+    assert_eq!(spec.width_mm, 0.0);
+    assert_eq!(spec.friction, Some((0.25, 0.35)));
+    assert_eq!(spec.distribution, DistributionKind::Normal3Sigma);
+    assert_eq!((spec.samples, spec.seed), (300, 5));
+    // Nominal results do not depend on it.
+    let mut plain = d.clone();
+    plain.scatter = None;
+    let seg = |d: &Design| checks::run(&Segment::new(d).unwrap_or_else(|e| panic!("{e}")));
+    assert_eq!(seg(&d), seg(&plain));
+    // Written only when present.
+    let text = bowgrip::design::to_ron(&plain).unwrap_or_else(|e| panic!("{e}"));
+    assert!(!text.contains("scatter"), "{text}");
+    let text = bowgrip::design::to_ron(&d).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(bowgrip::design::parse(&text).ok(), Some(d.clone()));
+    // An edited tolerance goes in place.
+    let mut edited = d.clone();
+    if let Some(s) = edited.scatter.as_mut() {
+        s.thickness_mm = 0.01;
+    }
+    let saved =
+        bowgrip::design::save_text(Some(WITH_SCATTER), &edited).unwrap_or_else(|e| panic!("{e}"));
+    assert!(!saved.loses_layout());
+    assert!(
+        saved
+            .text()
+            .contains("thickness_mm: 0.01, // stock tolerance, keep this comment")
+    );
+    assert_eq!(bowgrip::design::parse(saved.text()).ok(), Some(edited));
+}
+
+#[test]
+fn a_bad_scatter_value_is_refused_at_its_line_and_column() {
+    // Project rule 5: what was wrong, where (line:column), and the allowed range.
+    let bad = WITH_SCATTER.replace("modulus_percent: 3.0", "modulus_percent: 40.0");
+    let e = bowgrip::design::parse(&bad).expect_err("refused");
+    let line = bad
+        .lines()
+        .position(|l| l.contains("modulus_percent"))
+        .map(|i| i + 1);
+    assert_eq!(e.position().map(|p| p.0), line, "{e}");
+    let text = e.to_string();
+    assert!(
+        text.contains("scatter.modulus_percent") && text.contains("0 to 25 percent"),
+        "{text}"
+    );
+    let bad = WITH_SCATTER.replace("friction: (0.25, 0.35)", "friction: (0.35, 0.25)");
+    let e = bowgrip::design::parse(&bad).expect_err("refused");
+    assert!(e.position().is_some(), "{e}");
+    assert!(e.to_string().contains("scatter.friction"), "{e}");
+    let bad = WITH_SCATTER.replace("samples: 300", "samples: 0");
+    let e = bowgrip::design::parse(&bad).expect_err("refused");
+    assert!(e.to_string().contains("1 to 1000000"), "{e}");
+}
+
+fn bowgrip_cli(args: &[&str]) -> (Option<i32>, Vec<u8>, String) {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bowgrip"))
+        .args(args)
+        .output()
+        .unwrap_or_else(|e| panic!("{e}"));
+    (
+        out.status.code(),
+        out.stdout,
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn scatter_command_prints_the_contract_json_byte_for_byte() {
+    // The project's contract: `bowgrip scatter FILE [--samples N] [--seed S] --json`,
+    // the same file, samples and seed give byte-identical output; the numbers are the
+    // library's run of the file's section.
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let file = dir.path().join("tol.ron");
+    std::fs::write(&file, WITH_SCATTER).unwrap_or_else(|e| panic!("{e}"));
+    let f = file.to_str().unwrap_or_else(|| panic!("path"));
+    let args = ["scatter", f, "--samples", "200", "--seed", "9", "--json"];
+    let (code, a, err) = bowgrip_cli(&args);
+    assert_eq!(code, Some(0), "{err}");
+    let (_, b, _) = bowgrip_cli(&args);
+    assert_eq!(a, b, "same file, samples and seed: same bytes");
+    let d = bowgrip::design::parse(WITH_SCATTER).unwrap_or_else(|e| panic!("{e}"));
+    let spec = ScatterSpec {
+        samples: 200,
+        seed: 9,
+        ..d.scatter.clone().unwrap_or_default()
+    };
+    let want = scatter::run(&d, &spec)
+        .unwrap_or_else(|e| panic!("{e}"))
+        .to_json();
+    assert_eq!(String::from_utf8_lossy(&a).trim_end(), want);
+    let (_, other, _) = bowgrip_cli(&["scatter", f, "--samples", "200", "--seed", "10", "--json"]);
+    assert_ne!(a, other, "another seed, other numbers");
+    // The file's own samples and seed without options.
+    let (_, own, _) = bowgrip_cli(&["scatter", f, "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&own).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(
+        (v["samples"].as_u64(), v["seed"].as_u64()),
+        (Some(300), Some(5))
+    );
+    // CSV: a header and one row per check; tables for people carry the caution.
+    let (code, csv, _) = bowgrip_cli(&["scatter", f, "--samples", "50", "--csv"]);
+    assert_eq!(code, Some(0));
+    let csv = String::from_utf8_lossy(&csv).to_string();
+    assert_eq!(csv.lines().next(), Some(scatter::command::CSV_COLUMNS));
+    assert_eq!(
+        csv.lines().count(),
+        1 + checks::run(&Segment::new(&d).unwrap_or_else(|e| panic!("{e}"))).len()
+    );
+    let (code, table, _) = bowgrip_cli(&["scatter", f, "--samples", "50"]);
+    assert_eq!(code, Some(0));
+    let table = String::from_utf8_lossy(&table).to_string();
+    assert!(
+        table.contains("P(fail)") && table.contains("Caution"),
+        "{table}"
+    );
+}
+
+#[test]
+fn scatter_command_refusals_exit_2_with_one_line() {
+    // README: bad input exits 2 with one line saying what and the allowed range.
+    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let plain = dir.path().join("plain.ron");
+    std::fs::write(
+        &plain,
+        bowgrip::design::to_ron(&Design::default()).unwrap_or_default(),
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    let (code, out, err) = bowgrip_cli(&["scatter", plain.to_str().unwrap_or(""), "--json"]);
+    assert_eq!(code, Some(2), "{err}");
+    assert!(out.is_empty());
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(
+        err.contains("no scatter section") && err.contains("scatter: Some(("),
+        "{err}"
+    );
+    let file = dir.path().join("tol.ron");
+    std::fs::write(&file, WITH_SCATTER).unwrap_or_else(|e| panic!("{e}"));
+    let (code, _, err) = bowgrip_cli(&["scatter", file.to_str().unwrap_or(""), "--samples", "0"]);
+    assert_eq!(code, Some(2), "{err}");
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(
+        err.contains("samples") && err.contains("1 to 1000000"),
+        "{err}"
+    );
+}
+
+#[test]
+fn the_sheet_has_a_scatter_section_when_the_file_has_tolerances() {
+    // Issue #13: a sheet section for scatter; its numbers are the library's.
+    use bowgrip::sheet::{self, Paper};
+    let d = bowgrip::design::parse(WITH_SCATTER).unwrap_or_else(|e| panic!("{e}"));
+    let mut plain = d.clone();
+    plain.scatter = None;
+    let title = "Scatter: the shop's tolerances";
+    let without = sheet::layout_dated(&plain, "t.ron", b"t", Paper::A4, "2026-01-01")
+        .unwrap_or_else(|e| panic!("{e}"));
+    assert!(!without.sections.iter().any(|s| s.title == title));
+    let laid = sheet::layout_dated(&d, "t.ron", b"t", Paper::A4, "2026-01-01")
+        .unwrap_or_else(|e| panic!("{e}"));
+    let Some(part) = laid.sections.iter().find(|s| s.title == title) else {
+        panic!("no scatter section");
+    };
+    let report =
+        scatter::run(&d, &d.scatter.clone().unwrap_or_default()).unwrap_or_else(|e| panic!("{e}"));
+    let pages: Vec<usize> = laid
+        .sections
+        .iter()
+        .filter(|s| s.title == title)
+        .map(|s| s.page)
+        .collect();
+    let texts: Vec<&str> = laid
+        .texts
+        .iter()
+        .filter(|t| pages.contains(&t.page))
+        .map(|t| t.text.as_str())
+        .collect();
+    let hold = report
+        .checks
+        .iter()
+        .find(|c| c.id == "hold")
+        .unwrap_or_else(|| panic!("hold"));
+    let p50 = scatter::command::margin_text(hold.margin_p50, hold.unit);
+    assert!(texts.contains(&p50.as_str()), "{p50} not in {texts:?}");
+    assert!(part.page >= 1);
+    let [left, _, right, _] = laid.printable_pt;
+    for t in laid.texts.iter().filter(|t| pages.contains(&t.page)) {
+        assert!(
+            t.left_pt >= left - 0.5 && t.right_pt <= right + 0.5,
+            "{:?}",
+            t.text
+        );
+    }
+}
+
+#[test]
+fn the_app_scatter_window_runs_off_the_ui_thread_and_edits_are_undoable() {
+    // Issue #13: the app runs the scatter off the UI thread and shows the library's
+    // report for the design on show; adding tolerances is one undoable edit.
+    use bowgrip::app::{Command, Gesture, GripApp};
+    use egui_kittest::Harness;
+    use egui_kittest::kittest::Queryable;
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = Harness::builder()
+        .with_size([1500.0, 940.0])
+        .build_ui_state(
+            |ui, app: &mut GripApp| app.ui(ui),
+            GripApp::new(state.path().to_path_buf(), None),
+        );
+    h.run();
+    h.get_by_label("Tools").click();
+    h.run();
+    h.get_by_label("Scatter…").click();
+    h.run_steps(2);
+    assert!(h.state().scatter_view().open);
+    let d0 = h.state().design().clone();
+    h.get_by_label("Add tolerances").click();
+    // The run starts on its worker, which asks for repaints: frames, not a settled UI.
+    h.run_steps(2);
+    assert!(
+        h.state().design().scatter.is_some(),
+        "one edit adds the section"
+    );
+    // Fewer samples, so a debug build finishes quickly.
+    let mut d = h.state().design().clone();
+    if let Some(s) = d.scatter.as_mut() {
+        s.samples = 300;
+        s.friction = Some((0.25, 0.35));
+    }
+    h.state_mut()
+        .push(Command::Edit(Box::new(d.clone()), Gesture::Done));
+    let mut done = false;
+    for _ in 0..6000 {
+        h.step();
+        let app = h.state();
+        if let Some(e) = app.scatter_view().error() {
+            panic!("{e}");
+        }
+        if app.scatter_view().is_complete_for(app.design()) {
+            done = true;
+            break;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    assert!(done, "the run never completed");
+    h.run();
+    let want =
+        scatter::run(&d, &d.scatter.clone().unwrap_or_default()).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(h.state().scatter_view().report(), Some(&want));
+    assert!(h.query_by_label_contains("300 samples, seed 1").is_some());
+    // Two undo steps: the sample count, then the section itself.
+    for _ in 0..2 {
+        h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::Z);
+        h.run_steps(2);
+    }
+    assert_eq!(*h.state().design(), d0);
+}
