@@ -79,6 +79,10 @@ pub struct Analysis {
     /// window, mm (`None` where the set pull is never reached); empty under displacement
     /// control, where the stroke is the same at every bore.
     pub operating_window: Vec<actuation::WindowPoint>,
+    /// Through a compliant drive, the stroke at which the actuator travel reaches its
+    /// maximum at each bore of the window, `(bore, stroke)` in mm (`None` where it is not
+    /// reached before the model's limit); empty for a rigid drive.
+    pub travel_limit_window: Vec<(f64, Option<f64>)>,
 }
 
 /// The bore window around the design's tolerance band: wide enough to show the band and
@@ -136,6 +140,7 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
         })
         .collect();
     let operating_window = actuation::window(&segment, window_mm, WINDOW_POINTS);
+    let travel_limit_window = actuation::travel_limit_window(&segment, window_mm, WINDOW_POINTS);
     Ok(Analysis {
         segment,
         checks,
@@ -147,5 +152,6 @@ pub fn analyse(design: &crate::design::Design) -> Result<Analysis, SegmentError>
         shape_mm,
         cautions,
         operating_window,
+        travel_limit_window,
     })
 }

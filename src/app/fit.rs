@@ -98,10 +98,11 @@ impl FitVar {
                 let hi = Segment::new(d)
                     .ok()
                     .map(|seg| {
-                        let limit = seg
-                            .at_bore(seg.bore_smallest_mm)
-                            .map_or(f64::INFINITY, |p| p.limit_stroke_mm());
-                        seg.max_stroke_mm().min(limit)
+                        // Through a compliant drive the maximum is of travel.
+                        seg.at_bore(seg.bore_smallest_mm)
+                            .map_or(seg.max_stroke_mm(), |p| {
+                                crate::actuation::sweep_end_mm(&p)
+                            })
                     })
                     .unwrap_or(f64::INFINITY);
                 (0.0, d.strip.free_length_mm.min(hi), false)

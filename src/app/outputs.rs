@@ -229,12 +229,15 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     let travel = Marker {
         name: "actuator max travel",
         value: seg.max_stroke_mm(),
+        // Through a compliant drive the marker is a curve of stroke, below the travel.
+        level: super::drive::travel_limit_top_mm(a).unwrap_or(seg.max_stroke_mm()),
         unit: "mm",
         top: top_of(&window),
     };
     let rating = Marker {
         name: "actuator rating as pull",
         value: seg.max_pull_n(),
+        level: seg.max_pull_n(),
         unit: "N",
         top: top_of(&forces).max(need),
     };
@@ -248,7 +251,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             window_rect,
             "Stroke against bore",
-            "For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.",
+            &format!("For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.{}", if a.travel_limit_window.is_empty() { "" } else { "\n\nThe drive stretches (travel = stroke + pull / stiffness), so the actuator's maximum travel is drawn as the stroke at which each bore's travel reaches it." }),
             travel.note(),
             |ui| window_plot(ui, a, &window, &travel, plot_h),
         );
@@ -336,6 +339,8 @@ fn plot_cell(
 struct Marker {
     name: &'static str,
     value: f64,
+    /// Height at which it is drawn (its value, or for a curve its highest point).
+    level: f64,
     unit: &'static str,
     /// Highest value the plot shows without the marker.
     top: f64,
@@ -343,7 +348,7 @@ struct Marker {
 
 impl Marker {
     fn off_scale(&self) -> bool {
-        self.top > 0.0 && self.value > 1.4 * self.top
+        self.top > 0.0 && self.level > 1.4 * self.top
     }
 
     fn note(&self) -> Option<String> {
@@ -566,7 +571,6 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
                 b.add_to(p);
             }
             // Usable window: holding reached, below stress limit, model limit and actuator travel.
-            let max_stroke = seg.max_stroke_mm();
             let mut xs = Vec::new();
             let mut lo = Vec::new();
             let mut hi = Vec::new();
@@ -584,12 +588,12 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
                 lo.clear();
                 hi.clear();
             };
-            for r in hold {
+            for (i, r) in hold.iter().enumerate() {
                 let top = [r.stress_limit_stroke_mm, r.limit_stroke_mm]
                     .iter()
                     .flatten()
-                    .fold(max_stroke, |m, v| m.min(*v));
-                match r.holding_stroke_mm.filter(|h| *h < top) {
+                    .fold(super::drive::actuator_top_mm(a, i), |m, v| m.min(*v));
+                match r.holding_stroke_mm.filter(|h| *h < top && top.is_finite()) {
                     Some(h) => {
                         xs.push(r.bore_mm);
                         lo.push(h);
@@ -602,7 +606,9 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
             for c in curves {
                 c.add_to(p);
             }
-            travel.add_to(p);
+            if !super::drive::travel_limit_marker(p, a, travel.name, C_ACT) {
+                travel.add_to(p);
+            }
             super::drive::operating_marker(p, a, mark);
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });
