@@ -808,3 +808,107 @@ fn under_a_set_torque_stress_is_judged_where_it_is_highest() {
         }
     }
 }
+
+// ---------------------------------------------------------------- travel limits
+
+/// The torque-screw sample with a screw of 2 turns: 4 mm of actuator travel, which its
+/// drive's stretch uses up short of the model's limit.
+const SHORT_SCREW: (&str, &str) = ("max_turns: 6.0", "max_turns: 2.0");
+
+/// Springs in series (common practice): through a drive of stiffness `k_c` the actuator
+/// travels `stroke + pull / k_c`, so its maximum is one of travel, and `sweep` (contract:
+/// strokes from 0 to the smaller of the limit and the actuator's maximum) ends at the
+/// stroke where the travel reaches it, in the curves and on the command line alike.
+#[test]
+fn a_compliant_sweep_ends_where_the_travel_reaches_the_actuator_maximum() {
+    let name = "water-main-tractor-torque-screw.ron";
+    let text = std::fs::read_to_string(sample(name)).unwrap_or_else(|e| panic!("{e}"));
+    assert!(text.contains(SHORT_SCREW.0), "{name} has a 6-turn screw");
+    let short = text.replace(SHORT_SCREW.0, SHORT_SCREW.1);
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let file = dir.path().join("short-screw.ron");
+    std::fs::write(&file, &short).unwrap_or_else(|e| panic!("{e}"));
+    let d = design::load(&file).unwrap_or_else(|e| panic!("{}", e.in_file(&file)));
+    let seg = segment(&d);
+    let max = seg.max_stroke_mm();
+    assert!((max - 4.0).abs() < 1e-12, "2 turns of a 2 mm lead: {max}");
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let sweep = path.sweep(50);
+    let Some(last) = sweep.last() else {
+        panic!("a sweep has points");
+    };
+    let end = last.stroke_mm;
+    let travel = actuation::travel_at_mm(&path, end);
+    assert!((travel - max).abs() <= 1e-9 * max, "{travel} vs {max}");
+    // Short of the limit, and short of the maximum as a stroke (the drive stretches).
+    assert!(end < path.limit_stroke_mm() && end < max, "{end}");
+    assert_eq!(actuation::stroke_at_travel_mm(&path, max), Some(end));
+    // Every stroke of the sweep stays within the actuator's travel.
+    for s in &sweep {
+        assert!(actuation::travel_at_mm(&path, s.stroke_mm) <= max * (1.0 + 1e-9));
+    }
+    // `sweep --csv` ends at the same stroke, and its travel column there is the maximum.
+    let f = file.to_str().unwrap_or_default();
+    let (code, out, err) = bowgrip(&["sweep", f, "--points", "50", "--csv"]);
+    assert_eq!(code, Some(0), "{err}");
+    let header: Vec<&str> = out.lines().next().unwrap_or_default().split(',').collect();
+    let Some(row) = out.lines().last() else {
+        panic!("rows: {out}");
+    };
+    let cells: Vec<&str> = row.split(',').collect();
+    let col = |name: &str| {
+        let i = header
+            .iter()
+            .position(|h| *h == name)
+            .unwrap_or_else(|| panic!("column {name}"));
+        cells[i].parse::<f64>().unwrap_or_else(|e| panic!("{name}: {e}"))
+    };
+    assert_eq!(col("stroke_mm"), end);
+    assert!((col("travel_mm") - max).abs() <= 1e-9 * max);
+    // The text says the maximum is of travel, and where it is reached.
+    let (_, text_out, _) = bowgrip(&["sweep", f, "--points", "3"]);
+    assert!(
+        text_out.contains(&format!("4.000 mm of travel, reached at {end:.3} mm of stroke")),
+        "{text_out}"
+    );
+    // A rigid drive keeps the maximum as a stroke: the sweep ends at it or at the limit.
+    let mut rigid = d.clone();
+    rigid.actuator.set_stiffness_n_per_mm(None);
+    let seg = segment(&rigid);
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let end = path.sweep(50).last().map_or(f64::NAN, |s| s.stroke_mm);
+    assert_eq!(end, path.limit_stroke_mm().min(4.0));
+}
+
+/// The stroke-against-bore window of a compliant design (springs in series, common
+/// practice): at each bore the curve of the actuator's maximum travel is the stroke where
+/// `stroke + pull / k_c` reaches it; a rigid design has no such curve.
+#[test]
+fn the_window_draws_the_maximum_travel_as_a_stroke_at_each_bore() {
+    let mut d = load("water-main-tractor-torque-screw.ron");
+    // A 2-turn screw: 4 mm of travel, used up short of the limit where the strips grip.
+    let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    *max_turns = 2.0;
+    let a = bowgrip::analysis::analyse(&d).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(a.travel_limit_window.len(), a.window.len());
+    let max = a.segment.max_stroke_mm();
+    let mut reached = 0;
+    for (row, &(bore, stroke)) in a.window.iter().zip(&a.travel_limit_window) {
+        assert_eq!(row.bore_mm, bore);
+        let Some(s) = stroke else { continue };
+        reached += 1;
+        let path = a.segment.at_bore(bore).unwrap_or_else(|e| panic!("{e}"));
+        let travel = actuation::travel_at_mm(&path, s);
+        assert!((travel - max).abs() <= 1e-9 * max, "bore {bore}: {travel}");
+    }
+    assert!(reached > a.window.len() / 4, "reached at {reached} bores");
+    let rigid = load("riser-climber-2in-sch40.ron");
+    let a = bowgrip::analysis::analyse(&rigid).unwrap_or_else(|e| panic!("{e}"));
+    assert!(a.travel_limit_window.is_empty());
+}
