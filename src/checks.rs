@@ -1,4 +1,5 @@
-//! The design checks: each judged at its own bore and stroke (the project's contract),
+//! The design checks: each judged at its own bore and stroke (docs/contract.md, "Checks:
+//! where each is judged"),
 //! with pass/fail, a margin in the check's own unit (mm for geometry, otherwise a ratio
 //! minus one; positive when passing) and a one-line reason. [`CheckId`] names each check
 //! and holds its title and unit in one place; [`Check::margin_text`] is the one way the
@@ -519,7 +520,8 @@ pub fn all_pass(checks: &[Check]) -> bool {
 /// Geometry cautions beside the checks: at each of the smallest, nominal and largest bore,
 /// whether the strips at the operating stroke leave the room between the plates (swing
 /// behind an end plate or cross themselves), which the model does not prevent. Empty when
-/// they do not. Not a check of the contract: the checks judge the mechanics note's model;
+/// they do not. Not one of the contract's checks: the checks judge the model of
+/// docs/mechanics.md;
 /// these say where its states stop being physical.
 pub fn geometry_cautions(seg: &Segment) -> Vec<String> {
     [

@@ -20,6 +20,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 use crate::actuation::{self, Drive};
 use crate::checks::{self, Check, CheckId};
 use crate::design::{self, Design, show_number};
+use crate::quantities::{STATE_FIELDS, UsableStroke};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sharing;
 use crate::sheet::{self, Paper};
@@ -780,7 +781,7 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
     } else {
         "bore"
     };
-    let rows: Vec<(&str, String, &str)> = vec![
+    let mut rows: Vec<(&str, String, &str)> = vec![
         (bore_label, format!("{:.3}", s.bore_mm), "mm"),
         ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
         (
@@ -789,32 +790,13 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
             "mm",
         ),
         ("phase", s.phase.to_string(), ""),
-        (
-            "axial force per strip",
-            fixed(s.axial_force_per_strip_n, 3),
-            "N",
-        ),
-        (
-            "contact force per strip",
-            fixed(s.contact_force_per_strip_n, 3),
-            "N",
-        ),
-        ("actuator pull", fixed(s.actuator_force_n, 3), "N"),
-        ("radial force", fixed(s.radial_force_n, 3), "N"),
-        ("holding force", fixed(s.holding_force_n, 3), "N"),
-        ("outer diameter", fixed(s.outer_diameter_mm, 3), "mm"),
-        ("flat run on the wall", fixed(s.flat_length_mm, 3), "mm"),
-        ("peak stress", fixed(s.max_stress_mpa, 1), "MPa"),
-        (
-            "static factor of safety",
-            fixed(s.static_safety_factor, 3),
-            "",
-        ),
-        (
-            "fatigue factor of safety",
-            fixed(s.fatigue_safety_factor, 3),
-            "",
-        ),
+    ];
+    rows.extend(
+        STATE_FIELDS
+            .iter()
+            .map(|f| (f.label, f.number(s, "-"), f.unit)),
+    );
+    rows.extend([
         (
             "first contact at stroke",
             fixed(s.first_contact_stroke_mm, 3),
@@ -830,7 +812,7 @@ fn point_table(seg: &Segment, s: &SegmentState) -> String {
             format!("{:.3}", s.limit_stroke_mm),
             "mm",
         ),
-    ];
+    ]);
     for (label, value, unit) in rows {
         let _ = writeln!(t, "{label:<26} {value:>14} {unit}");
     }
@@ -1082,6 +1064,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let pass = checks::all_pass(&list);
     let limiting = checks::limiting(&list).map(|i| list[i].id);
     let cautions = checks::geometry_cautions(&seg);
+    let usable = seg.usable_stroke_across_tolerance();
     if a.json {
         let mut doc = serde_json::json!({
             "file": a.file.display().to_string(),
@@ -1092,6 +1075,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             "stiffness_reason": seg.stiffness_reason,
             "checks": list,
             "geometry_cautions": cautions,
+            "usable_stroke_mm": usable.range_mm().map(|(from, to)| serde_json::json!({"from": from, "to": to})),
         });
         if design.uses_actuation()
             && let Some(obj) = doc.as_object_mut()
@@ -1120,7 +1104,7 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         write!(
             out,
             "{}",
-            check_table(&design, &seg, &list, limiting, &cautions)
+            check_table(&design, &seg, &list, limiting, &cautions, &usable)
         )?;
     }
     Ok(if pass {
@@ -1231,6 +1215,7 @@ fn check_table(
     list: &[Check],
     limiting: Option<CheckId>,
     cautions: &[String],
+    usable: &UsableStroke,
 ) -> String {
     let mut t = String::new();
     if !design.title.is_empty() {
@@ -1263,6 +1248,7 @@ fn check_table(
     } else {
         let _ = writeln!(t, "{failed} of {} checks fail", list.len());
     }
+    let _ = writeln!(t, "{}", usable.describe());
     if design.uses_actuation() {
         let _ = writeln!(t, "operating point: {}", operating_words(&Drive::of(seg)));
         for (case, bore) in [

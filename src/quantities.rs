@@ -120,9 +120,20 @@ impl StrokeBound {
     /// In words, as a sentence goes on after "up to".
     pub fn describe(self) -> &'static str {
         match self {
-            StrokeBound::Stress => "the stress limit (a factor of safety falls to 1)",
+            StrokeBound::Stress => "the stress limit",
             StrokeBound::Limit => "the model's limit",
             StrokeBound::ActuatorTravel => "the actuator's maximum travel",
+        }
+    }
+
+    /// In words with the bore it is judged at (the actuator's travel is the same at any).
+    fn at(self, smallest_bore_mm: f64) -> String {
+        match self {
+            StrokeBound::ActuatorTravel => self.describe().to_string(),
+            _ => format!(
+                "{} at the smallest bore ({smallest_bore_mm:.3} mm)",
+                self.describe()
+            ),
         }
     }
 }
@@ -158,9 +169,9 @@ impl UsableStroke {
         let large = self.largest_bore_mm;
         match (self.range_mm(), self.top, self.holding_mm) {
             (Some((from, to)), Some((_, bound)), _) => format!(
-                "usable stroke {from:.3} to {to:.3} mm across the bore tolerance ({:.3} mm): from where the required load is held at the largest bore ({large:.3} mm) up to {} at the smallest bore ({small:.3} mm)",
+                "usable stroke {from:.3} to {to:.3} mm across the bore tolerance ({:.3} mm): from where the required load is held at the largest bore ({large:.3} mm) up to {}",
                 to - from,
-                bound.describe(),
+                bound.at(small),
             ),
             (_, None, _) => format!(
                 "no usable stroke across the bore tolerance: the relaxed strips do not fit the smallest bore ({small:.3} mm)"
@@ -172,8 +183,8 @@ impl UsableStroke {
                 "no usable stroke across the bore tolerance: the required load is not held at the largest bore ({large:.3} mm) before the model's limit there"
             ),
             (None, Some((top, bound)), Some(hold)) => format!(
-                "no usable stroke across the bore tolerance: holding the required load at the largest bore ({large:.3} mm) takes {hold:.3} mm of stroke, but {} at the smallest bore ({small:.3} mm) comes at {top:.3} mm",
-                bound.describe(),
+                "no usable stroke across the bore tolerance: holding the required load at the largest bore ({large:.3} mm) takes {hold:.3} mm of stroke, but {} comes at {top:.3} mm",
+                bound.at(small),
             ),
         }
     }
@@ -496,7 +507,7 @@ mod tests {
     #[test]
     fn usable_range_is_where_the_band_checks_pass() {
         // Inside the range the holding, stress and stroke checks pass at once; just
-        // outside one of them fails (the range is their intersection, as the contract
+        // outside one of them fails (the range is their intersection, as docs/contract.md
         // judges each check at its own bore).
         use crate::checks::{self, CheckId};
         let d = Design::default();

@@ -238,7 +238,7 @@ impl BoreRow {
 }
 
 /// Fraction of tensile strength allowed for static stress (common practice for statically
-/// loaded flat springs; the project's contract fixes it).
+/// loaded flat springs; docs/contract.md fixes it).
 pub const STATIC_FRACTION: f64 = 0.75;
 
 /// Below this width-to-thickness ratio `Auto` uses beam stiffness (common practice).

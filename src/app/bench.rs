@@ -555,9 +555,9 @@ fn bench_window(app: &mut GripApp, ctx: &Context) {
             let w = ui.available_width();
             let h = 230.0;
             ui.strong("Diameter over the strips against measured stroke");
-            diameter_plot(ui, &file.data, cache, w, h);
+            diameter_plot_ui(ui, &file.data, cache, w, h);
             ui.strong("Forces against measured stroke");
-            force_plot(ui, &file.data, cache, w, h);
+            force_plot_ui(ui, &file.data, cache, w, h);
             ui.label(
                 RichText::new("Caution: loaded strips store energy and can snap, the end plates pinch; test behind a guard and follow local codes and licensed practice.")
                     .small(),
@@ -646,7 +646,7 @@ fn bench_plot(id: &str, y_label: &str, width: f32, height: f32) -> Plot<'static>
         .y_axis_label(y_label.to_string())
 }
 
-fn diameter_plot(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
+fn diameter_plot_ui(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
     bench_plot("bench-diameter", "diameter over the strips, mm", w, h).show(ui, |p| {
         for (i, c) in cache.curves.iter().enumerate() {
             curve_and_points(
@@ -663,7 +663,7 @@ fn diameter_plot(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
     });
 }
 
-fn force_plot(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
+fn force_plot_ui(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
     bench_plot("bench-force", "force, N", w, h).show(ui, |p| {
         for (i, c) in cache.curves.iter().enumerate() {
             curve_and_points(

@@ -8,11 +8,11 @@ use std::sync::{Arc, Mutex};
 
 use egui::{Context, RichText, Ui};
 
-use super::fit::{self, FitOutcome, FitVar};
 use super::inputs::{error_color, fmt_value};
 use super::state::{PaperChoice, ThemeChoice};
 use super::{Command, Gesture, GripApp, Pending, export, outputs};
-use crate::design;
+use crate::design::{self, Design};
+use crate::fit::{self, FitAim, FitOutcome, FitRequest, FitVar};
 use crate::sheet::{self, Paper};
 
 /// The safety cautions, shown in their own window and in short in the verdict panel.
@@ -37,14 +37,51 @@ struct FileBox {
     note: Option<String>,
 }
 
+/// The fitting helper's window: what to fit, the search running on its worker thread,
+/// and the last answer with the design it was found for.
+#[derive(Default)]
+struct FitDialog {
+    var: Option<FitVar>,
+    aim: FitAim,
+    /// The rounding step as typed, in the variable's unit (empty: no rounding).
+    step: String,
+    running: Option<FitJob>,
+    result: Option<(Box<Design>, FitRequest, FitOutcome)>,
+}
+
+/// A search on its worker thread: the design it started from and where the answer comes.
+struct FitJob {
+    base: Box<Design>,
+    request: FitRequest,
+    answer: std::sync::mpsc::Receiver<FitOutcome>,
+}
+
+impl FitJob {
+    /// Starts `request` on `base` on a thread of its own, so the window stays responsive.
+    fn start(base: &Design, request: FitRequest, ctx: &Context) -> FitJob {
+        let (send, answer) = std::sync::mpsc::channel();
+        let design = base.clone();
+        let ctx = ctx.clone();
+        std::thread::spawn(move || {
+            // The window may have been closed meanwhile; then nobody listens.
+            let _ = send.send(fit::fit_with(&design, &request));
+            ctx.request_repaint();
+        });
+        FitJob {
+            base: Box::new(base.clone()),
+            request,
+            answer,
+        }
+    }
+}
+
 /// State of the small windows.
 #[derive(Default)]
 pub struct Dialogs {
     file_box: Option<FileBox>,
     pub show_cautions: bool,
     show_fit: bool,
-    fit_var: Option<FitVar>,
-    fit_result: Option<FitOutcome>,
+    fit: FitDialog,
     show_export: bool,
     export_base: String,
     show_print: bool,
@@ -88,7 +125,7 @@ impl Dialogs {
 }
 
 /// The menu bar.
-pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
+pub fn menu_bar_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::Panel::top("menu").show(ui, |ui| {
         egui::MenuBar::new().ui(ui, |ui| {
             ui.menu_button("File", |ui| {
@@ -155,8 +192,7 @@ pub fn menu_bar(app: &mut GripApp, ui: &mut Ui) {
             ui.menu_button("View", |ui| {
                 for t in ThemeChoice::ALL {
                     if ui.radio(app.session.theme == t, t.label()).clicked() {
-                        app.session.theme = t;
-                        app.store_session();
+                        app.push(Command::SetTheme(t));
                     }
                 }
             });
@@ -177,7 +213,7 @@ fn default_beside(path: Option<&Path>, ext: &str) -> String {
 }
 
 /// The status line.
-pub fn status_bar(app: &mut GripApp, ui: &mut Ui) {
+pub fn status_bar_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::Panel::bottom("status").show(ui, |ui| {
         ui.horizontal(|ui| {
             if app.doc.dirty {
@@ -219,7 +255,7 @@ pub fn windows(app: &mut GripApp, ctx: &Context) {
         .ok()
         .and_then(|mut done| done.take());
     if let Some(status) = png {
-        app.status = Some(status);
+        app.push(Command::Report(status));
     }
     file_window(app, ctx);
     guard_window(app, ctx);
@@ -329,14 +365,14 @@ fn guard_window(app: &mut GripApp, ctx: &Context) {
                     app.push(Command::SaveThen(path, pending.clone()));
                 }
             } else if ui.button("Save as…").clicked() {
-                app.guard = None;
+                app.push(Command::CancelPrompt);
                 app.dialogs.open_save_as(None);
             }
             if ui.button("Discard changes").clicked() {
                 app.push(Command::Discard(pending.clone()));
             }
             if ui.button("Cancel").clicked() {
-                app.guard = None;
+                app.push(Command::CancelPrompt);
             }
         });
     });
@@ -397,7 +433,7 @@ fn rewrite_window(app: &mut GripApp, ctx: &Context) {
                 app.push(Command::SaveRewriting(path.clone(), then.clone()));
             }
             if ui.button("Cancel").clicked() {
-                app.rewrite_prompt = None;
+                app.push(Command::CancelPrompt);
             }
         });
     });
@@ -405,39 +441,161 @@ fn rewrite_window(app: &mut GripApp, ctx: &Context) {
 
 fn fit_window(app: &mut GripApp, ctx: &Context) {
     let mut open = app.dialogs.show_fit;
-    egui::Window::new("Fit one value").open(&mut open).default_width(420.0).show(ctx, |ui| {
-        ui.label("Find the value at which the segment just holds the load x safety factor at the largest bore, with every other check passing.");
-        let var = app.dialogs.fit_var.unwrap_or(FitVar::Thickness);
+    // Over the plots, clear of the inputs it changes (left) and the checks (right).
+    let at = ctx.content_rect().center_top() + egui::vec2(0.0, 60.0);
+    egui::Window::new("Fit one value")
+        .open(&mut open)
+        .default_width(440.0)
+        .pivot(egui::Align2::CENTER_TOP)
+        .default_pos(at)
+        .show(ctx, |ui| fit_ui(app, ui));
+    app.dialogs.show_fit = open;
+    if !open {
+        // Closing drops a running search's answer (its thread ends on its own).
+        app.dialogs.fit.running = None;
+    }
+}
+
+fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
+    let dlg = &mut app.dialogs.fit;
+    if let Some(job) = &dlg.running
+        && let Ok(outcome) = job.answer.try_recv()
+    {
+        dlg.result = Some((job.base.clone(), job.request, outcome));
+        dlg.running = None;
+    }
+    ui.label("Find a value of one input at which every check passes: where the segment just holds the load x safety factor at the largest bore, or the middle of the passing range.");
+    let var = dlg.var.unwrap_or(FitVar::Thickness);
+    let busy = dlg.running.is_some();
+    ui.add_enabled_ui(!busy, |ui| {
         ui.horizontal(|ui| {
             let label = ui.label("Vary");
             egui::ComboBox::from_id_salt("fit-var").selected_text(var.label()).show_ui(ui, |ui| {
                 for v in FitVar::ALL {
                     if ui.selectable_label(v == var, v.label()).clicked() {
-                        app.dialogs.fit_var = Some(v);
-                        app.dialogs.fit_result = None;
+                        dlg.var = Some(v);
+                        dlg.result = None;
                     }
                 }
             }).response.labelled_by(label.id);
             ui.label(format!("now {} {}", fmt_value(var.get(&app.doc.design)), var.unit()));
         });
-        if ui.button("Solve").clicked() {
-            app.dialogs.fit_result = Some(fit::fit(&app.doc.design, var));
-        }
-        match app.dialogs.fit_result.clone() {
-            Some(FitOutcome::Found { value, design, hold_margin }) => {
-                ui.label(format!("{} = {} {}: every check passes; holding margin {}.", var.label(), fmt_value(value), var.unit(), hold_margin.map_or("n/a".to_string(), |m| format!("{:+.1} %", 100.0 * m))));
-                if ui.button("Apply").clicked() {
-                    app.push(Command::Edit(design, Gesture::Done));
-                    app.dialogs.fit_result = None;
-                }
-            }
-            Some(FitOutcome::Blocked(why)) => {
-                ui.label(RichText::new(why).color(error_color(ui)));
-            }
-            None => {}
+        ui.horizontal(|ui| {
+            ui.label("Land");
+            ui.radio_value(&mut dlg.aim, FitAim::HoldingEdge, "where it just holds")
+                .on_hover_text("The value at which the holding margin at the largest bore is zero: the least material or stroke that works.");
+            ui.radio_value(&mut dlg.aim, FitAim::Centre, "in the middle of the passing range")
+                .on_hover_text("The middle of the range of values at which every check passes: the most room to either side.");
+        });
+        if var != FitVar::Count {
+            ui.horizontal(|ui| {
+                let label = ui.label("Round to");
+                ui.add(egui::TextEdit::singleline(&mut dlg.step).desired_width(70.0).hint_text("none"))
+                    .labelled_by(label.id)
+                    .on_hover_text("A step in mm (e.g. 0.01, or 0.05 for stock thicknesses): the value is rounded to the nearest multiple that still passes every check. Empty: no rounding.");
+                ui.label(var.unit());
+            });
         }
     });
-    app.dialogs.show_fit = open;
+    let step = dlg.step.trim();
+    let parsed = if step.is_empty() || var == FitVar::Count {
+        Ok(None)
+    } else {
+        match step.parse::<f64>() {
+            Ok(v) if v.is_finite() && v > 0.0 => Ok(Some(v)),
+            _ => Err(format!(
+                "Round to: '{step}' is not a step above 0 mm; type e.g. 0.01, or leave it empty."
+            )),
+        }
+    };
+    if let Err(e) = &parsed {
+        ui.label(RichText::new(e).color(error_color(ui)));
+    }
+    ui.horizontal(|ui| {
+        if busy {
+            ui.spinner();
+            ui.label("Searching…");
+            if ui.button("Cancel").clicked() {
+                dlg.running = None;
+            }
+        } else if ui
+            .add_enabled(parsed.is_ok(), egui::Button::new("Solve"))
+            .clicked()
+            && let Ok(step) = parsed
+        {
+            let request = FitRequest {
+                var,
+                aim: dlg.aim,
+                step,
+            };
+            dlg.result = None;
+            dlg.running = Some(FitJob::start(&app.doc.design, request, ui.ctx()));
+        }
+    });
+    let Some((base, request, outcome)) = &dlg.result else {
+        return;
+    };
+    let var = request.var;
+    match outcome {
+        FitOutcome::Found {
+            value,
+            design,
+            passing,
+            checks,
+            unrounded,
+        } => {
+            ui.separator();
+            ui.label(format!(
+                "{} = {} {}: every check passes (they pass from {} to {} {}).",
+                var.label(),
+                fmt_value(*value),
+                var.unit(),
+                fmt_value(passing.0),
+                fmt_value(passing.1),
+                var.unit()
+            ));
+            if *unrounded {
+                ui.label(
+                    RichText::new(
+                        "No multiple of the step passes every check; the value is unrounded.",
+                    )
+                    .color(error_color(ui)),
+                );
+            }
+            ui.label(RichText::new("Margins at this value:").strong());
+            egui::Grid::new("fit-margins")
+                .num_columns(2)
+                .striped(true)
+                .show(ui, |ui| {
+                    for c in checks {
+                        ui.label(c.title());
+                        ui.label(c.margin_text().unwrap_or_else(|| "no margin".to_string()));
+                        ui.end_row();
+                    }
+                });
+            let current = **base == app.doc.design;
+            if !current {
+                ui.label(
+                    RichText::new(
+                        "The design has changed since this search: solve again to apply.",
+                    )
+                    .color(error_color(ui)),
+                );
+            }
+            let design = design.clone();
+            if ui
+                .add_enabled(current, egui::Button::new("Apply"))
+                .on_hover_text("Sets the value as one edit (Ctrl+Z undoes it).")
+                .clicked()
+            {
+                app.push(Command::Edit(design, Gesture::Done));
+                app.dialogs.fit.result = None;
+            }
+        }
+        FitOutcome::Blocked(why) => {
+            ui.label(RichText::new(why).color(error_color(ui)));
+        }
+    }
 }
 
 /// An export: button label, file ending, and the text to write.
@@ -525,6 +683,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     });
                 }
             }
+            // The jobs borrow the analysis; the report below goes through the app.
+            drop(jobs);
             if !report.is_empty() {
                 let failed = report.iter().any(|r| r.1);
                 let text = report
@@ -532,10 +692,10 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     .map(|r| r.0)
                     .collect::<Vec<_>>()
                     .join(" ");
-                app.status = Some(super::Status {
+                app.push(Command::Report(super::Status {
                     text,
                     is_error: failed,
-                });
+                }));
             }
             if ui
                 .button("Plots as PNG (as on screen)")
@@ -617,7 +777,7 @@ fn print_window(app: &mut GripApp, ctx: &Context) {
             ui.label("Paper");
             for (p, name) in [(PaperChoice::A4, "A4"), (PaperChoice::Letter, "Letter")] {
                 if ui.radio(app.session.paper == p, name).clicked() {
-                    app.session.paper = p;
+                    app.push(Command::SetPaper(p));
                 }
             }
         });

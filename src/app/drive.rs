@@ -84,20 +84,6 @@ fn runs(points: &[(f64, Option<f64>)]) -> Vec<Vec<[f64; 2]>> {
     runs
 }
 
-/// The highest stroke the actuator allows at bore `i` of the analysis window, mm: its
-/// maximum stroke through a rigid drive; through a compliant one the stroke at which the
-/// travel reaches the maximum there (infinite where it is not reached before the limit,
-/// which then bounds the stroke).
-pub fn actuator_top_mm(a: &Analysis, i: usize) -> f64 {
-    if a.travel_limit_window.is_empty() {
-        return a.segment.max_stroke_mm();
-    }
-    a.travel_limit_window
-        .get(i)
-        .and_then(|w| w.1)
-        .unwrap_or(f64::INFINITY)
-}
-
 /// Highest stroke on the curve of the actuator's maximum travel, mm (`None` for a rigid
 /// drive, or where the travel is never reached).
 pub fn travel_limit_top_mm(a: &Analysis) -> Option<f64> {

@@ -7,6 +7,7 @@
 use std::fmt::Write as _;
 
 use crate::segment::{BORE_ROW_COLUMNS, BoreRow, STATE_COLUMNS, SegmentState};
+use crate::ticks;
 
 /// Columns of the curve CSV: the first twelve state names.
 pub const CURVE_COLUMNS: [&str; 12] = STATE_COLUMNS;
@@ -47,8 +48,9 @@ pub struct SvgSeries {
     pub runs: Vec<Vec<[f64; 2]>>,
 }
 
-/// A simple line chart as SVG: frame, axis labels with units, min/max tick values,
-/// polylines and a legend. Non-finite points are skipped.
+/// A simple line chart as SVG: frame, axis labels with units, grid lines and tick values
+/// at round steps ([`crate::ticks`]), polylines and a legend. Non-finite points are
+/// skipped.
 pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]) -> String {
     let (w, h, ml, mr, mt, mb) = (720.0, 440.0, 70.0, 200.0, 40.0, 50.0);
     let pts = series
@@ -107,20 +109,26 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
         mt + ph / 2.0,
         esc(y_label)
     );
-    for (v, x, anchor) in [(x0, ml, "start"), (x1, ml + pw, "end")] {
+    // Grid lines and labels at round values (the one tick generator of every plot).
+    let (xt, xd) = ticks::ticks(x0, x1, 7);
+    for v in xt {
+        let x = sx(v);
         let _ = writeln!(
             s,
-            r#"<text x="{x}" y="{}" text-anchor="{anchor}">{}</text>"#,
-            mt + ph + 16.0,
-            tick(v)
+            r##"<line x1="{x:.2}" y1="{mt}" x2="{x:.2}" y2="{}" stroke="#d8d8d8" stroke-width="0.6"/><text x="{x:.2}" y="{}" text-anchor="middle">{v:.xd$}</text>"##,
+            mt + ph,
+            mt + ph + 16.0
         );
     }
-    for (v, y) in [(y0, mt + ph), (y1, mt + 10.0)] {
+    let (yt, yd) = ticks::ticks(y0, y1, 6);
+    for v in yt {
+        let y = sy(v);
         let _ = writeln!(
             s,
-            r#"<text x="{}" y="{y}" text-anchor="end">{}</text>"#,
+            r##"<line x1="{ml}" y1="{y:.2}" x2="{}" y2="{y:.2}" stroke="#d8d8d8" stroke-width="0.6"/><text x="{}" y="{:.2}" text-anchor="end">{v:.yd$}</text>"##,
+            ml + pw,
             ml - 4.0,
-            tick(v)
+            y + 4.0
         );
     }
     for (i, ser) in series.iter().enumerate() {
@@ -153,18 +161,6 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
     }
     s.push_str("</svg>\n");
     s
-}
-
-fn tick(v: f64) -> String {
-    let a = v.abs();
-    if a != 0.0 && !(1e-3..1e5).contains(&a) {
-        format!("{v:.3e}")
-    } else {
-        format!("{v:.4}")
-            .trim_end_matches('0')
-            .trim_end_matches('.')
-            .to_string()
-    }
 }
 
 fn esc(t: &str) -> String {
@@ -248,5 +244,10 @@ mod tests {
         assert_eq!(svg.matches("<polyline").count(), 2);
         assert!(svg.contains("a&lt;b"));
         assert!(!svg.contains("NaN"));
+        // Ticks at round values across x from 0 to 4 (steps of 0.5), not the data's ends.
+        assert!(
+            svg.contains(">0.5</text>") && svg.contains(">2.0</text>"),
+            "{svg}"
+        );
     }
 }

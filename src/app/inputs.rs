@@ -246,13 +246,13 @@ impl InputsPanel {
             .show(ui, |ui| {
                 ui.heading("Design");
                 self.title_ui(ui, d, &mut out);
-                section(ui, "Strips", |ui| self.strip_ui(ui, d, analysis, &mut out));
-                section(ui, "Hub and bore", |ui| self.bore_ui(ui, d, &mut out));
-                section(ui, "Actuator", |ui| {
+                section_ui(ui, "Strips", |ui| self.strip_ui(ui, d, analysis, &mut out));
+                section_ui(ui, "Hub and bore", |ui| self.bore_ui(ui, d, &mut out));
+                section_ui(ui, "Actuator", |ui| {
                     self.actuator_ui(ui, d, analysis, &mut out)
                 });
-                section(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
-                section(ui, "Operating point", |ui| {
+                section_ui(ui, "Load and friction", |ui| self.duty_ui(ui, d, &mut out));
+                section_ui(ui, "Operating point", |ui| {
                     self.stroke_ui(ui, d, analysis, &mut out)
                 });
             });
@@ -280,7 +280,7 @@ impl InputsPanel {
 
     /// One numeric row in a 4-column grid: label, slider, typed field, unit; an error
     /// line under it when the last entry was refused.
-    fn row(
+    fn row_ui(
         &mut self,
         ui: &mut Ui,
         d: &Design,
@@ -393,13 +393,19 @@ impl InputsPanel {
     }
 
     /// Rows of plain numbers: each row whose field the design has, in order.
-    fn rows(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>, rows: &[(Row<'_>, Field)]) {
+    fn rows_ui(
+        &mut self,
+        ui: &mut Ui,
+        d: &Design,
+        out: &mut Vec<Command>,
+        rows: &[(Row<'_>, Field)],
+    ) {
         let mut probe = d.clone();
         for &(row, field) in rows {
             let Some(value) = field(&mut probe).map(|v| *v) else {
                 continue;
             };
-            self.row(ui, d, row, value, out, move |d, v| {
+            self.row_ui(ui, d, row, value, out, move |d, v| {
                 if let Some(f) = field(d) {
                     *f = v;
                 }
@@ -476,8 +482,8 @@ impl InputsPanel {
         out: &mut Vec<Command>,
     ) {
         let s = &d.strip;
-        grid(ui, "strip", |ui| {
-            self.row(
+        grid_ui(ui, "strip", |ui| {
+            self.row_ui(
                 ui,
                 d,
                 Row::new(
@@ -499,7 +505,7 @@ impl InputsPanel {
                 (Row::new("strip.width_mm", "Width", "mm", 0.2, 200.0, "Strip width, tangential to the hub.").log(), |d| Some(&mut d.strip.width_mm)),
                 (Row::new("strip.thickness_mm", "Thickness", "mm", 0.02, 5.0, "Strip thickness, radial. Stiffness goes with its cube, bending stress with it.").log(), |d| Some(&mut d.strip.thickness_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
         // Material.
         ui.horizontal(|ui| {
@@ -608,7 +614,7 @@ impl InputsPanel {
                 if let Some(e) = self.errors.get("strip.material.name") {
                     ui.label(RichText::new(e).color(error_color(ui)).small());
                 }
-                grid(ui, "custom-material", |ui| {
+                grid_ui(ui, "custom-material", |ui| {
                     #[rustfmt::skip]
                     let rows: &[(Row<'_>, Field)] = &[
                         (Row::new("strip.material.youngs_modulus_gpa", "Young's modulus", "GPa", 10.0, 500.0, "Elastic modulus of the strip material."), |d| custom_numbers(d).map(|m| m.0)),
@@ -617,7 +623,7 @@ impl InputsPanel {
                         (Row::new("strip.material.yield_strength_mpa", "Yield strength", "MPa", 1.0, 5000.0, "Yield strength; must not exceed the tensile strength.").log(), |d| custom_numbers(d).map(|m| m.3)),
                         (Row::new("strip.material.endurance_limit_mpa", "Endurance strength", "MPa", 1.0, 5000.0, "Fully reversed endurance strength at 10^6 cycles and beyond.").log(), |d| custom_numbers(d).map(|m| m.4)),
                     ];
-                    self.rows(ui, d, out, rows);
+                    self.rows_ui(ui, d, out, rows);
                 });
             }
         }
@@ -680,13 +686,13 @@ impl InputsPanel {
     }
 
     fn bore_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
-        grid(ui, "hub", |ui| {
+        grid_ui(ui, "hub", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("mount_radius_mm", "Mount radius", "mm", 0.5, 1000.0, "Radius of the strip centreline at the end plates.").log(), |d| Some(&mut d.mount_radius_mm)),
                 (Row::new("end_plate_diameter_mm", "End-plate diameter", "mm", 0.0, 2000.0, "Outside diameter of the end plates; 0 when they are smaller than the strip ring.").log(), |d| Some(&mut d.end_plate_diameter_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
         let as_pipe = d.bore.pipe.is_some();
         ui.horizontal(|ui| {
@@ -787,14 +793,14 @@ impl InputsPanel {
         }
         let nominal = d.bore.nominal_mm().unwrap_or(d.bore.diameter_mm);
         let tol_hi = (0.25 * nominal).min(10.0);
-        grid(ui, "bore", |ui| {
+        grid_ui(ui, "bore", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("bore.diameter_mm", "Bore diameter", "mm", 2.0, 2000.0, "Nominal inside diameter the segment grips.").log(), |d| d.bore.pipe.is_none().then_some(&mut d.bore.diameter_mm)),
                 (Row::new("bore.minus_mm", "Bore minus", "mm", 0.0, tol_hi, "How far below nominal the bore may be; stress, actuator and stroke are judged at the smallest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.minus_mm)),
                 (Row::new("bore.plus_mm", "Bore plus", "mm", 0.0, tol_hi, "How far above nominal the bore may be; reach and holding are judged at the largest bore. The slider is logarithmic from 0.01 mm, so mill tolerances of tenths to a few millimetres take most of its track.").log_from(0.01), |d| Some(&mut d.bore.plus_mm)),
             ];
-            self.rows(ui, d, out, rows);
+            self.rows_ui(ui, d, out, rows);
         });
     }
 
@@ -829,20 +835,22 @@ impl InputsPanel {
                     "Direct pull",
                     "A straight pull on the plates (cylinder, solenoid, cable).",
                     Actuator::Direct {
-                        max_force_n: pull_n,
-                        max_stroke_mm: stroke_mm,
+                        max_force_n: 0.0,
+                        max_stroke_mm: 0.0,
                         stiffness_n_per_mm: None,
-                    },
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
                 (
                     "Spool",
                     "A cord wound on a spool turned by a motor.",
                     Actuator::Spool {
                         radius_mm: 5.0,
-                        max_torque_nm: pull_n * 5e-3,
-                        max_angle_deg: (stroke_mm / 5.0).to_degrees(),
+                        max_torque_nm: 0.0,
+                        max_angle_deg: 0.0,
                         stiffness_n_per_mm: None,
-                    },
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
                 (
                     "Lead screw",
@@ -850,10 +858,11 @@ impl InputsPanel {
                     Actuator::LeadScrew {
                         lead_mm: 1.0,
                         efficiency: 0.3,
-                        max_torque_nm: pull_n * 1e-3 / (2.0 * std::f64::consts::PI * 0.3),
-                        max_turns: stroke_mm,
+                        max_torque_nm: 0.0,
+                        max_turns: 0.0,
                         stiffness_n_per_mm: None,
-                    },
+                    }
+                    .rated_for(pull_n, stroke_mm),
                 ),
             ];
             for (name, tip, proto) in kinds {
@@ -891,7 +900,7 @@ impl InputsPanel {
                 .set_stiffness_n_per_mm(compliant.then_some(super::drive::DEFAULT_STIFFNESS_N_PER_MM));
             self.propose_whole(next, "actuator", out);
         }
-        grid(ui, "actuator", |ui| self.rows(ui, d, out, rows));
+        grid_ui(ui, "actuator", |ui| self.rows_ui(ui, d, out, rows));
         if let Some(e) = self.errors.get("actuator") {
             ui.label(RichText::new(e).color(error_color(ui)).small());
         }
@@ -904,15 +913,15 @@ impl InputsPanel {
     }
 
     fn duty_ui(&mut self, ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
-        grid(ui, "duty", |ui| {
+        grid_ui(ui, "duty", |ui| {
             #[rustfmt::skip]
             let rows: &[(Row<'_>, Field)] = &[
                 (Row::new("duty.holding_force_n", "Load to hold", "N", 0.0, 1e5, "Axial force the segment must hold in the bore.").log(), |d| Some(&mut d.duty.holding_force_n)),
                 (Row::new("duty.safety_factor", "Safety factor", "", 1.0, 10.0, "Factor on the load to hold; the holding check asks for load x factor."), |d| Some(&mut d.duty.safety_factor)),
                 (Row::new("friction", "Wall friction", "", 0.01, 1.5, "Static friction coefficient, strip on wall. Measure it when you can."), |d| Some(&mut d.friction)),
             ];
-            self.rows(ui, d, out, rows);
-            self.row(
+            self.rows_ui(ui, d, out, rows);
+            self.row_ui(
                 ui,
                 d,
                 Row::new(
@@ -1037,7 +1046,7 @@ impl InputsPanel {
         if let Some(e) = self.errors.get("operating") {
             ui.label(RichText::new(e).color(error_color(ui)).small());
         }
-        grid(ui, "stroke", |ui| {
+        grid_ui(ui, "stroke", |ui| {
             match operating {
                 Operating::Stroke(stroke) => {
                     let key = if d.operating.is_some() {
@@ -1045,7 +1054,7 @@ impl InputsPanel {
                     } else {
                         "operating_stroke_mm"
                     };
-                    self.row(
+                    self.row_ui(
                         ui,
                         d,
                         Row::new(
@@ -1062,7 +1071,7 @@ impl InputsPanel {
                     );
                     self.stroke_at_actuator_ui(ui, d, stroke, out);
                 }
-                Operating::Pull(pull) => self.row(
+                Operating::Pull(pull) => self.row_ui(
                     ui,
                     d,
                     Row::new(
@@ -1078,7 +1087,7 @@ impl InputsPanel {
                     out,
                     |d, v| d.set_operating(Operating::Pull(v)),
                 ),
-                Operating::Torque(torque) => self.row(
+                Operating::Torque(torque) => self.row_ui(
                     ui,
                     d,
                     Row::new(
@@ -1110,11 +1119,14 @@ impl InputsPanel {
         out: &mut Vec<Command>,
     ) {
         let l = d.strip.free_length_mm;
+        // The stroke in the actuator's own position unit, both ways.
+        let act = d.actuator.clone();
+        let position = |stroke_mm: f64| act.reading(stroke_mm, 0.0).position;
         match d.actuator {
-            Actuator::Spool { radius_mm, .. } => {
-                let hi = (l / radius_mm).to_degrees();
+            Actuator::Spool { .. } => {
+                let hi = position(l);
                 let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
-                self.row(
+                self.row_ui(
                     ui,
                     d,
                     Row::new(
@@ -1125,15 +1137,15 @@ impl InputsPanel {
                         hi,
                         &tip,
                     ),
-                    (stroke / radius_mm).to_degrees(),
+                    position(stroke),
                     out,
-                    move |d, v| d.set_operating(Operating::Stroke(v.to_radians() * radius_mm)),
+                    |d, v| d.set_operating(Operating::Stroke(act.stroke_mm_at(v))),
                 );
             }
-            Actuator::LeadScrew { lead_mm, .. } => {
-                let hi = l / lead_mm;
+            Actuator::LeadScrew { .. } => {
+                let hi = position(l);
                 let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
-                self.row(
+                self.row_ui(
                     ui,
                     d,
                     Row::new(
@@ -1144,9 +1156,9 @@ impl InputsPanel {
                         hi,
                         &tip,
                     ),
-                    stroke / lead_mm,
+                    position(stroke),
                     out,
-                    move |d, v| d.set_operating(Operating::Stroke(v * lead_mm)),
+                    |d, v| d.set_operating(Operating::Stroke(act.stroke_mm_at(v))),
                 );
             }
             Actuator::Direct { .. } => {}
@@ -1178,13 +1190,13 @@ fn at_actuator_tip(what: &str, hi: f64, unit: &str) -> String {
     )
 }
 
-fn section(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
+fn section_ui(ui: &mut Ui, title: &str, body: impl FnOnce(&mut Ui)) {
     egui::CollapsingHeader::new(RichText::new(title).strong())
         .default_open(true)
         .show(ui, body);
 }
 
-fn grid(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
+fn grid_ui(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
     egui::Grid::new(id)
         .num_columns(4)
         .spacing([6.0, 4.0])
@@ -1192,11 +1204,30 @@ fn grid(ui: &mut Ui, id: &str, body: impl FnOnce(&mut Ui)) {
 }
 
 /// Red that reads on both themes.
-pub fn error_color(ui: &Ui) -> Color32 {
-    if ui.visuals().dark_mode {
+pub fn error_color(on: &impl HasVisuals) -> Color32 {
+    if on.visuals().dark_mode {
         Color32::from_rgb(255, 120, 110)
     } else {
         Color32::from_rgb(180, 20, 20)
+    }
+}
+
+/// What knows the theme's visuals: a `Ui`, or the `Visuals` themselves (so a colour helper
+/// takes no `Ui` of its own).
+pub trait HasVisuals {
+    /// The visuals in force.
+    fn visuals(&self) -> &egui::Visuals;
+}
+
+impl HasVisuals for Ui {
+    fn visuals(&self) -> &egui::Visuals {
+        Ui::visuals(self)
+    }
+}
+
+impl HasVisuals for egui::Visuals {
+    fn visuals(&self) -> &egui::Visuals {
+        self
     }
 }
 

@@ -12,7 +12,6 @@ mod bench;
 mod dialogs;
 mod drive;
 pub mod export;
-pub mod fit;
 mod help;
 mod inputs;
 mod outputs;
@@ -71,6 +70,16 @@ pub enum Command {
     /// Save to this path writing the whole design (the file's comments and layout go),
     /// after the user agreed to that; then carry out the held-back action, if any.
     SaveRewriting(PathBuf, Option<Pending>),
+    /// Open the safety cautions window.
+    ShowCautions,
+    /// Use this colour theme (kept in the session).
+    SetTheme(ThemeChoice),
+    /// Print sheets on this paper (kept in the session).
+    SetPaper(state::PaperChoice),
+    /// Show this on the status line.
+    Report(Status),
+    /// Close the unsaved-changes or the rewrite prompt without acting.
+    CancelPrompt,
 }
 
 /// An action held back by the unsaved-changes prompt.
@@ -173,9 +182,6 @@ pub struct GripApp {
     last_recovery_write_s: Option<f64>,
     sent_title: String,
     applied_theme: Option<ThemeChoice>,
-    /// When the operating stroke is past the model's limit: a stroke just short of it and
-    /// the strip shape there, so the side view still shows something.
-    fallback_shape: Option<(f64, Vec<[f64; 2]>)>,
     /// Where the three plots were drawn last frame (stroke-bore, force, stress), for PNG export.
     plot_rects: [Option<egui::Rect>; 3],
     inputs: inputs::InputsPanel,
@@ -221,7 +227,6 @@ impl GripApp {
             last_recovery_write_s: None,
             sent_title: String::new(),
             applied_theme: None,
-            fallback_shape: None,
             plot_rects: [None; 3],
             inputs: inputs::InputsPanel::default(),
             dialogs: dialogs::Dialogs::default(),
@@ -366,8 +371,8 @@ impl GripApp {
         }
         self.shortcuts(&ctx);
         self.close_guard(&ctx);
-        dialogs::menu_bar(self, ui);
-        dialogs::status_bar(self, ui);
+        dialogs::menu_bar_ui(self, ui);
+        dialogs::status_bar_ui(self, ui);
         egui::Panel::left("inputs")
             .resizable(true)
             .default_size(390.0)
@@ -521,6 +526,28 @@ impl GripApp {
                 if let Some(orphan) = self.recovery_offer.take() {
                     orphan.remove();
                 }
+                false
+            }
+            Command::ShowCautions => {
+                self.dialogs.show_cautions = true;
+                false
+            }
+            Command::SetTheme(theme) => {
+                self.session.theme = theme;
+                self.store_session();
+                false
+            }
+            Command::SetPaper(paper) => {
+                self.session.paper = paper;
+                false
+            }
+            Command::Report(status) => {
+                self.status = Some(status);
+                false
+            }
+            Command::CancelPrompt => {
+                self.guard = None;
+                self.rewrite_prompt = None;
                 false
             }
             Command::RecoveryLater => {
@@ -794,13 +821,6 @@ impl GripApp {
     fn reanalyse(&mut self) {
         match analysis::analyse(&self.doc.design) {
             Ok(a) => {
-                self.fallback_shape = None;
-                if a.shape_mm.is_empty()
-                    && let Ok(p) = a.segment.at_bore(a.segment.bore_nominal_mm)
-                {
-                    let s = 0.995 * p.limit_stroke_mm();
-                    self.fallback_shape = Some((s, p.shape_mm(s, 48)));
-                }
                 self.analysis = Some(a);
                 self.analysis_error = None;
             }

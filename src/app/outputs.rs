@@ -9,11 +9,13 @@ use egui_plot::{
     AxisHints, FilledArea, HLine, Legend, Line, LineStyle, Plot, PlotPoints, Span, VLine,
 };
 
-use super::GripApp;
 use super::export::SvgSeries;
 use super::inputs::error_color;
-use crate::analysis::{Analysis, BoreCase};
+use super::{Command, GripApp};
+use crate::analysis::{Analysis, BoreCase, SideShape};
+use crate::quantities::STATE_FIELDS;
 use crate::segment::SegmentState;
+use crate::ticks;
 
 /// A curve of a plot: legend name, colour, and its runs (a missing value breaks a run).
 pub struct Curve {
@@ -135,8 +137,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.heading(RichText::new(text).color(color));
         ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
-        let energy = a.bores.iter().filter_map(|b| b.operating.as_ref().ok()).filter_map(|s| s.strain_energy_j).fold(None, |m: Option<f64>, e| Some(m.map_or(e, |m| m.max(e))));
-        let stored = energy.map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
+        let stored = a.max_strain_energy_j().map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
         ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));
         ui.separator();
         for (i, c) in a.checks.iter().enumerate() {
@@ -160,6 +161,15 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 ui.label(RichText::new(&c.reason).small());
             });
         }
+        if let Some(u) = a.usable_stroke() {
+            ui.separator();
+            let mut text = u.describe();
+            text[..1].make_ascii_uppercase();
+            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui) };
+            ui.label(RichText::new(text).color(col)).on_hover_text(
+                "The strokes at which every bore of the tolerance band works: the segment holds the required load at the largest bore and stays within the stress limit, the model's limit and the actuator's travel at the smallest. The green fill of the stroke-against-bore plot shows the window bore by bore.",
+            );
+        }
         if !a.cautions.is_empty() {
             ui.separator();
             ui.label(RichText::new("Geometry caution").color(error_color(ui)).strong()).on_hover_text(
@@ -173,7 +183,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         ui.strong("At the operating stroke, nominal bore");
         if let Some(b) = a.bores.iter().find(|b| b.case == BoreCase::Nominal) {
             match &b.operating {
-                Ok(s) => state_table(ui, s),
+                Ok(s) => state_table_ui(ui, s),
                 Err(e) => {
                     ui.label(RichText::new(e).color(error_color(ui)));
                 }
@@ -181,34 +191,25 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         }
         ui.separator();
         if ui.button("Safety cautions").on_hover_text("Hazards of building and using bowed-strip segments.").clicked() {
-            app.dialogs.show_cautions = true;
+            app.push(Command::ShowCautions);
         }
     });
 }
 
-fn state_table(ui: &mut Ui, s: &SegmentState) {
-    let num = |v: Option<f64>, unit: &str, digits: usize| {
-        v.map_or_else(|| "n/a".to_string(), |x| format!("{x:.digits$} {unit}"))
-    };
+fn state_table_ui(ui: &mut Ui, s: &SegmentState) {
     egui::Grid::new("state").num_columns(2).striped(true).show(ui, |ui| {
         let mut row = |k: &str, v: String, tip: &str| {
             ui.label(k).on_hover_text(tip);
             ui.label(v);
             ui.end_row();
         };
-        row("phase", s.phase.to_string(), "free, point contact at the crest, line contact (a flat run on the wall), or beyond the model's limit");
-        row("radial force", num(s.radial_force_n, "N", 2), "total force of all strips on the wall");
-        row("holding force", num(s.holding_force_n, "N", 2), "friction x radial force: the axial load the segment holds");
-        row("actuator pull", num(s.actuator_force_n, "N", 2), "pull on the end plates, N x axial force per strip");
-        if let Some(r) = s.actuator {
-            row("actuator reads", format!("{:.3} {} at {:.3} {}", r.effort, r.effort_unit, r.position, r.position_unit), "the actuator's own effort and position");
+        row("phase", s.phase.to_string(), "free, point contact at the crest, line contact (a flat run on the wall), beyond the model's limit, or a failed solve");
+        for f in &STATE_FIELDS {
+            row(f.label, f.text(s, "n/a"), f.meaning);
         }
-        row("peak stress", num(s.max_stress_mpa, "MPa", 1), "bending plus axial stress at the peak curvature");
-        row("static factor", num(s.static_safety_factor, "", 3), "0.75 x tensile strength / peak stress");
-        row("fatigue factor", num(s.fatigue_safety_factor, "", 3), "Goodman, zero-to-peak cycles");
-        row("flat run", num(s.flat_length_mm, "mm", 2), "length of strip lying on the wall");
-        row("over the strips", num(s.outer_diameter_mm, "mm", 2), "diameter over the strip corners at the crest");
-        row("stored energy", num(s.strain_energy_j, "J", 4), "strain energy in all strips");
+        if let Some(r) = s.actuator {
+            row("actuator reads", r.describe(), "the actuator's own effort and position");
+        }
         row("model limit", format!("{:.3} mm ({})", s.limit_stroke_mm, s.limit_reason), "stroke where the model stops in this bore");
     });
 }
@@ -246,42 +247,43 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         .nominal_force_points(&seg.design, seg.bore_nominal_mm);
     let [window_rect, force_rect, stress_rect] = &mut app.plot_rects;
     ui.horizontal(|ui| {
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             window_rect,
             "Stroke against bore",
             &format!("For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.{}", if a.travel_limit_window.is_empty() { "" } else { "\n\nThe drive stretches (travel = stroke + pull / stiffness), so the actuator's maximum travel is drawn as the stroke at which each bore's travel reaches it." }),
             travel.note(),
-            |ui| window_plot(ui, a, &window, &travel, plot_h),
+            |ui| window_plot_ui(ui, a, &window, &travel, plot_h),
         );
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             force_rect,
             &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot(ui, a, &forces, &rating, need, plot_h, &bench),
+            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h, &bench),
         );
     });
     ui.horizontal(|ui| {
-        plot_cell(
+        plot_cell_ui(
             ui,
             cell.x,
             stress_rect,
             &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
             "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
             Some("dip after first contact: physical, see heading".to_string()),
-            |ui| stress_plot(ui, a, plot_h),
+            |ui| stress_plot_ui(ui, a, plot_h),
         );
         ui.vertical(|ui| {
             ui.set_width(cell.x);
-            let (stroke, shape, note) = match &app.fallback_shape {
-                Some((s, shape)) => (*s, shape.as_slice(), match a.nominal_operating_stroke_mm() { Some(op) => format!(" (the operating stroke, {op:.3} mm, is past the model's limit)"), None => " (the set pull is never reached at the nominal bore)".to_string() }),
-                None => (a.nominal_operating_stroke_mm().unwrap_or(0.0), a.shape_mm.as_slice(), String::new()),
+            let shape = a.side_shape();
+            let heading = match (shape.is_operating(), a.nominal_operating_stroke_mm()) {
+                (true, Some(op)) => format!("To scale at {op:.3} mm stroke"),
+                (false, Some(op)) => format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke"),
+                (_, None) => "To scale, strips relaxed: the set pull is never reached at the nominal bore".to_string(),
             };
-            let heading = format!("To scale at {stroke:.3} mm stroke{note}");
             ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
             let h = plot_h;
             let w = ui.available_width();
@@ -290,12 +292,12 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             let long = d.strip.free_length_mm * 1.15 > 1.4 * seg.bore_nominal_mm;
             if long {
                 let side_h = (h * 0.66).min(w * 1.1 * seg.bore_nominal_mm as f32 / (d.strip.free_length_mm as f32 * 1.15));
-                side_view(ui, a, shape, Vec2::new(w, side_h));
-                end_view(ui, a, shape, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
+                side_view_ui(ui, a, &shape, Vec2::new(w, side_h));
+                end_view_ui(ui, a, Vec2::new(w, (h - side_h - 6.0).max(40.0)));
             } else {
                 ui.horizontal(|ui| {
-                    side_view(ui, a, shape, Vec2::new(w * 0.62, h));
-                    end_view(ui, a, shape, Vec2::new(w * 0.36, h));
+                    side_view_ui(ui, a, &shape, Vec2::new(w * 0.62, h));
+                    end_view_ui(ui, a, Vec2::new(w * 0.36, h));
                 });
             }
         });
@@ -305,7 +307,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
 /// One plot cell: the heading (its explanation on hover) with, right-aligned, a note
 /// naming what lies above the plotted range, then the plot. Records the cell's rectangle
 /// (heading, axes and plot), which the PNG export cuts out.
-fn plot_cell(
+fn plot_cell_ui(
     ui: &mut Ui,
     width: f32,
     rect: &mut Option<egui::Rect>,
@@ -391,7 +393,7 @@ const BAND_LABEL_PAD: f32 = 4.0;
 
 /// Writes each band's name at the top of the band, right-aligned, where it fits between
 /// the band's edges and stays clear of the legend in the top-left corner.
-fn band_labels(ui: &Ui, t: &egui_plot::PlotTransform, bands: &[Band], legend: &[&str]) {
+fn band_labels_ui(ui: &Ui, t: &egui_plot::PlotTransform, bands: &[Band], legend: &[&str]) {
     let frame = *t.frame();
     let painter = ui.painter().with_clip_rect(frame);
     let font = egui::TextStyle::Small.resolve(ui.style());
@@ -428,24 +430,13 @@ const Y_LABEL_PX: egui::Rangef = egui::Rangef {
     max: 30.0,
 };
 
-/// The smallest of 1, 2, 5 times a power of ten that is at least `min`, with its leading
-/// digit.
-fn nice_step(min: f64) -> (f64, f64) {
-    let p = 10f64.powf(min.log10().floor());
-    [1.0, 2.0, 5.0, 10.0]
-        .into_iter()
-        .map(|m| if m == 10.0 { (m * p, 1.0) } else { (m * p, m) })
-        .find(|(s, _)| *s >= min)
-        .unwrap_or((10.0 * p, 1.0))
-}
-
 /// Grid lines on a 1-2-5 series with the labelled lines at least `label_px` points apart
 /// (the plot's own powers of ten leave a narrow range with a single labelled tick).
 fn grid_125(label_px: f32) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
     egui_plot::uniform_grid_spacer(move |input| {
         let min = input.base_step_size * f64::from(label_px / GRID_MIN_PX);
         let (label, lead) = if min.is_finite() && min > 0.0 {
-            nice_step(min)
+            ticks::nice_step(min)
         } else {
             let span = (input.bounds.1 - input.bounds.0).abs();
             (
@@ -465,7 +456,7 @@ fn grid_125(label_px: f32) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::Gr
 
 /// A tick label with as many decimals as its step needs.
 fn tick_label(mark: egui_plot::GridMark, _range: &std::ops::RangeInclusive<f64>) -> String {
-    let decimals = (-mark.step_size.log10() - 1e-9).ceil().clamp(0.0, 6.0) as usize;
+    let decimals = ticks::decimals(mark.step_size);
     format!("{:.decimals$}", mark.value)
 }
 
@@ -539,14 +530,14 @@ fn stroke_hover(
 }
 
 /// Colour of the operating-stroke marker: the text colour, so it reads on both themes.
-fn marker(ui: &Ui) -> Color32 {
-    ui.visuals().text_color()
+fn marker(visuals: &egui::Visuals) -> Color32 {
+    visuals.text_color()
 }
 
-fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, height: f32) {
+fn window_plot_ui(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, height: f32) {
     let seg = &a.segment;
-    let hold = &a.window;
-    let mark = marker(ui);
+    let usable = a.usable_window_mm();
+    let mark = marker(ui.visuals());
     let tolerance = (seg.bore_smallest_mm, seg.bore_largest_mm);
     let bands = [Band {
         name: "bore tolerance",
@@ -571,38 +562,17 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
                 b.add_to(p);
             }
             // Usable window: holding reached, below stress limit, model limit and actuator travel.
-            let mut xs = Vec::new();
-            let mut lo = Vec::new();
-            let mut hi = Vec::new();
-            let flush = |xs: &mut Vec<f64>,
-                         lo: &mut Vec<f64>,
-                         hi: &mut Vec<f64>,
-                         p: &mut egui_plot::PlotUi<'_>| {
-                if xs.len() >= 2 {
+            for run in &usable {
+                if run.len() >= 2 {
+                    let xs: Vec<f64> = run.iter().map(|r| r[0]).collect();
+                    let lo: Vec<f64> = run.iter().map(|r| r[1]).collect();
+                    let hi: Vec<f64> = run.iter().map(|r| r[2]).collect();
                     p.add(
-                        FilledArea::new("usable window", xs, lo, hi)
+                        FilledArea::new("usable window", &xs, &lo, &hi)
                             .fill_color(C_HOLD.gamma_multiply(0.25)),
                     );
                 }
-                xs.clear();
-                lo.clear();
-                hi.clear();
-            };
-            for (i, r) in hold.iter().enumerate() {
-                let top = [r.stress_limit_stroke_mm, r.limit_stroke_mm]
-                    .iter()
-                    .flatten()
-                    .fold(super::drive::actuator_top_mm(a, i), |m, v| m.min(*v));
-                match r.holding_stroke_mm.filter(|h| *h < top && top.is_finite()) {
-                    Some(h) => {
-                        xs.push(r.bore_mm);
-                        lo.push(h);
-                        hi.push(top);
-                    }
-                    None => flush(&mut xs, &mut lo, &mut hi, p),
-                }
             }
-            flush(&mut xs, &mut lo, &mut hi, p);
             for c in curves {
                 c.add_to(p);
             }
@@ -619,7 +589,7 @@ fn window_plot(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, hei
         "operating stroke",
         "nominal bore",
     ]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
 /// Highest value over the curves.
@@ -691,7 +661,7 @@ fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
     });
 }
 
-fn force_plot(
+fn force_plot_ui(
     ui: &mut Ui,
     a: &Analysis,
     curves: &[Curve],
@@ -705,7 +675,7 @@ fn force_plot(
         return;
     }
     let curve = &a.curve;
-    let mark = marker(ui);
+    let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("force-plot", "stroke, mm", "force, N", height)
         .label_formatter(move |hover| {
@@ -727,10 +697,10 @@ fn force_plot(
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
-fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
+fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
         return;
@@ -738,7 +708,7 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
     let seg = &a.segment;
     let curves = stress_curves(a);
     let curve = &a.curve;
-    let mark = marker(ui);
+    let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("stress-plot", "stroke, mm", "stress, MPa", height)
         .label_formatter(move |hover| {
@@ -764,7 +734,7 @@ fn stress_plot(ui: &mut Ui, a: &Analysis, height: f32) {
         });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
-    band_labels(ui, &shown.transform, &bands, &legend);
+    band_labels_ui(ui, &shown.transform, &bands, &legend);
 }
 
 /// Maps model coordinates (mm) to the screen with one scale for both axes.
@@ -793,18 +763,15 @@ impl Scale {
     }
 }
 
-fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
+fn side_view_ui(ui: &mut Ui, a: &Analysis, drawn: &SideShape<'_>, size: Vec2) {
+    let shape = drawn.points();
     let (resp, painter) = ui.allocate_painter(size, egui::Sense::hover());
     let rect = resp.rect.shrink(12.0);
     let d = &a.segment.design;
     let fg = ui.visuals().text_color();
     let r_wall = 0.5 * a.segment.bore_nominal_mm;
     let chord = shape.last().map_or(d.strip.free_length_mm, |p| p[0]);
-    let plate_r = if d.end_plate_diameter_mm > 0.0 {
-        0.5 * d.end_plate_diameter_mm
-    } else {
-        d.mount_radius_mm
-    };
+    let plate_r = a.segment.drawn_plate_radius_mm();
     let plate_w = (0.04 * d.strip.free_length_mm).max(1.0);
     let scale = Scale::fit(
         rect.with_max_y(rect.max.y - 14.0),
@@ -844,11 +811,20 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
         let r = egui::Rect::from_two_pos(scale.p(x0, plate_r), scale.p(x0 + plate_w, -plate_r));
         painter.rect_filled(r, 1.0, C_STEEL.gamma_multiply(0.45));
     }
-    if shape.len() < 2 {
+    if !drawn.is_operating() {
+        // The strips as built, straight at the mount radius, with a word on why.
+        let relaxed = Stroke::new(
+            (d.strip.thickness_mm as f32 * scale.px_per_mm).max(1.5),
+            fg.gamma_multiply(0.5),
+        );
+        for sgn in [1.0, -1.0] {
+            let pts: Vec<Pos2> = shape.iter().map(|p| scale.p(p[0], sgn * p[1])).collect();
+            painter.add(egui::Shape::line(pts, relaxed));
+        }
         let why = if a.curve.is_empty() {
-            "no shape: the relaxed strips do not fit this bore"
+            "no state: the relaxed strips do not fit this bore"
         } else {
-            "no shape: beyond the model's limit"
+            "no state at the operating stroke (see the checks); strips drawn relaxed"
         };
         let galley = painter.layout_no_wrap(why.to_string(), egui::FontId::proportional(13.0), fg);
         let at = egui::Align2::CENTER_CENTER.anchor_size(rect.center(), galley.size());
@@ -894,7 +870,7 @@ fn side_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
     );
 }
 
-fn end_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
+fn end_view_ui(ui: &mut Ui, a: &Analysis, size: Vec2) {
     let (resp, painter) = ui.allocate_painter(size, egui::Sense::hover());
     let rect = resp.rect.shrink(8.0);
     let d = &a.segment.design;
@@ -911,57 +887,20 @@ fn end_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
         r_wall as f32 * scale.px_per_mm,
         Stroke::new(2.0, fg.gamma_multiply(0.8)),
     );
-    let plate_r = if d.end_plate_diameter_mm > 0.0 {
-        0.5 * d.end_plate_diameter_mm
-    } else {
-        d.mount_radius_mm - d.strip.thickness_mm
-    };
+    let view = a.end_view();
     painter.circle_filled(
         c,
-        plate_r as f32 * scale.px_per_mm,
+        view.plate_radius_mm as f32 * scale.px_per_mm,
         C_STEEL.gamma_multiply(0.35),
     );
-    // The crest of the state drawn beside: the operating state's, or, when the operating
-    // stroke is past the limit, that of the shape drawn in its place (its radius over the
-    // mount radius).
-    let crest = a
-        .bores
-        .iter()
-        .find(|b| b.case == BoreCase::Nominal)
-        .and_then(|b| b.operating.as_ref().ok())
-        .and_then(|s| s.crest_height_mm)
-        .or_else(|| {
-            shape
-                .iter()
-                .map(|p| p[1] - d.mount_radius_mm)
-                .reduce(f64::max)
-        })
-        .unwrap_or(0.0);
-    let n = d.strip.count;
-    let (b, t) = (d.strip.width_mm, d.strip.thickness_mm.max(0.02));
-    for (radius, color) in [
-        (d.mount_radius_mm, fg.gamma_multiply(0.35)),
-        (d.mount_radius_mm + crest, C_ACT),
-    ] {
-        for i in 0..n {
-            let th = std::f64::consts::TAU * f64::from(i) / f64::from(n);
-            let (s, co) = th.sin_cos();
-            // Corners of a b x t rectangle, tangential width, radial thickness.
-            let pts: Vec<Pos2> = [
-                (-0.5 * b, -0.5 * t),
-                (0.5 * b, -0.5 * t),
-                (0.5 * b, 0.5 * t),
-                (-0.5 * b, 0.5 * t),
-            ]
-            .iter()
-            .map(|&(u, v)| {
-                let rr = radius + v;
-                scale.p(rr * co - u * s, rr * s + u * co)
-            })
-            .collect();
+    let crest = view.at_crest.iter().map(|(_, q)| (q, C_ACT));
+    for (quads, color) in std::iter::once((&view.at_plates, fg.gamma_multiply(0.35))).chain(crest) {
+        for q in quads {
+            let pts: Vec<Pos2> = q.iter().map(|p| scale.p(p[0], p[1])).collect();
             painter.add(egui::Shape::convex_polygon(pts, color, Stroke::NONE));
         }
     }
+    let (n, b) = (d.strip.count, d.strip.width_mm);
     painter.text(
         rect.center_bottom(),
         egui::Align2::CENTER_BOTTOM,
@@ -974,18 +913,6 @@ fn end_view(ui: &mut Ui, a: &Analysis, shape: &[[f64; 2]], size: Vec2) {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn grid_steps_follow_one_two_five() {
-        // The 1-2-5 series of round steps (common practice for chart axes).
-        assert_eq!(nice_step(0.7), (1.0, 1.0));
-        assert_eq!(nice_step(1.0), (1.0, 1.0));
-        assert_eq!(nice_step(1.2), (2.0, 2.0));
-        assert_eq!(nice_step(3.0), (5.0, 5.0));
-        assert_eq!(nice_step(6.0), (10.0, 1.0));
-        let (s, lead) = nice_step(0.042);
-        assert!((s - 0.05).abs() < 1e-15 && lead == 5.0, "{s} {lead}");
-    }
 
     #[test]
     fn tick_labels_carry_the_decimals_of_their_step() {

@@ -64,12 +64,6 @@ pub fn newton(v: f64) -> String {
     format!("{} N", sig(v, 4))
 }
 
-/// An optional force.
-pub fn newton_opt(v: Option<f64>) -> String {
-    v.filter(|v| v.is_finite())
-        .map_or_else(|| NONE.to_string(), newton)
-}
-
 /// Stress in MPa, 1 decimal.
 pub fn mpa(v: f64) -> String {
     format!("{} MPa", fixed(v, 1))

@@ -6,7 +6,7 @@
 //! references and the safety cautions.
 //!
 //! The sheet is laid out in two steps: sections are built as measured blocks
-//! (`sections`), then placed on pages (`paginate`), breaking to a new page before a
+//! (`sections`, with the plots in `plots` and the drawings in `views`), then placed on pages (`paginate`), breaking to a new page before a
 //! section that would not fit. [`layout`] returns where everything landed, so tests can
 //! hold every section and every text line inside the printable area; [`render`] writes
 //! the same layout to PDF with krilla, the text real and selectable, the two embedded
@@ -18,7 +18,9 @@ mod font;
 mod format;
 mod operating;
 mod plot;
+mod plots;
 mod sections;
+mod views;
 
 use krilla::Document;
 use krilla::metadata::Metadata;

@@ -6,6 +6,7 @@
 use super::draw::{Block, GREY, INK, LIGHT, Rgb};
 use super::font::Weight;
 use super::format::fixed;
+use crate::ticks::ticks;
 
 /// How a series is stroked.
 #[derive(Clone, Debug)]
@@ -92,38 +93,6 @@ pub struct Plot {
     pub y_range: (f64, f64),
     /// What to draw, back to front.
     pub items: Vec<Item>,
-}
-
-/// Round tick positions covering `[lo, hi]`, about `target` of them, and the number of
-/// decimals their labels need.
-pub fn ticks(lo: f64, hi: f64, target: usize) -> (Vec<f64>, usize) {
-    let span = hi - lo;
-    if !(span.is_finite() && span > 0.0) {
-        return (vec![lo], 3);
-    }
-    // The largest step of 1, 2 or 5 times a power of ten that still gives at least
-    // `target - 1` intervals.
-    let want = (target.max(2) - 1) as f64;
-    let mag = 10f64.powf((span / want).log10().floor());
-    let step = [5.0, 2.0, 1.0]
-        .iter()
-        .map(|f| f * mag)
-        .find(|s| span / s >= want)
-        .unwrap_or(mag);
-    let first = (lo / step).ceil() * step;
-    let mut out = Vec::new();
-    let mut i = 0.0;
-    while first + i * step <= hi + 1e-9 * span {
-        out.push(first + i * step);
-        i += 1.0;
-    }
-    let decimals = (0..6)
-        .find(|&d| {
-            let s = step * 10f64.powi(d);
-            (s - s.round()).abs() < 1e-6 * s.max(1.0)
-        })
-        .unwrap_or(6) as usize;
-    (out, decimals)
 }
 
 /// Widens a range that is empty or inverted so it can be drawn.
@@ -311,23 +280,5 @@ impl Plot {
         }
         b.height = ly + 6.0;
         b
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn ticks_are_round_and_cover_the_range() {
-        let (t, d) = ticks(69.1, 70.9, 6);
-        assert_eq!(d, 1);
-        assert!(t.first().is_some_and(|v| *v >= 69.1) && t.last().is_some_and(|v| *v <= 70.9));
-        assert!(t.len() >= 4 && t.len() <= 10, "{t:?}");
-        for v in &t {
-            assert!(((v * 10.0).round() - v * 10.0).abs() < 1e-6);
-        }
-        let (t, d) = ticks(0.0, 1000.0, 5);
-        assert_eq!((t.len(), d), (6, 0));
     }
 }

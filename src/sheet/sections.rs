@@ -3,33 +3,31 @@
 //! checks, the two plots, the side and end views, the model's assumptions and limits,
 //! references and safety cautions. Numbers go through `format` only.
 
-use std::f64::consts::PI;
-
 use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, wrap};
 use super::font::Weight;
 use super::format::{self as f, NONE};
-use super::plot::{Item, Pen, Plot};
-use super::{Section, SheetMeta, fit, fit_start};
+use super::{Section, SheetMeta, fit, fit_start, plots, views};
 use crate::analysis::{Analysis, BoreCase, BoreResult};
 use crate::checks::{self, Check};
 use crate::design::{Actuator, MaterialChoice, Stiffness};
 use crate::elastica::Phase;
+use crate::quantities::{STATE_FIELDS, UsableStroke};
 use crate::segment::SegmentState;
 
 /// Replaced by the page count once pagination knows it.
 pub const PAGE_COUNT_SLOT: &str = "\u{1}N\u{1}";
 
-const BODY: f32 = 8.5;
-const SMALL: f32 = 7.5;
+pub(super) const BODY: f32 = 8.5;
+pub(super) const SMALL: f32 = 7.5;
 const LEAD: f32 = 1.25;
 
-const BLUE: Rgb = (20, 70, 170);
-const ORANGE: Rgb = (210, 110, 0);
-const PURPLE: Rgb = (120, 40, 140);
-const BAND: Rgb = (215, 228, 245);
-const SHADE: Rgb = (238, 238, 238);
+pub(super) const BLUE: Rgb = (20, 70, 170);
+pub(super) const ORANGE: Rgb = (210, 110, 0);
+pub(super) const PURPLE: Rgb = (120, 40, 140);
+pub(super) const BAND: Rgb = (215, 228, 245);
+pub(super) const SHADE: Rgb = (238, 238, 238);
 const WARN: Rgb = (255, 236, 200);
-const NO_FIT: Rgb = (248, 215, 215);
+pub(super) const NO_FIT: Rgb = (248, 215, 215);
 
 /// Builds every section.
 pub fn build(a: &Analysis, meta: &SheetMeta, width: f32) -> Vec<Section> {
@@ -40,9 +38,9 @@ pub fn build(a: &Analysis, meta: &SheetMeta, width: f32) -> Vec<Section> {
         check_table(a, width),
         material(a, width),
         bore_results(a, width),
-        window_plot(a, width),
-        views(a, meta, width),
-        curve_plots(a, width),
+        plots::window_plot(a, width),
+        views::views(a, meta, width),
+        plots::curve_plots(a, width),
     ];
     out.extend(text_sections(width));
     out
@@ -56,7 +54,7 @@ fn heading(title: &str, width: f32) -> Block {
     b
 }
 
-fn section(title: &str, width: f32, body: Vec<Block>) -> Section {
+pub(super) fn section(title: &str, width: f32, body: Vec<Block>) -> Section {
     let mut blocks = body;
     if let Some(first) = blocks.first_mut() {
         let h = heading(title, width);
@@ -269,12 +267,8 @@ fn title_block(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     }
 }
 
-fn state_of(r: &BoreResult) -> Option<&SegmentState> {
+pub(super) fn state_of(r: &BoreResult) -> Option<&SegmentState> {
     r.operating.as_ref().ok()
-}
-
-fn bore(a: &Analysis, case: BoreCase) -> Option<&BoreResult> {
-    a.bores.iter().find(|r| r.case == case)
 }
 
 fn summary(a: &Analysis, width: f32) -> Section {
@@ -369,7 +363,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
         ) + 2.0;
     }
     let d = &a.segment.design;
-    if let Some(s) = bore(a, BoreCase::Nominal).and_then(state_of)
+    if let Some(s) = a.bore(BoreCase::Nominal).and_then(state_of)
         && let (Some(h), Some(p)) = (s.holding_force_n, s.actuator_force_n)
     {
         let req = a.segment.required_holding_force_n();
@@ -396,8 +390,29 @@ fn summary(a: &Analysis, width: f32) -> Section {
             ),
         );
     }
+    if let Some(u) = a.usable_stroke() {
+        let usable = u.range_mm().is_some();
+        y = b.paragraph(
+            0.0,
+            y + 2.0,
+            width,
+            BODY,
+            if usable {
+                Weight::Regular
+            } else {
+                Weight::Bold
+            },
+            if usable { INK } else { RED },
+            &usable_text(&u),
+        );
+    }
     b.height = y - 4.0;
     section("Result", width, vec![b])
+}
+
+/// The usable stroke range in a sentence, with the sheet's number style.
+pub(super) fn usable_text(u: &UsableStroke) -> String {
+    cap(&format!("{}.", u.describe()))
 }
 
 /// A check's margin as [`Check::margin_text`] writes it, with the sheet's true minus sign.
@@ -671,19 +686,12 @@ fn material(a: &Analysis, width: f32) -> Section {
 
 fn bore_results(a: &Analysis, width: f32) -> Section {
     let seg = &a.segment;
-    let cases: Vec<&BoreResult> = BoreCase::ALL.iter().filter_map(|c| bore(a, *c)).collect();
+    let cases: Vec<&BoreResult> = BoreCase::ALL.iter().filter_map(|c| a.bore(*c)).collect();
     let mut rows = Vec::new();
     let per = |name: &str, get: &dyn Fn(&BoreResult) -> String| {
         let mut cells = vec![name.to_string()];
         cells.extend(cases.iter().map(|r| get(r)));
         row(cells)
-    };
-    let st = |get: fn(&SegmentState) -> String| {
-        move |r: &BoreResult| match &r.operating {
-            Ok(s) if s.phase.has_state() => get(s),
-            Ok(s) => s.phase.name().replace('-', " "),
-            Err(_) => "no state".to_string(),
-        }
     };
     let gap = |r: &BoreResult| f::mm(seg.gap_mm(r.bore_mm));
     rows.push(per("Bore diameter", &|r| f::mm(r.bore_mm)));
@@ -720,80 +728,50 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
             }));
         }
     }
-    rows.push(per("Phase", &|r| match &r.operating {
+    let mut phase = per("Phase", &|r| match &r.operating {
         Ok(s) => s.phase.to_string(),
         Err(_) => "no state".to_string(),
-    }));
-    rows.push(per(
-        "Contact force per strip F",
-        &st(|s| f::newton_opt(s.contact_force_per_strip_n)),
-    ));
-    rows.push(per(
-        "Radial force on the wall N F",
-        &st(|s| f::newton_opt(s.radial_force_n)),
-    ));
-    rows.push(per(
-        "Holding force μ N F",
-        &st(|s| f::newton_opt(s.holding_force_n)),
-    ));
-    rows.push(per(
-        "Axial force per strip P",
-        &st(|s| f::newton_opt(s.axial_force_per_strip_n)),
-    ));
-    rows.push(per(
-        "Actuator pull N P",
-        &st(|s| f::newton_opt(s.actuator_force_n)),
-    ));
-    if !matches!(seg.design.actuator, Actuator::Direct { .. }) {
-        rows.push(per(
-            "Actuator position",
-            &st(|s| {
-                s.actuator.map_or(NONE.to_string(), |r| {
-                    f::in_unit(r.position, r.position_unit)
-                })
-            }),
-        ));
-        rows.push(per(
-            "Actuator torque",
-            &st(|s| {
-                s.actuator
-                    .map_or(NONE.to_string(), |r| f::in_unit(r.effort, r.effort_unit))
-            }),
-        ));
-    }
-    rows.push(per(
-        "Diameter over the strips",
-        &st(|s| f::mm_opt(s.outer_diameter_mm)),
-    ));
-    rows.push(per(
-        "Flat run on the wall",
-        &st(|s| f::mm_opt(s.flat_length_mm)),
-    ));
-    rows.push(per(
-        "Peak stress σ",
-        &st(|s| s.max_stress_mpa.map_or(NONE.to_string(), f::mpa)),
-    ));
-    rows.push(per(
-        "Static factor of safety",
-        &st(|s| s.static_safety_factor.map_or(NONE.to_string(), f::factor)),
-    ));
-    rows.push(per(
-        "Fatigue factor of safety (Goodman)",
-        &st(|s| s.fatigue_safety_factor.map_or(NONE.to_string(), f::factor)),
-    ));
-    rows.push(per(
-        "Stored strain energy, all strips",
-        &st(|s| {
-            s.strain_energy_j
-                .map_or(NONE.to_string(), |e| format!("{} J", f::sig(e, 3)))
-        }),
-    ));
-    for r in &mut rows {
-        r.colors = r
-            .cells
-            .iter()
-            .map(|c| (c == "no state" || c == "beyond limit").then_some(RED))
+    });
+    phase.colors = std::iter::once(None)
+        .chain(cases.iter().map(|c| c.in_model().is_none().then_some(RED)))
+        .collect();
+    rows.push(phase);
+    // A state quantity in each bore: its value, or in red why the model has none there.
+    let state_row = |name: &str, get: &dyn Fn(&SegmentState) -> String| {
+        let mut r = row(
+            std::iter::once(name.to_string()).chain(cases.iter().map(|c| match &c.operating {
+                Ok(s) if s.phase.has_state() => get(s),
+                Ok(s) => s.phase.name().replace('-', " "),
+                Err(_) => "no state".to_string(),
+            })),
+        );
+        r.colors = std::iter::once(None)
+            .chain(cases.iter().map(|c| c.in_model().is_none().then_some(RED)))
             .collect();
+        r
+    };
+    for field in &STATE_FIELDS {
+        let value = |s: &SegmentState| {
+            (field.get)(s).map_or(NONE.to_string(), |v| match field.unit {
+                "N" => f::newton(v),
+                "mm" => f::mm(v),
+                "MPa" => f::mpa(v),
+                "J" => format!("{} J", f::sig(v, 3)),
+                _ => f::factor(v),
+            })
+        };
+        rows.push(state_row(field.sheet_label, &value));
+    }
+    if !matches!(seg.design.actuator, Actuator::Direct { .. }) {
+        rows.push(state_row("Actuator position", &|s| {
+            s.actuator.map_or(NONE.to_string(), |r| {
+                f::in_unit(r.position, r.position_unit)
+            })
+        }));
+        rows.push(state_row("Actuator torque", &|s| {
+            s.actuator
+                .map_or(NONE.to_string(), |r| f::in_unit(r.effort, r.effort_unit))
+        }));
     }
     let lw = 0.37 * width;
     let vw = (width - lw) / 3.0;
@@ -814,14 +792,11 @@ fn bore_results(a: &Analysis, width: f32) -> Section {
     for r in &cases {
         match &r.operating {
             Ok(s) => {
-                let why = match seg.at_bore(r.bore_mm) {
-                    Ok(p) => p.limit_reason().describe().to_string(),
-                    Err(_) => s.limit_reason.to_string(),
-                };
                 notes.push(format!(
-                    "{} bore: the model stops at {} because the {why}.",
+                    "{} bore: the model stops at {} because the {}.",
                     cap(r.case.label()),
-                    f::mm(s.limit_stroke_mm)
+                    f::mm(s.limit_stroke_mm),
+                    s.limit_reason.describe()
                 ));
             }
             Err(e) => notes.push(format!("{} bore: no state. {e}.", cap(r.case.label()))),
@@ -940,690 +915,6 @@ fn check_table(a: &Analysis, width: f32) -> Section {
     }
     b.height = y - 6.0;
     section("Checks", width, vec![b])
-}
-
-fn finite_max(vals: impl IntoIterator<Item = f64>) -> f64 {
-    vals.into_iter()
-        .filter(|v| v.is_finite())
-        .fold(f64::NEG_INFINITY, f64::max)
-}
-
-fn window_plot(a: &Analysis, width: f32) -> Section {
-    let seg = &a.segment;
-    // Under force control the operating stroke is a curve across the bores.
-    let op_curve = super::operating::window_series(a);
-    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
-    let max_stroke = seg.max_stroke_mm();
-    let w = &a.window;
-    let series = |get: fn(&crate::segment::BoreRow) -> Option<f64>| {
-        w.iter().map(|r| (r.bore_mm, get(r))).collect::<Vec<_>>()
-    };
-    // The frame shows the curves and the operating stroke; a far-away actuator maximum or
-    // model limit is named in the legend instead of squeezing the curves flat.
-    let shown = finite_max(
-        w.iter()
-            .flat_map(|r| {
-                [
-                    r.first_contact_stroke_mm,
-                    r.holding_stroke_mm,
-                    r.stress_limit_stroke_mm,
-                    r.line_contact_stroke_mm,
-                ]
-            })
-            .flatten()
-            .chain([op])
-            .chain(op_curve.iter().filter_map(|p| p.1)),
-    );
-    let limit_top = finite_max(w.iter().filter_map(|r| r.limit_stroke_mm));
-    let shown = if limit_top <= 1.5 * shown {
-        shown.max(limit_top)
-    } else {
-        shown
-    };
-    // Through a compliant drive the maximum is of travel, drawn as the stroke reaching it.
-    let travel_curve = &a.travel_limit_window;
-    let max_level = if travel_curve.is_empty() {
-        max_stroke
-    } else {
-        finite_max(travel_curve.iter().filter_map(|p| p.1))
-    };
-    let shown = if max_level <= 1.5 * shown {
-        shown.max(max_level)
-    } else {
-        shown
-    };
-    let ymax = if shown.is_finite() && shown > 0.0 {
-        1.15 * shown
-    } else {
-        1.0
-    };
-    let no_fit = seg.bore_for_gap_mm(0.0);
-    let above = |v: f64| if v > ymax { " (above the frame)" } else { "" };
-    let plot = Plot {
-        title: format!(
-            "Strokes at which each event happens, {} bores across the window",
-            a.window.len()
-        ),
-        x_label: "bore diameter (mm)".to_string(),
-        y_label: "stroke (mm)".to_string(),
-        x_range: a.window_mm,
-        y_range: (0.0, ymax),
-        items: vec![
-            Item::Band {
-                label: if no_fit > a.window_mm.0 {
-                    format!(
-                        "relaxed strips touch the wall: no state below {}",
-                        f::mm(no_fit)
-                    )
-                } else {
-                    String::new()
-                },
-                color: NO_FIT,
-                x0: a.window_mm.0,
-                x1: no_fit,
-            },
-            Item::Band {
-                label: format!(
-                    "bore tolerance {} to {}",
-                    f::mm(seg.bore_smallest_mm),
-                    f::mm(seg.bore_largest_mm)
-                ),
-                color: BAND,
-                x0: seg.bore_smallest_mm,
-                x1: seg.bore_largest_mm,
-            },
-            Item::VLine {
-                label: String::new(),
-                pen: Pen::solid(BLUE, 0.5),
-                x: seg.bore_smallest_mm,
-            },
-            Item::VLine {
-                label: String::new(),
-                pen: Pen::solid(BLUE, 0.5),
-                x: seg.bore_largest_mm,
-            },
-            Item::VLine {
-                label: String::new(),
-                pen: Pen::dashed(GREY, 0.5, &[1.0, 2.0]),
-                x: seg.bore_nominal_mm,
-            },
-            if travel_curve.is_empty() {
-                Item::HLine {
-                    label: format!(
-                        "actuator maximum {}{}",
-                        f::mm(max_stroke),
-                        above(max_stroke)
-                    ),
-                    pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
-                    y: max_stroke,
-                }
-            } else {
-                Item::series(
-                    format!(
-                        "actuator maximum travel {} (stroke reaching it){}",
-                        f::mm(max_stroke),
-                        above(max_level)
-                    ),
-                    Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
-                    travel_curve.clone(),
-                )
-            },
-            if op_curve.is_empty() {
-                Item::HLine {
-                    label: format!("operating stroke {}", f::mm(op)),
-                    pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-                    y: op,
-                }
-            } else {
-                Item::series(
-                    "operating stroke (set pull reached)",
-                    Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-                    op_curve,
-                )
-            },
-            Item::series(
-                "first contact",
-                Pen::solid(INK, 1.2),
-                series(|r| r.first_contact_stroke_mm),
-            ),
-            Item::series(
-                "holding (required x SF)",
-                Pen::solid(GREEN, 1.2),
-                series(|r| r.holding_stroke_mm),
-            ),
-            Item::series(
-                "stress limit (factor 1)",
-                Pen::solid(RED, 1.2),
-                series(|r| r.stress_limit_stroke_mm),
-            ),
-            Item::series(
-                "line-contact onset",
-                Pen::dashed(BLUE, 1.1, &[4.0, 1.5]),
-                series(|r| r.line_contact_stroke_mm),
-            ),
-            Item::series(
-                format!("model limit{}", above(limit_top)),
-                Pen::dashed(PURPLE, 1.1, &[6.0, 1.5, 1.5, 1.5]),
-                series(|r| r.limit_stroke_mm),
-            ),
-        ],
-    };
-    let mut b = plot.layout(width, 190.0);
-    let y = b.paragraph(
-        0.0,
-        b.height + 6.0,
-        width,
-        SMALL,
-        Weight::Regular,
-        GREY,
-        "A workable stroke lies above the holding curve and below the stress limit, the model limit and the actuator maximum, across the whole shaded tolerance band. Curves end where the quantity does not exist (bore out of reach or relaxed strips do not fit). Lines above the frame are clipped.",
-    );
-    b.height = y - 6.0;
-    section("Stroke against bore", width, vec![b])
-}
-
-/// The operating stroke across a plot against stroke.
-fn stroke_marker(op: f64) -> Item {
-    Item::VLine {
-        label: format!("operating stroke {}", f::mm(op)),
-        pen: Pen::dashed(INK, 0.9, &[2.0, 2.0]),
-        x: op,
-    }
-}
-
-fn curve_plots(a: &Analysis, width: f32) -> Section {
-    let seg = &a.segment;
-    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
-    let c = &a.curve;
-    if c.is_empty() {
-        let mut b = Block::new();
-        let y = b.paragraph(
-            0.0,
-            9.0,
-            width,
-            BODY,
-            Weight::Bold,
-            RED,
-            &format!(
-                "No force-stroke curve: the relaxed segment does not fit the nominal bore {} (the model has no state there).",
-                f::mm(seg.bore_nominal_mm)
-            ),
-        );
-        b.height = y;
-        return section(
-            "Force and stress against stroke at the nominal bore",
-            width,
-            vec![b],
-        );
-    }
-    let pts = |get: fn(&SegmentState) -> Option<f64>| {
-        c.iter().map(|s| (s.stroke_mm, get(s))).collect::<Vec<_>>()
-    };
-    let x_end = c.last().map_or(1.0, |s| s.stroke_mm).max(op * 1.05);
-    let required = a.segment.required_holding_force_n();
-    let fmax = finite_max(
-        c.iter()
-            .flat_map(|s| [s.radial_force_n, s.actuator_force_n, s.holding_force_n])
-            .flatten()
-            .chain([required]),
-    );
-    let fmax = if fmax.is_finite() && fmax > 0.0 {
-        1.1 * fmax
-    } else {
-        1.0
-    };
-    let pull = seg.max_pull_n();
-    let pull_label = if pull <= fmax {
-        format!("actuator maximum pull {}", f::newton(pull))
-    } else {
-        format!(
-            "actuator maximum pull {} (above the frame)",
-            f::newton(pull)
-        )
-    };
-    let first = a.curve.first().and_then(|s| s.first_contact_stroke_mm);
-    let mut items = vec![
-        match a.nominal_operating_stroke_mm() {
-            Some(op) => stroke_marker(op),
-            None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
-        },
-        Item::HLine {
-            label: format!("required holding {}", f::newton(required)),
-            pen: Pen::dashed(GREEN, 1.0, &[5.0, 2.5]),
-            y: required,
-        },
-        Item::HLine {
-            label: pull_label,
-            pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
-            y: pull,
-        },
-        Item::series(
-            "actuator pull N P",
-            Pen::solid(ORANGE, 1.2),
-            pts(|s| s.actuator_force_n),
-        ),
-        Item::series(
-            "radial force N F",
-            Pen::solid(BLUE, 1.2),
-            pts(|s| s.radial_force_n),
-        ),
-        Item::series(
-            "holding force μ N F",
-            Pen::solid(GREEN, 1.2),
-            pts(|s| s.holding_force_n),
-        ),
-        Item::series(
-            "contact force per strip F",
-            Pen::dashed(BLUE, 0.9, &[3.0, 1.5]),
-            pts(|s| s.contact_force_per_strip_n),
-        ),
-    ];
-    if let Some(fc) = first {
-        items.insert(
-            1,
-            Item::VLine {
-                label: format!("first contact {}", f::mm(fc)),
-                pen: Pen::dashed(GREY, 0.7, &[1.0, 1.5]),
-                x: fc,
-            },
-        );
-    }
-    if let Some(lim) = bore(a, BoreCase::Nominal).and_then(|r| r.row.limit_stroke_mm) {
-        let beyond = if lim > x_end {
-            " (beyond the frame)"
-        } else {
-            ""
-        };
-        items.insert(
-            1,
-            Item::VLine {
-                label: format!("model limit {}{beyond}", f::mm(lim)),
-                pen: Pen::dashed(PURPLE, 1.0, &[6.0, 1.5, 1.5, 1.5]),
-                x: lim,
-            },
-        );
-    }
-    let forces = Plot {
-        title: format!(
-            "Forces against stroke, nominal bore {}",
-            f::mm(seg.bore_nominal_mm)
-        ),
-        x_label: "stroke (mm)".to_string(),
-        y_label: "force (N)".to_string(),
-        x_range: (0.0, x_end),
-        y_range: (0.0, fmax),
-        items,
-    };
-    let smax = finite_max(
-        c.iter()
-            .filter_map(|s| s.max_stress_mpa)
-            .chain([seg.static_allowable_mpa, seg.fatigue_allowable_mpa]),
-    );
-    let stress = Plot {
-        title: format!(
-            "Peak stress against stroke, nominal bore {}",
-            f::mm(seg.bore_nominal_mm)
-        ),
-        x_label: "stroke (mm)".to_string(),
-        y_label: "stress (MPa)".to_string(),
-        x_range: (0.0, x_end),
-        y_range: (0.0, if smax.is_finite() { 1.1 * smax } else { 1.0 }),
-        items: vec![
-            match a.nominal_operating_stroke_mm() {
-                Some(op) => stroke_marker(op),
-                None => Item::series("", Pen::solid(INK, 0.0), Vec::new()),
-            },
-            Item::HLine {
-                label: format!(
-                    "static allowable 0.75 Su {}",
-                    f::mpa(seg.static_allowable_mpa)
-                ),
-                pen: Pen::dashed(RED, 1.0, &[5.0, 2.5]),
-                y: seg.static_allowable_mpa,
-            },
-            Item::HLine {
-                label: format!(
-                    "fatigue allowable (Goodman) {}",
-                    f::mpa(seg.fatigue_allowable_mpa)
-                ),
-                pen: Pen::dashed(PURPLE, 1.0, &[2.0, 1.5]),
-                y: seg.fatigue_allowable_mpa,
-            },
-            Item::series(
-                "peak stress σ",
-                Pen::solid(INK, 1.2),
-                pts(|s| s.max_stress_mpa),
-            ),
-        ],
-    };
-    let mut b1 = forces.layout(width, 170.0);
-    b1.height += 8.0;
-    let mut b2 = stress.layout(width, 120.0);
-    let end = c.last().map_or(0.0, |s| s.stroke_mm);
-    let y = b2.paragraph(
-        0.0,
-        b2.height + 6.0,
-        width,
-        SMALL,
-        Weight::Regular,
-        GREY,
-        &format!(
-            "Curves run from 0 to {} (the smaller of the model limit and {}). Holding force is static friction times the radial force; it enters no shape calculation.",
-            f::mm(end),
-            if a.travel_limit_window.is_empty() {
-                "the actuator maximum stroke"
-            } else {
-                "the stroke at which the actuator travel, stroke + pull / drive stiffness, reaches its maximum"
-            }
-        ),
-    );
-    b2.height = y - 6.0;
-    section(
-        "Force and stress against stroke at the nominal bore",
-        width,
-        vec![b1, b2],
-    )
-}
-
-/// Drawing scales offered, as (paper mm per model mm, label).
-const SCALES: [(f32, &str); 12] = [
-    (5.0, "5:1"),
-    (2.0, "2:1"),
-    (1.0, "1:1"),
-    (0.5, "1:2"),
-    (0.4, "1:2.5"),
-    (0.2, "1:5"),
-    (0.1, "1:10"),
-    (0.05, "1:20"),
-    (0.02, "1:50"),
-    (0.01, "1:100"),
-    (0.005, "1:200"),
-    (0.002, "1:500"),
-];
-const PT_PER_MM: f32 = 72.0 / 25.4;
-
-fn circle(cx: f32, cy: f32, r: f32) -> Vec<[f32; 2]> {
-    (0..=96)
-        .map(|i| {
-            let t = 2.0 * std::f32::consts::PI * i as f32 / 96.0;
-            [cx + r * t.cos(), cy + r * t.sin()]
-        })
-        .collect()
-}
-
-fn views(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
-    let seg = &a.segment;
-    let d = &seg.design;
-    let s = &d.strip;
-    let op = a.nominal_operating_stroke_mm().unwrap_or(0.0);
-    let bore_d = seg.bore_nominal_mm as f32;
-    let big_r = 0.5 * bore_d;
-    let l = s.free_length_mm as f32;
-    let plate_t = (0.04 * l).max(1.0);
-    // The walls and the axis run past the plates by this much at either end.
-    let overhang = 0.12 * l;
-    let side_w_mm = l + 2.0 * plate_t + 0.25 * l;
-    let view_max_pt: f32 = 230.0;
-    let side_box = 0.6 * width;
-    let end_box = width - side_box - 12.0;
-    // Each view takes the largest standard scale that fits its box.
-    let pick = |fits: &dyn Fn(f32) -> bool| {
-        SCALES
-            .iter()
-            .map(|(r, lab)| (r * PT_PER_MM, *lab))
-            .find(|(sp, _)| fits(*sp))
-            .unwrap_or((0.002 * PT_PER_MM, "1:500"))
-    };
-    let (scale_pt, scale_label) =
-        pick(&|sp| side_w_mm * sp <= side_box && 1.15 * bore_d * sp <= view_max_pt);
-    let (end_scale_pt, end_scale_label) =
-        pick(&|sp| 1.15 * bore_d * sp <= view_max_pt.min(end_box));
-    let view_h_pt = 1.15 * bore_d * scale_pt.max(end_scale_pt) + 10.0;
-    let mut b = Block::new();
-    let top = 14.0;
-    let cy = top + 0.5 * view_h_pt;
-    b.text(
-        0.0,
-        9.0,
-        9.0,
-        Weight::Bold,
-        match super::operating::unreached_note(a) {
-            None => format!(
-                "Side view, section through two strips, at stroke {}, scale {scale_label}",
-                f::mm(op)
-            ),
-            Some(_) => format!(
-                "Side view, section through two strips, relaxed (the set pull is never reached in the nominal bore), scale {scale_label}"
-            ),
-        },
-    );
-    // Side view: x along the axis from the first end plate; the drawing, from the left
-    // overhang to the right one, is centred in its box.
-    let x0 = 0.5 * (side_box - side_w_mm * scale_pt) + (0.125 * l + plate_t) * scale_pt;
-    let px = |x: f32| x0 + x * scale_pt;
-    let py = |r: f32| cy - r * scale_pt;
-    let chord = (l - op as f32).max(0.0);
-    let ext = (overhang, chord + overhang);
-    // Axis (dash-dot), bore walls with hatching on the wall side.
-    b.polyline(
-        vec![[px(-ext.0 - plate_t), cy], [px(ext.1 + plate_t), cy]],
-        0.5,
-        GREY,
-        Some(vec![8.0, 2.0, 1.5, 2.0]),
-    );
-    for sign in [1.0f32, -1.0] {
-        let yw = py(sign * big_r);
-        b.line(
-            [px(-ext.0 - plate_t), yw],
-            [px(ext.1 + plate_t), yw],
-            1.0,
-            INK,
-        );
-        let mut x = px(-ext.0 - plate_t) + 3.0;
-        while x < px(ext.1 + plate_t) - 3.0 {
-            b.line([x, yw - sign * 0.0], [x + 3.0, yw - sign * 4.0], 0.4, GREY);
-            x += 6.0;
-        }
-    }
-    let shape = &a.shape_mm;
-    let plate_r = 0.5 * d.end_plate_diameter_mm as f32;
-    // Without a state the strips are drawn relaxed (straight at the mount radius, plates
-    // at the free length), so the reader still sees the interference.
-    let rm = d.mount_radius_mm as f32;
-    let relaxed = [[0.0, f64::from(rm)], [f64::from(l), f64::from(rm)]];
-    let (shape, strip_color): (&[[f64; 2]], Rgb) = if shape.is_empty() {
-        (&relaxed, GREY)
-    } else {
-        (shape.as_slice(), BLUE)
-    };
-    {
-        let chord = shape.last().map_or(chord, |p| p[0] as f32);
-        for xp in [-plate_t, chord] {
-            let pts = vec![
-                [px(xp), py(plate_r)],
-                [px(xp + plate_t), py(plate_r)],
-                [px(xp + plate_t), py(-plate_r)],
-                [px(xp), py(-plate_r)],
-            ];
-            b.marks.push(super::draw::Mark::Area {
-                points: pts.clone(),
-                color: SHADE,
-            });
-            b.marks.push(super::draw::Mark::Line {
-                points: pts,
-                width: 0.6,
-                color: INK,
-                dash: None,
-                closed: true,
-            });
-        }
-        let rmax = shape.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max);
-        let tw = (s.thickness_mm as f32 * scale_pt).max(0.9);
-        for sign in [1.0f32, -1.0] {
-            let pts: Vec<[f32; 2]> = shape
-                .iter()
-                .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
-                .collect();
-            b.polyline(pts, tw, strip_color, None);
-            // The flat run, where the strip lies on the wall.
-            let flat: Vec<[f32; 2]> = shape
-                .iter()
-                .filter(|p| p[1] >= rmax - 1e-6 * s.free_length_mm)
-                .map(|p| [px(p[0] as f32), py(sign * p[1] as f32)])
-                .collect();
-            if flat.len() >= 2 && !a.shape_mm.is_empty() {
-                b.polyline(flat, tw + 1.6, RED, None);
-            }
-        }
-        // Relaxed strip, for comparison.
-        b.polyline(
-            vec![[px(0.0), py(rm)], [px(l), py(rm)]],
-            0.5,
-            GREY,
-            Some(vec![2.0, 2.0]),
-        );
-    }
-    let st = bore(a, BoreCase::Nominal).and_then(state_of);
-    let mut ny = top + view_h_pt + 12.0;
-    let mut note = |b: &mut Block, t: String| {
-        ny = b.paragraph(0.0, ny, side_box, SMALL, Weight::Regular, INK, &t);
-    };
-    note(
-        &mut b,
-        format!(
-            "Bore {} (walls hatched), chord between plates L − δ = {}, free length L = {}.",
-            f::mm(bore_d as f64),
-            f::mm(l as f64 - op),
-            f::mm(l as f64)
-        ),
-    );
-    if a.shape_mm.is_empty() {
-        ny = b.paragraph(
-            0.0,
-            ny,
-            side_box,
-            SMALL,
-            Weight::Bold,
-            RED,
-            "No strip shape: the nominal bore has no model state at the operating stroke (see Results). Strips drawn relaxed.",
-        );
-    } else if let Some(s) = st {
-        note(
-            &mut b,
-            format!(
-                "Blue: strip centreline ({}); red: flat run on the wall {}; grey dashed: relaxed strip. End-plate thickness drawn schematically.",
-                s.phase,
-                f::mm_opt(s.flat_length_mm)
-            ),
-        );
-    }
-    // End view.
-    let ex = side_box + 12.0 + 0.5 * end_box;
-    b.text(
-        side_box + 12.0,
-        9.0,
-        9.0,
-        Weight::Bold,
-        format!("End view, scale {end_scale_label}"),
-    );
-    b.polyline(circle(ex, cy, big_r * end_scale_pt), 1.0, INK, None);
-    if plate_r > 0.0 {
-        b.polyline(
-            circle(ex, cy, plate_r * end_scale_pt),
-            0.5,
-            GREY,
-            Some(vec![3.0, 2.0]),
-        );
-    }
-    b.line(
-        [ex - (big_r + 3.0) * end_scale_pt, cy],
-        [ex + (big_r + 3.0) * end_scale_pt, cy],
-        0.4,
-        GREY,
-    );
-    b.line(
-        [ex, cy - (big_r + 3.0) * end_scale_pt],
-        [ex, cy + (big_r + 3.0) * end_scale_pt],
-        0.4,
-        GREY,
-    );
-    let n = s.count as usize;
-    let half_b = 0.5 * s.width_mm as f32;
-    let t = s.thickness_mm as f32;
-    let crest = st.and_then(|s| s.crest_height_mm).unwrap_or(0.0) as f32;
-    for i in 0..n {
-        let th = 2.0 * PI as f32 * i as f32 / n as f32 - 0.5 * PI as f32;
-        let (sn, cs) = th.sin_cos();
-        let at_crest = st.and_then(|s| s.crest_height_mm).is_some();
-        let rings = [
-            (d.mount_radius_mm as f32, (90, 90, 90), 0.8f32),
-            (d.mount_radius_mm as f32 + crest, BLUE, 1.6),
-        ];
-        for &(rc, color, w) in &rings[..if at_crest { 2 } else { 1 }] {
-            let corner = |u: f32, v: f32| {
-                [
-                    ex + (rc + v) * end_scale_pt * cs - u * end_scale_pt * sn,
-                    cy + (rc + v) * end_scale_pt * sn + u * end_scale_pt * cs,
-                ]
-            };
-            let pts = vec![
-                corner(-half_b, -0.5 * t),
-                corner(half_b, -0.5 * t),
-                corner(half_b, 0.5 * t),
-                corner(-half_b, 0.5 * t),
-            ];
-            b.marks.push(super::draw::Mark::Line {
-                points: pts,
-                width: w.max(t * end_scale_pt),
-                color,
-                dash: None,
-                closed: true,
-            });
-        }
-    }
-    let mut ey = top + view_h_pt + 12.0;
-    for line in [
-        format!(
-            "{n} strips, {} x {}, at r_m = {}.",
-            f::mm(s.width_mm),
-            f::mm(s.thickness_mm),
-            f::mm(d.mount_radius_mm)
-        ),
-        if st.is_some_and(|s| s.crest_height_mm.is_some()) {
-            format!(
-                "Grey: at the plates; blue: at the crest (+{}).",
-                f::mm(crest as f64)
-            )
-        } else {
-            "Strips drawn at the plates only: no state at the operating stroke.".to_string()
-        },
-        format!(
-            "Dashed circle: end plate {}.",
-            f::mm(d.end_plate_diameter_mm)
-        ),
-    ] {
-        ey = b.paragraph(
-            side_box + 12.0,
-            ey,
-            end_box,
-            SMALL,
-            Weight::Regular,
-            INK,
-            &line,
-        );
-    }
-    let y = ny.max(ey);
-    let y = b.paragraph(
-        0.0,
-        y + 2.0,
-        width,
-        SMALL,
-        Weight::Bold,
-        INK,
-        &format!("Both views are to the scales stated when printed at 100 % on {} paper (do not scale from a resized print).", meta.paper.name()),
-    );
-    b.height = y - 6.0;
-    section("Side view and end view", width, vec![b])
 }
 
 const ASSUMPTIONS: [&str; 10] = [

@@ -2,7 +2,7 @@
 """Reference states and paths of the bowed-strip elastica, computed with mpmath.
 
 Independent high-precision solution of the model in the project's mechanics note
-(/work/shared/mechanics.md): inextensible Euler elastica, frictionless straight wall,
+(docs/mechanics.md): inextensible Euler elastica, frictionless straight wall,
 clamped or hinged ends, phases free / point contact / line contact, model limits of
 section 4. Everything is nondimensional: lengths / L, forces / (B / L^2),
 energy / (B / L), curvature * L.

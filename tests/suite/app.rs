@@ -528,3 +528,74 @@ fn a_save_report_goes_with_the_next_edit() {
         "a stale save report beside the unsaved mark"
     );
 }
+
+/// The fitting helper runs off the UI thread (the window keeps drawing frames while it
+/// searches), lands on a rounded value in the middle
+/// of the passing range with its margins shown, and applies it as one undoable edit.
+#[test]
+fn the_fit_helper_searches_off_the_ui_thread_and_applies_one_edit() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    let before = h.state().design().clone();
+    h.get_by_role_and_label(Role::Button, "Tools").click();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Fit one value…")
+        .click();
+    h.run();
+    h.get_by_role_and_label(Role::RadioButton, "in the middle of the passing range")
+        .click();
+    h.get_by_role_and_label(Role::TextInput, "Round to")
+        .set_text_value_accesskit("0.01");
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Solve").click();
+    // Frames go on while the worker searches; the answer arrives within a bounded number
+    // of them (a count, not a time).
+    let mut frames = 0;
+    while h
+        .query_by_label_contains("every check passes (they pass from")
+        .is_none()
+    {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(20));
+        frames += 1;
+        assert!(frames < 3000, "no answer from the fit");
+    }
+    assert!(h.query_by_label_contains("Margins at this value").is_some());
+    h.get_by_role_and_label(Role::Button, "Apply").click();
+    // The window resizes to its shorter content over a few frames.
+    h.run_steps(10);
+    let t = h.state().design().strip.thickness_mm;
+    assert_ne!(t, before.strip.thickness_mm);
+    assert!(
+        ((t / 0.01).round() * 0.01 - t).abs() < 1e-12,
+        "rounded to 0.01 mm: {t}"
+    );
+    let a = h
+        .state()
+        .analysis()
+        .unwrap_or_else(|| panic!("no analysis"));
+    assert!(
+        a.checks.iter().all(|c| c.pass),
+        "every check passes at {t} mm"
+    );
+    // One edit: one undo step restores the design.
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(10);
+    assert_eq!(*h.state().design(), before);
+}
+
+/// The verdict panel gives the usable stroke range as numbers.
+#[test]
+fn the_verdict_panel_gives_the_usable_stroke_range() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    let seg = bowgrip::segment::Segment::new(h.state().design()).unwrap_or_else(|e| panic!("{e}"));
+    let (from, to) = seg
+        .usable_stroke_across_tolerance()
+        .range_mm()
+        .unwrap_or_else(|| panic!("the demo has a usable range"));
+    let line = format!("Usable stroke {from:.3} to {to:.3} mm across the bore tolerance");
+    assert!(h.query_by_label_contains(&line).is_some(), "{line}");
+}

@@ -679,6 +679,60 @@ fn check_prints_geometry_cautions_for_strips_that_leave_the_plates() {
     assert!(!cautions.is_empty(), "{v}");
 }
 
+/// `check` gives the usable stroke range across the bore tolerance as
+/// numbers (text and an added JSON key), and says plainly when there is none. The range's
+/// ends are the solver's inverse queries at the band's ends, checked against the forward
+/// solution in `inverse_queries`; here the command line must print what the library gives
+/// and the checks must agree with it at the operating stroke.
+#[test]
+fn check_gives_the_usable_stroke_range() {
+    let tmp = Scratch::new();
+    let d = Design::default();
+    let seg = bowgrip::segment::Segment::new(&d).expect("segment");
+    let (from, to) = seg
+        .usable_stroke_across_tolerance()
+        .range_mm()
+        .expect("the demo has a usable range");
+    // The demo passes every check, so its operating stroke lies inside the range.
+    let op = d.operating_stroke_mm.expect("the demo sets a stroke");
+    assert!(from <= op && op <= to);
+    let good = tmp.design("good.ron", &d);
+    let r = run(&["check", s(&good), "--json"]);
+    let v = json(&r.stdout);
+    // serde_json's default float reading may be one unit in the last place off.
+    let close = |key: &str, want: f64| {
+        v["usable_stroke_mm"][key]
+            .as_f64()
+            .is_some_and(|x| (x - want).abs() <= 1e-12 * want)
+    };
+    assert!(close("from", from) && close("to", to), "{}", r.stdout);
+    let r = run(&["check", s(&good)]);
+    let line = format!(
+        "usable stroke {from:.3} to {to:.3} mm across the bore tolerance ({:.3} mm)",
+        to - from
+    );
+    assert!(r.stdout.contains(&line), "{line}\n{}", r.stdout);
+
+    // An operating stroke below the range fails the holding check, and still no range
+    // once the load is beyond the strips: `null` and a plain sentence.
+    let mut heavy = Design::default();
+    heavy.duty.holding_force_n = 5000.0;
+    let heavy = tmp.design("heavy.ron", &heavy);
+    let r = run(&["check", s(&heavy), "--json"]);
+    assert!(
+        json(&r.stdout)["usable_stroke_mm"].is_null(),
+        "{}",
+        r.stdout
+    );
+    let r = run(&["check", s(&heavy)]);
+    assert!(
+        r.stdout
+            .contains("no usable stroke across the bore tolerance: "),
+        "{}",
+        r.stdout
+    );
+}
+
 /// Issue 16, item 8: `--json` and `--csv` on every command that prints data. The JSON of
 /// `sweep` and `bores` is the CSV's table as objects keyed by its column names (the
 /// contract's columns; numbers as numbers, empty cells as null), and `check --csv` has

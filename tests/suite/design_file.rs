@@ -1,4 +1,4 @@
-//! The RON design file against the project's file-format issue and /work/shared/contract.md
+//! The RON design file against the project's file-format issue and docs/contract.md
 //! ("Bad input versus a failing design", "Files"): round trips, the issue's literal, pipe
 //! bores, every refusal with its message, and atomic saving.
 

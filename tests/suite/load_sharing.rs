@@ -566,7 +566,7 @@ fn with_sharing_fields() -> String {
 
 #[test]
 fn sharing_fields_read_write_and_stay_out_when_absent() {
-    // Contract (shared/contract.md, "New fields and outputs"): the fields are optional and
+    // Contract (docs/contract.md, "New fields and outputs"): the fields are optional and
     // a file without them gives exactly today's results; here, today's text on a rewrite.
     let plain = sample("drain-crawler-anchor-100mm.ron");
     assert_eq!(plain.duty.radial_load_n, 0.0);

@@ -97,6 +97,72 @@ fn goodman_factor_of_the_state() {
     assert!(rel(s.static_safety_factor.expect("state"), 0.75 * su / sigma) < 1e-12);
 }
 
+/// The fatigue strength and the Goodman factor against values worked by hand from the
+/// S-N approximation of Budynas and Nisbett, Shigley's Mechanical Engineering Design
+/// (10th ed., section 6-7; equation numbers from memory: S = a N^b with a = (f Sut)^2/Se,
+/// b = -(1/3) log10(f Sut/Se), f = 0.9 as the contract fixes it) and its Goodman line for
+/// zero-to-peak cycles (sa = sm = s/2, n = 1/(sa/Sf + sm/Sut)). For Sut = 1500 MPa,
+/// Se = 500 MPa:
+///   a = 1350^2 / 500 = 3645 MPa, b = -(1/3) log10(2.7) = -0.143788;
+///   Sf(10^4) = 3645 x 10^(-0.575152) = 3645 x 0.265980 = 969.50 MPa;
+///   Sf(10^5) = 3645 x 10^(-0.718940) = 3645 x 0.191012 = 696.24 MPa;
+///   n = 1 at s = 2 / (1/Sf + 1/Sut): 2 / (1/969.50 + 1/1500) = 1177.77 MPa at 10^4,
+///   2 / (1/696.24 + 1/1500) = 951.04 MPa at 10^5;
+///   at s = 600 MPa and 10^4 cycles: n = 1 / (300/969.50 + 300/1500) = 1.9629.
+#[test]
+fn fatigue_strength_and_goodman_factor_match_hand_values() {
+    let design = |cycles: u64| {
+        let mut d = Design::default();
+        d.strip.material = MaterialChoice::Custom {
+            name: "hand-worked".to_string(),
+            youngs_modulus_gpa: 193.0,
+            poisson_ratio: 0.3,
+            tensile_strength_mpa: 1500.0,
+            yield_strength_mpa: 1200.0,
+            endurance_limit_mpa: 500.0,
+        };
+        d.duty.cycles = cycles;
+        Segment::new(&d).expect("valid")
+    };
+    // The hand values carry five figures.
+    let close = |got: f64, want: f64| rel(got, want) < 1e-5;
+    let seg = design(10_000);
+    assert!(
+        close(seg.fatigue_strength_mpa, 969.50),
+        "{}",
+        seg.fatigue_strength_mpa
+    );
+    assert!(
+        close(seg.fatigue_allowable_mpa, 1177.77),
+        "{}",
+        seg.fatigue_allowable_mpa
+    );
+    let seg5 = design(100_000);
+    assert!(
+        close(seg5.fatigue_strength_mpa, 696.24),
+        "{}",
+        seg5.fatigue_strength_mpa
+    );
+    assert!(
+        close(seg5.fatigue_allowable_mpa, 951.04),
+        "{}",
+        seg5.fatigue_allowable_mpa
+    );
+    // A state's Goodman factor is the hand formula with the hand Sf at its own stress.
+    let p = seg.at_bore(seg.bore_nominal_mm).expect("fits");
+    let s = p.state(seg.design.operating_stroke_mm.expect("a set stroke"));
+    let sigma = s.max_stress_mpa.expect("a state");
+    let want = 1.0 / (0.5 * sigma / 969.4956 + 0.5 * sigma / 1500.0);
+    assert!(rel(s.fatigue_safety_factor.expect("a state"), want) < 1e-5);
+    // And the worked point itself: 600 MPa at 10^4 cycles.
+    assert!(
+        rel(
+            1.0 / (300.0 / seg.fatigue_strength_mpa + 300.0 / 1500.0),
+            1.9629
+        ) < 5e-5
+    );
+}
+
 #[test]
 fn actuator_mappings() {
     // Statics of the drive (common practice): spool angle delta/r_s, torque N P r_s; lead

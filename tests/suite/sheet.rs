@@ -489,3 +489,44 @@ fn material_values_say_their_basis_in_plain_words() {
         "{flat}"
     );
 }
+
+/// The sheet gives the usable stroke range as numbers, with what bounds
+/// each end, and says plainly where there is none. The numbers are the solver's inverse
+/// queries at the two ends of the tolerance band (holding at the largest bore; the stress
+/// limit, the model's limit or the actuator's travel at the smallest), each of which
+/// `inverse_queries` feeds back to the forward solution.
+#[test]
+fn the_usable_stroke_range_is_printed_with_its_bounds() {
+    let d = Design::default();
+    let seg = Segment::new(&d).expect("segment");
+    let large = seg.at_bore(seg.bore_largest_mm).expect("fits");
+    let small = seg.at_bore(seg.bore_smallest_mm).expect("fits");
+    let from = large.holding_stroke_mm().ok().expect("holds");
+    let to = [
+        small.stress_limit_stroke_mm().ok().unwrap_or(f64::INFINITY),
+        small.limit_stroke_mm(),
+        seg.max_stroke_mm(),
+    ]
+    .into_iter()
+    .fold(f64::INFINITY, f64::min);
+    assert!(from < to, "the demo has a usable range: {from} to {to}");
+    let pdf = sheet::render(&d, "d.ron", b"d", Paper::A4).expect("renders");
+    let (_, text) = pdf_text(&pdf);
+    let line = format!(
+        "Usable stroke {from:.3} to {to:.3} mm across the bore tolerance ({:.3} mm): from where the required load is held at the largest bore ({:.3} mm) up to",
+        to - from,
+        seg.bore_largest_mm
+    );
+    assert!(text.contains(&line), "{line}\n{text}");
+
+    // Far more load than the strips can hold: no range, said plainly with the reason.
+    let mut heavy = Design::default();
+    heavy.duty.holding_force_n = 5000.0;
+    let pdf = sheet::render(&heavy, "h.ron", b"h", Paper::A4).expect("renders");
+    let (_, text) = pdf_text(&pdf);
+    assert!(
+        text.contains("No usable stroke across the bore tolerance: ")
+            && !text.contains("Usable stroke "),
+        "{text}"
+    );
+}
