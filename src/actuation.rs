@@ -752,7 +752,10 @@ mod tests {
         let limit = path.limit_stroke_mm();
         let start = travel_at_mm(&path, 0.0);
         let end = travel_at_mm(&path, limit);
-        assert!(start > 0.0, "the buckling load stretches the drive: {start}");
+        assert!(
+            start > 0.0,
+            "the buckling load stretches the drive: {start}"
+        );
         // At or below the travel of the straight strips: no stroke needed.
         assert_eq!(stroke_at_travel_mm(&path, 0.5 * start), Some(0.0));
         for f in [0.1, 0.3, 0.6, 0.9, 0.99] {

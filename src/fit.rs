@@ -119,9 +119,7 @@ impl FitVar {
                     .map(|seg| {
                         // Through a compliant drive the maximum is of travel.
                         seg.at_bore(seg.bore_smallest_mm)
-                            .map_or(seg.max_stroke_mm(), |p| {
-                                crate::actuation::sweep_end_mm(&p)
-                            })
+                            .map_or(seg.max_stroke_mm(), |p| crate::actuation::sweep_end_mm(&p))
                     })
                     .unwrap_or(f64::INFINITY);
                 (lo, hi.min(reach), false)

@@ -863,14 +863,18 @@ fn a_compliant_sweep_ends_where_the_travel_reaches_the_actuator_maximum() {
             .iter()
             .position(|h| *h == name)
             .unwrap_or_else(|| panic!("column {name}"));
-        cells[i].parse::<f64>().unwrap_or_else(|e| panic!("{name}: {e}"))
+        cells[i]
+            .parse::<f64>()
+            .unwrap_or_else(|e| panic!("{name}: {e}"))
     };
     assert_eq!(col("stroke_mm"), end);
     assert!((col("travel_mm") - max).abs() <= 1e-9 * max);
     // The text says the maximum is of travel, and where it is reached.
     let (_, text_out, _) = bowgrip(&["sweep", f, "--points", "3"]);
     assert!(
-        text_out.contains(&format!("4.000 mm of travel, reached at {end:.3} mm of stroke")),
+        text_out.contains(&format!(
+            "4.000 mm of travel, reached at {end:.3} mm of stroke"
+        )),
         "{text_out}"
     );
     // A rigid drive keeps the maximum as a stroke: the sweep ends at it or at the limit.
@@ -911,4 +915,73 @@ fn the_window_draws_the_maximum_travel_as_a_stroke_at_each_bore() {
     let rigid = load("riser-climber-2in-sch40.ron");
     let a = bowgrip::analysis::analyse(&rigid).unwrap_or_else(|e| panic!("{e}"));
     assert!(a.travel_limit_window.is_empty());
+}
+
+/// The app's "As screw turns" row through a compliant drive (springs in series, common
+/// practice): it shows the screw turns of the actuator travel, stroke + pull / k_c, at the
+/// nominal bore, and a typed number of turns sets the first stroke whose travel is that
+/// many leads; a number of turns never reached is refused with the allowed range, and the
+/// design is kept.
+#[test]
+fn the_screw_turns_row_counts_the_travel_through_a_compliant_drive() {
+    use egui::accesskit::Role;
+    use egui_kittest::Harness;
+    use egui_kittest::kittest::Queryable;
+
+    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let app = bowgrip::app::GripApp::new(
+        state.path().to_path_buf(),
+        Some(sample("water-main-tractor-torque-screw.ron")),
+    );
+    let mut h = Harness::builder()
+        .with_size([1500.0, 1400.0])
+        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
+    h.run();
+    h.get_by_role_and_label(Role::RadioButton, "Stroke").click();
+    h.run();
+    let d = h.state().design().clone();
+    let Operating::Stroke(stroke) = d.operating() else {
+        panic!("switched to a stroke");
+    };
+    let Actuator::LeadScrew { lead_mm, .. } = d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    let seg = segment(&d);
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let turns = actuation::travel_at_mm(&path, stroke) / lead_mm;
+    assert!(
+        turns > stroke / lead_mm + 0.5,
+        "the tie rod stretches: {turns}"
+    );
+    let shown = h
+        .get_by_role_and_label(Role::TextInput, "As screw turns")
+        .value()
+        .and_then(|v| v.parse::<f64>().ok())
+        .unwrap_or(f64::NAN);
+    assert!((shown - turns).abs() <= 1e-3 * turns, "{shown} vs {turns}");
+
+    // 2.2 turns of a 2 mm lead: 4.4 mm of travel.
+    h.get_by_role_and_label(Role::TextInput, "As screw turns")
+        .set_text_value_accesskit("2.2");
+    h.run();
+    let Operating::Stroke(set) = h.state().design().operating() else {
+        panic!("still a stroke");
+    };
+    let travel = actuation::travel_at_mm(&path, set);
+    assert!((travel - 2.2 * lead_mm).abs() <= 1e-9 * travel, "{travel}");
+    assert!(set < 2.2 * lead_mm);
+
+    // 500 turns are never reached before the model's limit: refused, the design kept.
+    let before = h.state().design().clone();
+    h.get_by_role_and_label(Role::TextInput, "As screw turns")
+        .set_text_value_accesskit("500");
+    h.run();
+    h.run();
+    assert_eq!(*h.state().design(), before);
+    assert!(
+        h.query_by_label_contains("is never reached at the nominal bore")
+            .is_some()
+    );
 }
