@@ -985,3 +985,34 @@ fn the_screw_turns_row_counts_the_travel_through_a_compliant_drive() {
             .is_some()
     );
 }
+
+/// The usable stroke across the tolerance (what `check` prints) through a compliant drive:
+/// the actuator's maximum is of travel (springs in series, common practice), so the range
+/// ends at the smallest bore where `stroke + pull / k_c` reaches it, short of the stress
+/// limit there and well short of the maximum taken as a stroke.
+#[test]
+fn the_usable_stroke_ends_where_the_travel_reaches_the_maximum() {
+    let mut d = load("water-main-tractor-torque-screw.ron");
+    let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    *max_turns = 2.0;
+    let seg = segment(&d);
+    let path = seg
+        .at_bore(seg.bore_smallest_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let Some(reach) = actuation::stroke_at_travel_mm(&path, seg.max_stroke_mm()) else {
+        panic!("4 mm of travel is reached at the smallest bore");
+    };
+    let u = seg.usable_stroke_across_tolerance();
+    assert_eq!(
+        u.top,
+        Some((reach, bowgrip::quantities::StrokeBound::ActuatorTravel))
+    );
+    assert!(reach < seg.max_stroke_mm());
+    // A rigid drive keeps its maximum as a stroke.
+    d.actuator.set_stiffness_n_per_mm(None);
+    let seg = segment(&d);
+    let top = seg.usable_stroke_across_tolerance().top.map(|t| t.0);
+    assert!(top.is_some_and(|t| t > reach), "{top:?}");
+}
