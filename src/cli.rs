@@ -644,11 +644,22 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     Ok(Status::Done)
 }
 
-/// A state as `point --json` prints it: the state's keys, then the actuation keys.
-fn point_json(state: &SegmentState, drive: &Drive) -> anyhow::Result<serde_json::Value> {
-    let mut v = serde_json::to_value(state)?;
-    add_drive_keys(&mut v, state, drive)?;
-    Ok(v)
+/// A state as `point --json` prints it: the state's keys in their own order (as before
+/// the actuation keys existed), then the actuation keys.
+#[derive(serde::Serialize)]
+struct PointJson<'a> {
+    #[serde(flatten)]
+    state: &'a SegmentState,
+    travel_mm: Option<f64>,
+    operating_mode: &'static str,
+}
+
+fn point_json<'a>(state: &'a SegmentState, drive: &Drive) -> anyhow::Result<PointJson<'a>> {
+    Ok(PointJson {
+        state,
+        travel_mm: travel_of(state, drive),
+        operating_mode: drive.mode_name(),
+    })
 }
 
 /// Adds `travel_mm` (stroke + pull / stiffness; the stroke itself when rigid; `null`

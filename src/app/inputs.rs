@@ -27,6 +27,9 @@ struct Row<'a> {
     integer: bool,
     /// Smallest positive value of a logarithmic slider that starts at 0.
     smallest: Option<f64>,
+    /// The slider's span when this design sets it (the operating stroke: up to the strokes
+    /// this design can reach), instead of the field's allowed range.
+    span: Option<(f64, f64)>,
 }
 
 impl<'a> Row<'a> {
@@ -48,7 +51,13 @@ impl<'a> Row<'a> {
             log: false,
             integer: false,
             smallest: None,
+            span: None,
         }
+    }
+    /// The slider runs over `lo..=hi`; the typed field still takes the allowed range.
+    fn span(mut self, lo: f64, hi: f64) -> Self {
+        self.span = Some((lo, hi));
+        self
     }
     fn log(mut self) -> Self {
         self.log = true;
@@ -189,6 +198,9 @@ fn slider_span(
     d: &Design,
     value: f64,
 ) -> (f64, f64) {
+    if let Some(span) = row.span {
+        return span;
+    }
     let Some(l) = limit else {
         return (row.lo, row.hi);
     };
@@ -1054,6 +1066,23 @@ impl InputsPanel {
                     } else {
                         "operating_stroke_mm"
                     };
+                    // The slider covers the strokes this design can use, so a pixel is a
+                    // few hundredths of a millimetre rather than a millimetre of the free
+                    // length: up to the smaller of the actuator's maximum and the largest
+                    // of the three bores' model limits (and always the current value).
+                    let reach = analysis
+                        .map(|a| {
+                            let limit = a
+                                .bores
+                                .iter()
+                                .filter_map(|b| b.row.limit_stroke_mm)
+                                .fold(0.0, f64::max);
+                            limit.min(a.segment.max_stroke_mm())
+                        })
+                        .filter(|v| v.is_finite() && *v > 0.0)
+                        .unwrap_or(l)
+                        .max(stroke)
+                        .min(l);
                     self.row_ui(
                         ui,
                         d,
@@ -1063,8 +1092,9 @@ impl InputsPanel {
                             "mm",
                             0.0,
                             l,
-                            "End-plate travel at which the segment is meant to hold.",
-                        ),
+                            "End-plate travel at which the segment is meant to hold. The slider runs from 0 to the smaller of the actuator's maximum and the model's limit at the three bores; type any stroke up to the free length.",
+                        )
+                        .span(0.0, reach),
                         stroke,
                         out,
                         |d, v| d.set_operating(Operating::Stroke(v)),

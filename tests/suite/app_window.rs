@@ -96,3 +96,33 @@ fn a_long_title_keeps_the_panels_in_place() {
     assert_eq!(h.state().design().title.len(), 26 * 7);
     assert_eq!(before.min.x, after.min.x, "{before:?} -> {after:?}");
 }
+
+/// Issue 16, item 1: the operating-stroke slider spans the strokes this design can use
+/// (0 to the smaller of the actuator's maximum and the largest model limit of the three
+/// bores), not the whole free length: on the riser sample that is under 2 mm of a 110 mm
+/// strip, so a pixel of a 150 px slider is about a hundredth of a millimetre.
+#[test]
+fn the_stroke_slider_spans_the_usable_strokes() {
+    use egui::accesskit::Role;
+    use egui_kittest::kittest::{NodeT, Queryable};
+    let riser = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs/riser-climber-2in-sch40.ron");
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let app = GripApp::new(state.path().to_path_buf(), Some(riser));
+    let mut h = Harness::builder()
+        .with_size([1680.0, 1050.0])
+        .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app);
+    h.run();
+    let a = h.state().analysis().expect("an analysis");
+    let limit = a
+        .bores
+        .iter()
+        .filter_map(|b| b.row.limit_stroke_mm)
+        .fold(0.0, f64::max);
+    let expect = limit.min(a.segment.max_stroke_mm());
+    assert!(expect < 0.05 * h.state().design().strip.free_length_mm);
+    let slider = h.get_by_role_and_label(Role::Slider, "Operating stroke");
+    let node = slider.accesskit_node();
+    assert_eq!(node.min_numeric_value(), Some(0.0));
+    assert_eq!(node.max_numeric_value(), Some(expect));
+}
