@@ -356,6 +356,124 @@ pub fn travel_at_mm(path: &BorePath, stroke_mm: f64) -> f64 {
     }
 }
 
+/// Samples of the travel along the path when looking for the first stroke at which it
+/// reaches a given travel.
+const TRAVEL_SAMPLES: usize = 128;
+
+/// The least stroke at which the actuator travel reaches `travel_mm` on this path, mm:
+/// the travel itself through a rigid drive; through a compliant drive the first crossing
+/// of `stroke + pull / k_c` (the travel may fall back past a pull peak), found by a sampled
+/// scan over `[0, limit]` and then roots' Brent method in the bracketing step to 1e-12 of
+/// the limit stroke. `None` when the travel does not reach it before the model's limit
+/// (a crossing and recrossing between two samples, 1/128 of the limit apart, is not seen).
+pub fn stroke_at_travel_mm(path: &BorePath, travel_mm: f64) -> Option<f64> {
+    let limit = path.limit_stroke_mm();
+    let Some(k) = Drive::of(path.segment()).stiffness_n_per_mm else {
+        return (travel_mm <= limit).then_some(travel_mm.max(0.0));
+    };
+    // No state, no travel: NaN never reaches the target.
+    let f = |stroke: f64| pull_n(path, stroke).map_or(f64::NAN, |p| stroke + p / k - travel_mm);
+    if f(0.0) >= 0.0 {
+        return Some(0.0);
+    }
+    let mut prev = 0.0;
+    for i in 1..=TRAVEL_SAMPLES {
+        let stroke = limit * i as f64 / TRAVEL_SAMPLES as f64;
+        let y = f(stroke);
+        if y >= 0.0 {
+            if y == 0.0 {
+                return Some(stroke);
+            }
+            let mut settle = TravelSettled {
+                x_scale: limit,
+                y_scale: travel_mm.abs().max(limit),
+            };
+            return match roots::find_root_brent(prev, stroke, f, &mut settle) {
+                Ok(s) if s.is_finite() => Some(s.clamp(prev, stroke)),
+                _ => Some(bisect_first(f, prev, stroke)),
+            };
+        }
+        if !y.is_nan() {
+            prev = stroke;
+        }
+    }
+    None
+}
+
+/// Bisection of `f` from `lo` (below zero) to `hi` (at or above zero) to rounding: the
+/// fallback when Brent stops without a root.
+fn bisect_first(f: impl Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if mid <= lo || mid >= hi {
+            break;
+        }
+        if f(mid) >= 0.0 {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    hi
+}
+
+/// Brent on the stroke for a travel: done when the bracket has shrunk to 1e-12 of the
+/// limit stroke, or the travel is within rounding of the target.
+struct TravelSettled {
+    x_scale: f64,
+    y_scale: f64,
+}
+
+impl roots::Convergency<f64> for TravelSettled {
+    fn is_root_found(&mut self, y: f64) -> bool {
+        y.abs() <= 1e-14 * self.y_scale
+    }
+    fn is_converged(&mut self, x1: f64, x2: f64) -> bool {
+        (x1 - x2).abs() <= 1e-12 * self.x_scale
+    }
+    fn is_iteration_limit_reached(&mut self, iter: usize) -> bool {
+        iter >= MAX_ITERATIONS
+    }
+}
+
+/// Where a sweep at the bore of `path` ends, mm: the smaller of the model's limit and the
+/// actuator's maximum, which through a compliant drive is a maximum of travel, so the
+/// stroke where the travel first reaches it (contract, "`sweep` and `bores`").
+pub fn sweep_end_mm(path: &BorePath) -> f64 {
+    let limit = path.limit_stroke_mm();
+    let max = path.segment().max_stroke_mm();
+    match path.segment().design.actuator.stiffness_n_per_mm() {
+        None => limit.min(max),
+        Some(_) => stroke_at_travel_mm(path, max).map_or(limit, |s| s.min(limit)),
+    }
+}
+
+/// The stroke at which the actuator reaches its maximum travel at each of `points`
+/// equally spaced bores across `range_mm`: `(bore mm, stroke mm)`, the stroke `None` where
+/// the travel stays short of the maximum up to the model's limit or the segment has no
+/// state. Empty for a rigid drive, where the limit is the maximum stroke at every bore.
+pub fn travel_limit_window(
+    seg: &Segment,
+    range_mm: (f64, f64),
+    points: usize,
+) -> Vec<(f64, Option<f64>)> {
+    if seg.design.actuator.stiffness_n_per_mm().is_none() {
+        return Vec::new();
+    }
+    let max = seg.max_stroke_mm();
+    (0..points)
+        .map(|i| {
+            let t = i as f64 / (points.max(2) - 1) as f64;
+            let bore_mm = range_mm.0 + t * (range_mm.1 - range_mm.0);
+            let stroke = seg
+                .at_bore(bore_mm)
+                .ok()
+                .and_then(|p| stroke_at_travel_mm(&p, max));
+            (bore_mm, stroke)
+        })
+        .collect()
+}
+
 /// ` (actuator travel X mm)` after a stroke in a reason, when a compliant drive makes the
 /// travel differ from the stroke; empty for a rigid drive.
 pub fn travel_note(path: &BorePath, stroke_mm: f64) -> String {
@@ -588,5 +706,108 @@ impl crate::analysis::Analysis {
             .find(|b| b.case == crate::analysis::BoreCase::Nominal)
             .and_then(|b| b.operating.as_ref().ok())
             .map(|s| s.stroke_mm)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::design::Design;
+
+    fn segment_with(stiffness_n_per_mm: Option<f64>) -> Segment {
+        let mut d = Design::default();
+        d.actuator.set_stiffness_n_per_mm(stiffness_n_per_mm);
+        Segment::new(&d).unwrap_or_else(|e| panic!("{e}"))
+    }
+
+    /// Springs in series (common practice): through a rigid drive the travel is the
+    /// stroke, so the stroke reaching a travel is that travel, up to the model's limit.
+    #[test]
+    fn a_rigid_drive_reaches_a_travel_at_that_stroke() {
+        let seg = segment_with(None);
+        let path = seg
+            .at_bore(seg.bore_nominal_mm)
+            .unwrap_or_else(|e| panic!("{e}"));
+        let limit = path.limit_stroke_mm();
+        for t in [0.0, 0.1 * limit, 0.5 * limit, limit] {
+            assert_eq!(stroke_at_travel_mm(&path, t), Some(t));
+        }
+        assert_eq!(stroke_at_travel_mm(&path, 1.01 * limit), None);
+        // The sweep ends where it always did.
+        assert_eq!(
+            sweep_end_mm(&path),
+            limit.min(seg.max_stroke_mm()),
+            "rigid sweep end"
+        );
+    }
+
+    /// Springs in series (common practice): travel = stroke + pull / k_c, so the stroke
+    /// found for a travel gives that travel back.
+    #[test]
+    fn the_stroke_for_a_travel_gives_the_travel_back() {
+        let seg = segment_with(Some(150.0));
+        let path = seg
+            .at_bore(seg.bore_nominal_mm)
+            .unwrap_or_else(|e| panic!("{e}"));
+        let limit = path.limit_stroke_mm();
+        let start = travel_at_mm(&path, 0.0);
+        let end = travel_at_mm(&path, limit);
+        assert!(
+            start > 0.0,
+            "the buckling load stretches the drive: {start}"
+        );
+        // At or below the travel of the straight strips: no stroke needed.
+        assert_eq!(stroke_at_travel_mm(&path, 0.5 * start), Some(0.0));
+        for f in [0.1, 0.3, 0.6, 0.9, 0.99] {
+            let target = start + f * (end - start);
+            let Some(s) = stroke_at_travel_mm(&path, target) else {
+                panic!("travel {target} mm is reached");
+            };
+            assert!((0.0..=limit).contains(&s));
+            let back = travel_at_mm(&path, s);
+            assert!(
+                (back - target).abs() <= 1e-9 * target.max(1.0),
+                "{back} vs {target}"
+            );
+        }
+        assert_eq!(stroke_at_travel_mm(&path, 1.5 * end + 1.0), None);
+    }
+
+    /// Past a pull peak the travel through a soft drive falls back (Bazant and Cedolin,
+    /// Stability of Structures, from memory: a softening structure behind a spring): the
+    /// stroke for a travel is its first crossing, so no shorter stroke reaches it.
+    #[test]
+    fn the_stroke_for_a_travel_is_the_first_crossing() {
+        let mut d = Design::default();
+        d.bore.minus_mm = 0.0;
+        d.bore.plus_mm = 0.0;
+        d.end_plate_diameter_mm = 0.0;
+        let seg = Segment::new(&d).unwrap_or_else(|e| panic!("{e}"));
+        d.bore.diameter_mm = seg.bore_for_gap_mm(0.34 * d.strip.free_length_mm);
+        d.actuator.set_stiffness_n_per_mm(Some(5.0));
+        let seg = Segment::new(&d).unwrap_or_else(|e| panic!("{e}"));
+        let path = seg
+            .at_bore(seg.bore_nominal_mm)
+            .unwrap_or_else(|e| panic!("{e}"));
+        let Some((peak, _)) = pull_peak(&path) else {
+            panic!("a gap of 0.34 L peaks");
+        };
+        let Some(snap) = snap_stroke_mm(&path, 5.0) else {
+            panic!("a soft drive lets it jump");
+        };
+        assert!(snap > peak);
+        // The travel at the snap, where it stops rising: reached first at the snap (to
+        // rounding), and the travel just short of it first before.
+        let top = travel_at_mm(&path, snap);
+        let target = travel_at_mm(&path, 0.9 * snap);
+        let Some(s) = stroke_at_travel_mm(&path, target) else {
+            panic!("reached at 0.9 x snap");
+        };
+        assert!((travel_at_mm(&path, s) - target).abs() <= 1e-9 * target);
+        for i in 0..2000 {
+            let x = s * i as f64 / 2000.0;
+            assert!(travel_at_mm(&path, x) < target + 1e-9, "{x} before {s}");
+        }
+        assert!(target < top);
     }
 }

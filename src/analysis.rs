@@ -132,6 +132,10 @@ pub struct Analysis {
     /// window, mm (`None` where the set pull is never reached); empty under displacement
     /// control, where the stroke is the same at every bore.
     pub operating_window: Vec<actuation::WindowPoint>,
+    /// Through a compliant drive, the stroke at which the actuator travel reaches its
+    /// maximum at each bore of the window, `(bore, stroke)` in mm (`None` where it is not
+    /// reached before the model's limit); empty for a rigid drive.
+    pub travel_limit_window: Vec<(f64, Option<f64>)>,
 }
 
 impl Analysis {
@@ -193,8 +197,16 @@ impl Analysis {
     /// without usable strokes ends a run.
     pub fn usable_window_mm(&self) -> Vec<Vec<[f64; 3]>> {
         let mut runs: Vec<Vec<[f64; 3]>> = vec![Vec::new()];
-        for r in &self.window {
-            match self.segment.usable_strokes_mm(r) {
+        for (i, r) in self.window.iter().enumerate() {
+            // Through a compliant drive the actuator's maximum is of travel: the strokes end
+            // where the travel reaches it ([`Analysis::travel_limit_window`]).
+            let travel_top = self.travel_limit_window.get(i).and_then(|w| w.1);
+            let usable = self
+                .segment
+                .usable_strokes_mm(r)
+                .map(|(lo, hi)| (lo, travel_top.map_or(hi, |t| hi.min(t))))
+                .filter(|(lo, hi)| lo < hi);
+            match usable {
                 Some((lo, hi)) => runs
                     .last_mut()
                     .map_or((), |run| run.push([r.bore_mm, lo, hi])),
@@ -275,6 +287,7 @@ fn analyse_with(
         })
         .collect();
     let operating_window = actuation::window(&segment, window_mm, WINDOW_POINTS);
+    let travel_limit_window = actuation::travel_limit_window(&segment, window_mm, WINDOW_POINTS);
     Ok(Analysis {
         segment,
         checks,
@@ -286,5 +299,6 @@ fn analyse_with(
         shape_mm,
         cautions,
         operating_window,
+        travel_limit_window,
     })
 }

@@ -914,7 +914,7 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
     // The strokes of `BorePath::sweep`, computed one at a time so that a long sweep
     // streams instead of collecting, and spaced so that the last is the end exactly.
-    let end_mm = path.limit_stroke_mm().min(seg.max_stroke_mm());
+    let end_mm = actuation::sweep_end_mm(&path);
     let n = a.points;
     let states = (0..n).map(|i| path.state(spaced(0.0, end_mm, i, n)));
     // Designs with a set pull or torque, or a compliant drive, get the actuator travel.
@@ -929,14 +929,22 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     writeln!(
         out,
         "bore {:.3} mm, gap {:.3} mm; first contact at {} mm, line contact from {} mm; \
-         model limit {:.3} mm ({}); actuator maximum {:.3} mm",
+         model limit {:.3} mm ({}); actuator maximum {:.3} mm{}",
         path.bore_mm(),
         path.gap_mm(),
         fixed(path.first_contact_stroke_mm(), 3),
         fixed(path.line_contact_stroke_mm(), 3),
         path.limit_stroke_mm(),
         path.limit_reason().describe(),
-        seg.max_stroke_mm()
+        seg.max_stroke_mm(),
+        // Through a compliant drive the maximum is of travel, reached at a shorter stroke.
+        match seg.design.actuator.stiffness_n_per_mm() {
+            Some(_) => match actuation::stroke_at_travel_mm(&path, seg.max_stroke_mm()) {
+                Some(s) => format!(" of travel, reached at {s:.3} mm of stroke"),
+                None => " of travel, not reached before the model limit".to_string(),
+            },
+            None => String::new(),
+        }
     )?;
     if let Some(drive) = &drive {
         writeln!(out, "{}", operating_line(&path, drive))?;

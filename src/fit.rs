@@ -117,10 +117,9 @@ impl FitVar {
                 let reach = Segment::new(d)
                     .ok()
                     .map(|seg| {
-                        let limit = seg
-                            .at_bore(seg.bore_smallest_mm)
-                            .map_or(f64::INFINITY, |p| p.limit_stroke_mm());
-                        seg.max_stroke_mm().min(limit)
+                        // Through a compliant drive the maximum is of travel.
+                        seg.at_bore(seg.bore_smallest_mm)
+                            .map_or(seg.max_stroke_mm(), |p| crate::actuation::sweep_end_mm(&p))
                     })
                     .unwrap_or(f64::INFINITY);
                 (lo, hi.min(reach), false)

@@ -22,8 +22,13 @@ impl Segment {
     /// stress limit, the model's limit and the actuator's maximum travel. `None` when the
     /// relaxed segment does not fit the bore.
     fn stroke_top_mm(&self, row: &BoreRow) -> Option<(f64, StrokeBound)> {
+        self.stroke_top_below_mm(row, self.max_stroke_mm())
+    }
+
+    /// [`Segment::stroke_top_mm`] with the actuator's top given as a stroke, mm.
+    fn stroke_top_below_mm(&self, row: &BoreRow, actuator_mm: f64) -> Option<(f64, StrokeBound)> {
         let limit = row.limit_stroke_mm?;
-        let mut top = (self.max_stroke_mm(), StrokeBound::ActuatorTravel);
+        let mut top = (actuator_mm, StrokeBound::ActuatorTravel);
         for (v, bound) in [
             (Some(limit), StrokeBound::Limit),
             (row.stress_limit_stroke_mm, StrokeBound::Stress),
@@ -55,7 +60,20 @@ impl Segment {
             largest_bore_mm: largest.bore_mm,
             holding_mm: largest.holding_stroke_mm,
             largest_fits: largest.limit_stroke_mm.is_some(),
-            top: self.stroke_top_mm(smallest),
+            top: match self.design.actuator.stiffness_n_per_mm() {
+                None => self.stroke_top_mm(smallest),
+                // Through a compliant drive the maximum is of travel: the strokes end where
+                // the travel at the smallest bore (the most pull at a stroke) reaches it.
+                Some(_) => self.stroke_top_below_mm(
+                    smallest,
+                    self.at_bore(smallest.bore_mm)
+                        .ok()
+                        .and_then(|p| {
+                            crate::actuation::stroke_at_travel_mm(&p, self.max_stroke_mm())
+                        })
+                        .unwrap_or(f64::INFINITY),
+                ),
+            },
         }
     }
 

@@ -662,9 +662,10 @@ impl BorePath<'_> {
     }
 
     /// The force-stroke curve: `points` strokes from 0 to the smaller of the limit and the
-    /// actuator's maximum stroke, inclusive.
+    /// actuator's maximum stroke (through a compliant drive, the stroke where the travel
+    /// reaches that maximum), inclusive.
     pub fn sweep(&self, points: usize) -> Vec<SegmentState> {
-        let end = self.limit_stroke_mm().min(self.segment.max_stroke_mm());
+        let end = crate::actuation::sweep_end_mm(self);
         let points = points.max(2);
         (0..points)
             .map(|i| self.state(end * (i as f64 / (points - 1) as f64)))

@@ -1,6 +1,7 @@
 //! The app's side of actuation ([`crate::actuation`]): the operating stroke drawn on the
 //! stroke-against-bore plot (a level line under displacement control, a curve across the
-//! bores under force control).
+//! bores under force control), and there the actuator's maximum travel as a curve of
+//! stroke through a compliant drive.
 
 use egui::Color32;
 use egui_plot::{HLine, Line, LineStyle, PlotPoints};
@@ -41,6 +42,55 @@ pub fn operating_marker(p: &mut egui_plot::PlotUi<'_>, a: &Analysis, mark: Color
                 .width(1.5),
         );
     }
+}
+
+/// Through a compliant drive, draws the actuator's maximum travel on the stroke-against-bore
+/// plot as a curve: at each bore the stroke at which the travel reaches the maximum (broken
+/// where it is not reached before the model's limit). Returns false, drawing nothing, for a
+/// rigid drive, whose maximum is a level line of stroke.
+pub fn travel_limit_marker(
+    p: &mut egui_plot::PlotUi<'_>,
+    a: &Analysis,
+    name: &str,
+    color: Color32,
+) -> bool {
+    if a.travel_limit_window.is_empty() {
+        return false;
+    }
+    for run in runs(&a.travel_limit_window) {
+        p.line(
+            Line::new(name, PlotPoints::new(run))
+                .color(color)
+                .style(LineStyle::dashed_loose()),
+        );
+    }
+    true
+}
+
+/// The unbroken runs of a curve of `(x, y)` with missing points.
+fn runs(points: &[(f64, Option<f64>)]) -> Vec<Vec<[f64; 2]>> {
+    let mut run = Vec::new();
+    let mut runs = Vec::new();
+    for &(x, y) in points {
+        match y {
+            Some(y) => run.push([x, y]),
+            None if !run.is_empty() => runs.push(std::mem::take(&mut run)),
+            None => {}
+        }
+    }
+    if !run.is_empty() {
+        runs.push(run);
+    }
+    runs
+}
+
+/// Highest stroke on the curve of the actuator's maximum travel, mm (`None` for a rigid
+/// drive, or where the travel is never reached).
+pub fn travel_limit_top_mm(a: &Analysis) -> Option<f64> {
+    a.travel_limit_window
+        .iter()
+        .filter_map(|w| w.1)
+        .reduce(f64::max)
 }
 
 /// Stiffness a drive gets when "Compliant drive" is switched on, N/mm: a stiff cord of a

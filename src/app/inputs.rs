@@ -1158,7 +1158,7 @@ impl InputsPanel {
                         out,
                         |d, v| d.set_operating(Operating::Stroke(v)),
                     );
-                    self.stroke_at_actuator_ui(ui, d, stroke, out);
+                    self.stroke_at_actuator_ui(ui, d, analysis, stroke, out);
                 }
                 Operating::Pull(pull) => self.row_ui(
                     ui,
@@ -1199,58 +1199,103 @@ impl InputsPanel {
         }
     }
 
-    /// The operating stroke in the actuator's own unit (spool angle, screw turns).
+    /// The operating stroke in the actuator's own unit (spool angle, screw turns). Through
+    /// a compliant drive the actuator turns through the travel, stroke + pull / stiffness,
+    /// at the nominal bore, and a typed rotation sets the first stroke whose travel reaches
+    /// it ([`crate::actuation::stroke_at_travel_mm`]).
     fn stroke_at_actuator_ui(
         &mut self,
         ui: &mut Ui,
         d: &Design,
+        analysis: Option<&Analysis>,
         stroke: f64,
         out: &mut Vec<Command>,
     ) {
         let l = d.strip.free_length_mm;
-        // The stroke in the actuator's own position unit, both ways.
+        let (key, label, unit, what) = match d.actuator {
+            Actuator::Spool { .. } => (
+                "operating.spool_angle_deg",
+                "As spool angle",
+                "deg",
+                "spool rotation",
+            ),
+            Actuator::LeadScrew { .. } => (
+                "operating.screw_turns",
+                "As screw turns",
+                "turns",
+                "screw turns",
+            ),
+            Actuator::Direct { .. } => return,
+        };
+        let formula = match d.actuator {
+            Actuator::Spool { .. } => "radius",
+            _ => "lead",
+        };
+        // A plate travel in the actuator's own position unit, both ways.
         let act = d.actuator.clone();
-        let position = |stroke_mm: f64| act.reading(stroke_mm, 0.0).position;
-        match d.actuator {
-            Actuator::Spool { .. } => {
-                let hi = position(l);
-                let tip = at_actuator_tip("spool rotation: stroke / radius", hi, "deg");
-                self.row_ui(
-                    ui,
-                    d,
-                    Row::new(
-                        "operating.spool_angle_deg",
-                        "As spool angle",
-                        "deg",
-                        0.0,
-                        hi,
-                        &tip,
-                    ),
-                    position(stroke),
-                    out,
-                    |d, v| d.set_operating(Operating::Stroke(act.stroke_mm_at(v))),
-                );
+        let position = |travel_mm: f64| act.reading(travel_mm, 0.0).position;
+        if d.actuator.stiffness_n_per_mm().is_none() {
+            let hi = position(l);
+            let tip = at_actuator_tip(&format!("{what}: stroke / {formula}"), hi, unit);
+            self.row_ui(
+                ui,
+                d,
+                Row::new(key, label, unit, 0.0, hi, &tip),
+                position(stroke),
+                out,
+                |d, v| d.set_operating(Operating::Stroke(act.stroke_mm_at(v))),
+            );
+            return;
+        }
+        // Through a compliant drive: the travel at the nominal bore, from the analysis of
+        // this very design, else from the design itself.
+        let own;
+        let seg = match analysis.filter(|a| a.segment.design == *d) {
+            Some(a) => Some(&a.segment),
+            None => {
+                own = crate::segment::Segment::new(d).ok();
+                own.as_ref()
             }
-            Actuator::LeadScrew { .. } => {
-                let hi = position(l);
-                let tip = at_actuator_tip("screw turns: stroke / lead", hi, "turns");
-                self.row_ui(
-                    ui,
-                    d,
-                    Row::new(
-                        "operating.screw_turns",
-                        "As screw turns",
-                        "turns",
-                        0.0,
-                        hi,
-                        &tip,
-                    ),
-                    position(stroke),
-                    out,
-                    |d, v| d.set_operating(Operating::Stroke(act.stroke_mm_at(v))),
-                );
-            }
-            Actuator::Direct { .. } => {}
+        };
+        let Some(path) = seg.and_then(|s| s.at_bore(s.bore_nominal_mm).ok()) else {
+            ui.label(RichText::new(format!("{label}: not shown, the segment has no state at the nominal bore")).small())
+                .on_hover_text("Through a compliant drive the actuator turns through the travel, stroke + pull / stiffness, and the pull needs a state at the nominal bore.");
+            ui.end_row();
+            return;
+        };
+        let limit = path.limit_stroke_mm();
+        let travel = crate::actuation::travel_at_mm(&path, stroke);
+        let hi = position(crate::actuation::travel_at_mm(&path, limit).max(travel));
+        let tip = format!(
+            "The operating stroke as {what} through the drive's stretch: (stroke + pull / stiffness) / {formula}, at the nominal bore {:.2} mm (actuator travel {travel:.3} mm now). A value typed here sets the first stroke whose travel reaches it.\nAllowed: 0 to {} {unit} (the travel at the model's limit)",
+            path.bore_mm(),
+            fmt_value(hi)
+        );
+        let unreached = std::cell::Cell::new(None);
+        self.row_ui(
+            ui,
+            d,
+            Row::new(key, label, unit, 0.0, hi, &tip),
+            position(travel),
+            out,
+            |d, v| {
+                let found = crate::actuation::stroke_at_travel_mm(&path, act.stroke_mm_at(v));
+                if found.is_none() {
+                    unreached.set(Some(v));
+                }
+                // NaN is refused by validation, so nothing changes when it is never reached.
+                d.set_operating(Operating::Stroke(found.unwrap_or(f64::NAN)));
+            },
+        );
+        if let Some(v) = unreached.get() {
+            self.errors.insert(
+                key,
+                format!(
+                    "{label} {} {unit} is never reached at the nominal bore: the drive's stretch keeps the travel below it up to the model's limit; allowed 0 to {} {unit}",
+                    fmt_value(v),
+                    fmt_value(hi)
+                ),
+            );
         }
     }
 }

@@ -372,13 +372,13 @@ impl GripApp {
         &mut self.scatter_view
     }
 
-    /// The state directory.
     /// Where the three plots were drawn in the last frame (stroke against bore, forces,
     /// stress), points; `None` before the first frame.
     pub fn plot_rects(&self) -> [Option<egui::Rect>; 3] {
         self.plot_rects
     }
 
+    /// The state directory.
     pub fn state_dir(&self) -> &Path {
         &self.state_dir
     }

@@ -233,12 +233,15 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
     let travel = Marker {
         name: "actuator max travel",
         value: seg.max_stroke_mm(),
+        // Through a compliant drive the marker is a curve of stroke, below the travel.
+        level: super::drive::travel_limit_top_mm(a).unwrap_or(seg.max_stroke_mm()),
         unit: "mm",
         top: top_of(&window),
     };
     let rating = Marker {
         name: "actuator rating as pull",
         value: seg.max_pull_n(),
+        level: seg.max_pull_n(),
         unit: "N",
         top: top_of(&forces).max(need),
     };
@@ -254,7 +257,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             window_rect,
             "Stroke against bore",
-            "For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.",
+            &format!("For each bore: the stroke at first contact, where the load is held, where stress reaches its allowable, where line contact begins and where the model stops. The shaded band is the bore tolerance; the green fill is the usable window.{}", if a.travel_limit_window.is_empty() { "" } else { "\n\nThe drive stretches (travel = stroke + pull / stiffness), so the actuator's maximum travel is drawn as the stroke at which each bore's travel reaches it." }),
             travel.note(),
             |ui| window_plot_ui(ui, a, &window, &travel, plot_h),
         );
@@ -351,6 +354,8 @@ fn plot_cell_ui(
 struct Marker {
     name: &'static str,
     value: f64,
+    /// Height at which it is drawn (its value, or for a curve its highest point).
+    level: f64,
     unit: &'static str,
     /// Highest value the plot shows without the marker.
     top: f64,
@@ -358,7 +363,7 @@ struct Marker {
 
 impl Marker {
     fn off_scale(&self) -> bool {
-        self.top > 0.0 && self.value > 1.4 * self.top
+        self.top > 0.0 && self.level > 1.4 * self.top
     }
 
     fn note(&self) -> Option<String> {
@@ -584,7 +589,9 @@ fn window_plot_ui(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, 
             for c in curves {
                 c.add_to(p);
             }
-            travel.add_to(p);
+            if !super::drive::travel_limit_marker(p, a, travel.name, C_ACT) {
+                travel.add_to(p);
+            }
             super::drive::operating_marker(p, a, mark);
             p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
         });

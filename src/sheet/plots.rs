@@ -49,8 +49,15 @@ pub(super) fn window_plot(a: &Analysis, width: f32) -> Section {
     } else {
         shown
     };
-    let shown = if max_stroke <= 1.5 * shown {
-        shown.max(max_stroke)
+    // Through a compliant drive the maximum is of travel, drawn as the stroke reaching it.
+    let travel_curve = &a.travel_limit_window;
+    let max_level = if travel_curve.is_empty() {
+        max_stroke
+    } else {
+        finite_max(travel_curve.iter().filter_map(|p| p.1))
+    };
+    let shown = if max_level <= 1.5 * shown {
+        shown.max(max_level)
     } else {
         shown
     };
@@ -109,14 +116,26 @@ pub(super) fn window_plot(a: &Analysis, width: f32) -> Section {
                 pen: Pen::dashed(GREY, 0.5, &[1.0, 2.0]),
                 x: seg.bore_nominal_mm,
             },
-            Item::HLine {
-                label: format!(
-                    "actuator maximum {}{}",
-                    f::mm(max_stroke),
-                    above(max_stroke)
-                ),
-                pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
-                y: max_stroke,
+            if travel_curve.is_empty() {
+                Item::HLine {
+                    label: format!(
+                        "actuator maximum {}{}",
+                        f::mm(max_stroke),
+                        above(max_stroke)
+                    ),
+                    pen: Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
+                    y: max_stroke,
+                }
+            } else {
+                Item::series(
+                    format!(
+                        "actuator maximum travel {} (stroke reaching it){}",
+                        f::mm(max_stroke),
+                        above(max_level)
+                    ),
+                    Pen::dashed(ORANGE, 1.0, &[5.0, 2.5]),
+                    travel_curve.clone(),
+                )
             },
             if op_curve.is_empty() {
                 Item::HLine {
@@ -364,8 +383,13 @@ pub(super) fn curve_plots(a: &Analysis, width: f32) -> Section {
         Weight::Regular,
         GREY,
         &format!(
-            "Curves run from 0 to {} (the smaller of the model limit and the actuator maximum stroke). Holding force is static friction times the radial force; it enters no shape calculation.",
-            f::mm(end)
+            "Curves run from 0 to {} (the smaller of the model limit and {}). Holding force is static friction times the radial force; it enters no shape calculation.",
+            f::mm(end),
+            if a.travel_limit_window.is_empty() {
+                "the actuator maximum stroke"
+            } else {
+                "the stroke at which the actuator travel, stroke + pull / drive stiffness, reaches its maximum"
+            }
         ),
     );
     b2.height = y - 6.0;

@@ -808,3 +808,211 @@ fn under_a_set_torque_stress_is_judged_where_it_is_highest() {
         }
     }
 }
+
+// ---------------------------------------------------------------- travel limits
+
+/// The torque-screw sample with a screw of 2 turns: 4 mm of actuator travel, which its
+/// drive's stretch uses up short of the model's limit.
+const SHORT_SCREW: (&str, &str) = ("max_turns: 6.0", "max_turns: 2.0");
+
+/// Springs in series (common practice): through a drive of stiffness `k_c` the actuator
+/// travels `stroke + pull / k_c`, so its maximum is one of travel, and `sweep` (contract:
+/// strokes from 0 to the smaller of the limit and the actuator's maximum) ends at the
+/// stroke where the travel reaches it, in the curves and on the command line alike.
+#[test]
+fn a_compliant_sweep_ends_where_the_travel_reaches_the_actuator_maximum() {
+    let name = "water-main-tractor-torque-screw.ron";
+    let text = std::fs::read_to_string(sample(name)).unwrap_or_else(|e| panic!("{e}"));
+    assert!(text.contains(SHORT_SCREW.0), "{name} has a 6-turn screw");
+    let short = text.replace(SHORT_SCREW.0, SHORT_SCREW.1);
+    let dir = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let file = dir.path().join("short-screw.ron");
+    std::fs::write(&file, &short).unwrap_or_else(|e| panic!("{e}"));
+    let d = design::load(&file).unwrap_or_else(|e| panic!("{}", e.in_file(&file)));
+    let seg = segment(&d);
+    let max = seg.max_stroke_mm();
+    assert!((max - 4.0).abs() < 1e-12, "2 turns of a 2 mm lead: {max}");
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let sweep = path.sweep(50);
+    let Some(last) = sweep.last() else {
+        panic!("a sweep has points");
+    };
+    let end = last.stroke_mm;
+    let travel = actuation::travel_at_mm(&path, end);
+    assert!((travel - max).abs() <= 1e-9 * max, "{travel} vs {max}");
+    // Short of the limit, and short of the maximum as a stroke (the drive stretches).
+    assert!(end < path.limit_stroke_mm() && end < max, "{end}");
+    assert_eq!(actuation::stroke_at_travel_mm(&path, max), Some(end));
+    // Every stroke of the sweep stays within the actuator's travel.
+    for s in &sweep {
+        assert!(actuation::travel_at_mm(&path, s.stroke_mm) <= max * (1.0 + 1e-9));
+    }
+    // `sweep --csv` ends at the same stroke, and its travel column there is the maximum.
+    let f = file.to_str().unwrap_or_default();
+    let (code, out, err) = bowgrip(&["sweep", f, "--points", "50", "--csv"]);
+    assert_eq!(code, Some(0), "{err}");
+    let header: Vec<&str> = out.lines().next().unwrap_or_default().split(',').collect();
+    let Some(row) = out.lines().last() else {
+        panic!("rows: {out}");
+    };
+    let cells: Vec<&str> = row.split(',').collect();
+    let col = |name: &str| {
+        let i = header
+            .iter()
+            .position(|h| *h == name)
+            .unwrap_or_else(|| panic!("column {name}"));
+        cells[i]
+            .parse::<f64>()
+            .unwrap_or_else(|e| panic!("{name}: {e}"))
+    };
+    assert_eq!(col("stroke_mm"), end);
+    assert!((col("travel_mm") - max).abs() <= 1e-9 * max);
+    // The text says the maximum is of travel, and where it is reached.
+    let (_, text_out, _) = bowgrip(&["sweep", f, "--points", "3"]);
+    assert!(
+        text_out.contains(&format!(
+            "4.000 mm of travel, reached at {end:.3} mm of stroke"
+        )),
+        "{text_out}"
+    );
+    // A rigid drive keeps the maximum as a stroke: the sweep ends at it or at the limit.
+    let mut rigid = d.clone();
+    rigid.actuator.set_stiffness_n_per_mm(None);
+    let seg = segment(&rigid);
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let end = path.sweep(50).last().map_or(f64::NAN, |s| s.stroke_mm);
+    assert_eq!(end, path.limit_stroke_mm().min(4.0));
+}
+
+/// The stroke-against-bore window of a compliant design (springs in series, common
+/// practice): at each bore the curve of the actuator's maximum travel is the stroke where
+/// `stroke + pull / k_c` reaches it; a rigid design has no such curve.
+#[test]
+fn the_window_draws_the_maximum_travel_as_a_stroke_at_each_bore() {
+    let mut d = load("water-main-tractor-torque-screw.ron");
+    // A 2-turn screw: 4 mm of travel, used up short of the limit where the strips grip.
+    let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    *max_turns = 2.0;
+    let a = bowgrip::analysis::analyse(&d).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(a.travel_limit_window.len(), a.window.len());
+    let max = a.segment.max_stroke_mm();
+    let mut reached = 0;
+    for (row, &(bore, stroke)) in a.window.iter().zip(&a.travel_limit_window) {
+        assert_eq!(row.bore_mm, bore);
+        let Some(s) = stroke else { continue };
+        reached += 1;
+        let path = a.segment.at_bore(bore).unwrap_or_else(|e| panic!("{e}"));
+        let travel = actuation::travel_at_mm(&path, s);
+        assert!((travel - max).abs() <= 1e-9 * max, "bore {bore}: {travel}");
+    }
+    assert!(reached > a.window.len() / 4, "reached at {reached} bores");
+    let rigid = load("riser-climber-2in-sch40.ron");
+    let a = bowgrip::analysis::analyse(&rigid).unwrap_or_else(|e| panic!("{e}"));
+    assert!(a.travel_limit_window.is_empty());
+}
+
+/// The app's "As screw turns" row through a compliant drive (springs in series, common
+/// practice): it shows the screw turns of the actuator travel, stroke + pull / k_c, at the
+/// nominal bore, and a typed number of turns sets the first stroke whose travel is that
+/// many leads; a number of turns never reached is refused with the allowed range, and the
+/// design is kept.
+#[test]
+fn the_screw_turns_row_counts_the_travel_through_a_compliant_drive() {
+    use egui::accesskit::Role;
+    use egui_kittest::Harness;
+    use egui_kittest::kittest::Queryable;
+
+    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let app = bowgrip::app::GripApp::new(
+        state.path().to_path_buf(),
+        Some(sample("water-main-tractor-torque-screw.ron")),
+    );
+    let mut h = Harness::builder()
+        .with_size([1500.0, 1400.0])
+        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
+    h.run();
+    h.get_by_role_and_label(Role::RadioButton, "Stroke").click();
+    h.run();
+    let d = h.state().design().clone();
+    let Operating::Stroke(stroke) = d.operating() else {
+        panic!("switched to a stroke");
+    };
+    let Actuator::LeadScrew { lead_mm, .. } = d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    let seg = segment(&d);
+    let path = seg
+        .at_bore(seg.bore_nominal_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let turns = actuation::travel_at_mm(&path, stroke) / lead_mm;
+    assert!(
+        turns > stroke / lead_mm + 0.5,
+        "the tie rod stretches: {turns}"
+    );
+    let shown = h
+        .get_by_role_and_label(Role::TextInput, "As screw turns")
+        .value()
+        .and_then(|v| v.parse::<f64>().ok())
+        .unwrap_or(f64::NAN);
+    assert!((shown - turns).abs() <= 1e-3 * turns, "{shown} vs {turns}");
+
+    // 2.2 turns of a 2 mm lead: 4.4 mm of travel.
+    h.get_by_role_and_label(Role::TextInput, "As screw turns")
+        .set_text_value_accesskit("2.2");
+    h.run();
+    let Operating::Stroke(set) = h.state().design().operating() else {
+        panic!("still a stroke");
+    };
+    let travel = actuation::travel_at_mm(&path, set);
+    assert!((travel - 2.2 * lead_mm).abs() <= 1e-9 * travel, "{travel}");
+    assert!(set < 2.2 * lead_mm);
+
+    // 500 turns are never reached before the model's limit: refused, the design kept.
+    let before = h.state().design().clone();
+    h.get_by_role_and_label(Role::TextInput, "As screw turns")
+        .set_text_value_accesskit("500");
+    h.run();
+    h.run();
+    assert_eq!(*h.state().design(), before);
+    assert!(
+        h.query_by_label_contains("is never reached at the nominal bore")
+            .is_some()
+    );
+}
+
+/// The usable stroke across the tolerance (what `check` prints) through a compliant drive:
+/// the actuator's maximum is of travel (springs in series, common practice), so the range
+/// ends at the smallest bore where `stroke + pull / k_c` reaches it, short of the stress
+/// limit there and well short of the maximum taken as a stroke.
+#[test]
+fn the_usable_stroke_ends_where_the_travel_reaches_the_maximum() {
+    let mut d = load("water-main-tractor-torque-screw.ron");
+    let Actuator::LeadScrew { max_turns, .. } = &mut d.actuator else {
+        panic!("the sample has a lead screw");
+    };
+    *max_turns = 2.0;
+    let seg = segment(&d);
+    let path = seg
+        .at_bore(seg.bore_smallest_mm)
+        .unwrap_or_else(|e| panic!("{e}"));
+    let Some(reach) = actuation::stroke_at_travel_mm(&path, seg.max_stroke_mm()) else {
+        panic!("4 mm of travel is reached at the smallest bore");
+    };
+    let u = seg.usable_stroke_across_tolerance();
+    assert_eq!(
+        u.top,
+        Some((reach, bowgrip::quantities::StrokeBound::ActuatorTravel))
+    );
+    assert!(reach < seg.max_stroke_mm());
+    // A rigid drive keeps its maximum as a stroke.
+    d.actuator.set_stiffness_n_per_mm(None);
+    let seg = segment(&d);
+    let top = seg.usable_stroke_across_tolerance().top.map(|t| t.0);
+    assert!(top.is_some_and(|t| t > reach), "{top:?}");
+}

@@ -96,7 +96,9 @@ fn open_fit_apply_and_undo() {
     h.get_by_role_and_label(Role::CheckBox, "friction").click();
     h.run();
     h.get_by_role_and_label(Role::Button, "Fit").click();
-    h.run();
+    // One frame starts the fit; `run` would keep stepping while the spinner repaints, and
+    // a slow machine can take more than the harness's step limit to fit.
+    h.step();
     h.state_mut().wait_for_calibration();
     h.run();
     let fitted = h
