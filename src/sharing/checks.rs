@@ -214,7 +214,7 @@ fn no_judgement(p: &LoadedPoint) -> String {
 /// in contact, the case with the least holding.
 fn hold(seg: &Segment, p: &LoadedPoint) -> Check {
     let d = &seg.design;
-    let required = d.duty.holding_force_n * d.duty.safety_factor;
+    let required = seg.required_holding_force_n();
     let base = Check {
         id: CheckId::Hold,
         pass: false,
