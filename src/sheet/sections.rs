@@ -516,6 +516,23 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             f::mm(seg.bore_largest_mm)
         ),
     ));
+    // The load-sharing inputs, when the design gives them (otherwise the rows stay out, so
+    // designs without them print as before).
+    if d.bore.out_of_round_mm > 0.0 {
+        bore_rows.push(pair(
+            "Out of round (largest - smallest diameter)",
+            f::mm(d.bore.out_of_round_mm),
+        ));
+    }
+    if let Some(bend) = d.bore.bend {
+        bore_rows.push(pair("Bend to pass", bend.name()));
+    }
+    if d.end_plate_thickness_mm > 0.0 {
+        bore_rows.push(pair(
+            "End-plate thickness (each)",
+            f::mm(d.end_plate_thickness_mm),
+        ));
+    }
     group(&mut left, &mut y, "Bore", bore_rows);
     left.height = y;
 
@@ -583,6 +600,12 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         ),
         pair("Grip-release cycles", f::count(d.duty.cycles)),
     ]);
+    if d.duty.radial_load_n > 0.0 {
+        duty.push(pair(
+            "Radial load on the strips (straight down)",
+            f::newton(d.duty.radial_load_n),
+        ));
+    }
     group(&mut right, &mut y, "Operating stroke and duty", duty);
     right.height = y;
 

@@ -530,3 +530,31 @@ fn the_usable_stroke_range_is_printed_with_its_bounds() {
         "{text}"
     );
 }
+
+/// The inputs section prints the load-sharing inputs a design gives (radial load,
+/// out-of-roundness, bend, plate thickness) with their units, as the sample's header states
+/// them; a design without them prints none of these rows.
+#[test]
+fn the_inputs_name_the_load_sharing_fields_when_given() {
+    let (d, text) = sample("drain-crawler-horizontal-150mm.ron");
+    let pdf = sheet::render(&d, "drain.ron", text.as_bytes(), Paper::A4).expect("renders");
+    let flat = pdf_text(&pdf)
+        .1
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ");
+    for needle in [
+        "Radial load on the strips (straight down)",
+        "80.00 N",
+        "Out of round (largest - smallest diameter)",
+        "bend of 750 mm centreline radius",
+        "End-plate thickness (each)",
+    ] {
+        assert!(flat.contains(needle), "{needle}");
+    }
+    let (plain, text) = sample("riser-climber-2in-sch40.ron");
+    let pdf = sheet::render(&plain, "riser.ron", text.as_bytes(), Paper::A4).expect("renders");
+    let flat = pdf_text(&pdf).1;
+    assert!(!flat.contains("Radial load on the strips"));
+    assert!(!flat.contains("Out of round"));
+}
