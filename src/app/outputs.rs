@@ -315,6 +315,24 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         });
     });
+    apply_stroke_drag(app, ui.ctx());
+}
+
+/// Applies a drag of the operating-stroke line as an edit of the design's stroke: ongoing
+/// while the button is held, one undo step when it is released. A stroke the design file
+/// would refuse is not applied.
+fn apply_stroke_drag(app: &mut GripApp, ctx: &egui::Context) {
+    let Some(drag) = ctx.data_mut(|d| d.remove_temp::<StrokeDrag>(stroke_drag_id())) else {
+        return;
+    };
+    let mut next = app.design().clone();
+    next.set_operating(crate::design::Operating::Stroke(drag.stroke_mm));
+    if next != *app.design() && next.validate().is_ok() {
+        app.push(Command::Edit(Box::new(next), super::Gesture::Ongoing));
+    }
+    if drag.done {
+        app.push(Command::EndGesture);
+    }
 }
 
 /// One plot cell: the heading (its explanation on hover) with, right-aligned, a note
@@ -694,6 +712,7 @@ fn force_plot_ui(
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("force-plot", "stroke, mm", "force, N", height)
+        .allow_drag(false)
         .label_formatter(move |hover| {
             let (_, p) = hovered(hover);
             Some(stroke_hover(curve, hover, format!("{:.2} N", p.y), true))
@@ -716,6 +735,7 @@ fn force_plot_ui(
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
     legend.extend(marks.iter().map(|m| m.0));
     band_labels_ui(ui, &shown.transform, &bands, &legend);
+    drag_operating_line_ui(ui, &shown, a, "force");
 }
 
 fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str, f64)]) {
@@ -729,6 +749,7 @@ fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
     let shown = plot_frame("stress-plot", "stroke, mm", "stress, MPa", height)
+        .allow_drag(false)
         .label_formatter(move |hover| {
             let (_, p) = hovered(hover);
             Some(stroke_hover(curve, hover, format!("{:.1} MPa", p.y), false))
@@ -755,6 +776,62 @@ fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
     legend.extend(marks.iter().map(|m| m.0));
     band_labels_ui(ui, &shown.transform, &bands, &legend);
+    drag_operating_line_ui(ui, &shown, a, "stress");
+}
+
+/// A stroke asked for by dragging the operating-stroke line of a plot against stroke.
+#[derive(Clone, Copy, Debug, Default)]
+struct StrokeDrag {
+    stroke_mm: f64,
+    /// The button was released: the gesture ends (one undo step for the whole drag).
+    done: bool,
+}
+
+/// Where a drag of the operating-stroke line leaves its request for `results_ui`.
+fn stroke_drag_id() -> egui::Id {
+    egui::Id::unique("operating-stroke-drag")
+}
+
+/// Lets the user drag the dashed operating-stroke line of a plot against stroke, when the
+/// design sets a stroke (under a set pull or torque the stroke follows from the pull):
+/// the cursor shows a horizontal resize within 6 px of the line, a drag that starts there
+/// moves it, and the stroke under the pointer is left for `results_ui` to apply.
+fn drag_operating_line_ui(ui: &Ui, shown: &egui_plot::PlotResponse<()>, a: &Analysis, plot: &str) {
+    let Some(op) = a.nominal_operating_stroke_mm() else {
+        return;
+    };
+    if !matches!(
+        a.segment.design.operating(),
+        crate::design::Operating::Stroke(_)
+    ) {
+        return;
+    }
+    let resp = &shown.response;
+    let line_x = shown
+        .transform
+        .position_from_point(&egui_plot::PlotPoint::new(op, 0.0))
+        .x;
+    let near = |pos: Pos2| (pos.x - line_x).abs() <= 6.0 && resp.rect.contains(pos);
+    let grab = resp.id.with(plot).with("grabbed");
+    let ctx = ui.ctx();
+    let mut grabbed = ctx.data(|d| d.get_temp::<bool>(grab)).unwrap_or(false);
+    if resp.drag_started() && resp.interact_pointer_pos().is_some_and(near) {
+        grabbed = true;
+    }
+    if grabbed || resp.hover_pos().is_some_and(near) {
+        ctx.set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
+    }
+    if grabbed {
+        let done = resp.drag_stopped() || !resp.dragged();
+        if let Some(pos) = resp.interact_pointer_pos().or(resp.hover_pos()) {
+            let stroke_mm = shown.transform.value_from_position(pos).x.max(0.0);
+            ctx.data_mut(|d| d.insert_temp(stroke_drag_id(), StrokeDrag { stroke_mm, done }));
+        }
+        if done {
+            grabbed = false;
+        }
+    }
+    ctx.data_mut(|d| d.insert_temp(grab, grabbed));
 }
 
 /// Maps model coordinates (mm) to the screen with one scale for both axes.

@@ -126,3 +126,56 @@ fn the_stroke_slider_spans_the_usable_strokes() {
     assert_eq!(node.min_numeric_value(), Some(0.0));
     assert_eq!(node.max_numeric_value(), Some(expect));
 }
+
+/// Issue 16, item 1: the operating stroke can be dragged on the force plot. The cursor
+/// turns into a horizontal resize over the dashed line; dragging it 40 px to the right
+/// raises the stroke, and one undo takes the whole drag back.
+#[test]
+fn the_operating_stroke_line_drags_on_the_force_plot() {
+    let riser = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs/riser-climber-2in-sch40.ron");
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let app = GripApp::new(state.path().to_path_buf(), Some(riser));
+    let mut h = Harness::builder()
+        .with_size([1680.0, 1050.0])
+        .build_ui_state(|ui, app: &mut GripApp| app.ui(ui), app);
+    h.run();
+    let before = h.state().design().operating();
+    let plot = h.state().plot_rects()[1].expect("force plot");
+    let y = plot.center().y;
+    // Find the line by the cursor it shows.
+    let mut line_x = None;
+    let mut x = plot.left() + 40.0;
+    while x < plot.right() - 10.0 {
+        h.hover_at(egui::pos2(x, y));
+        h.run();
+        if h.output().platform_output.cursor_icon == egui::CursorIcon::ResizeHorizontal {
+            line_x = Some(x);
+            break;
+        }
+        x += 3.0;
+    }
+    let x = line_x.expect("the operating-stroke line shows a resize cursor");
+    h.drag_at(egui::pos2(x, y));
+    h.run();
+    for step in 1..=4 {
+        h.hover_at(egui::pos2(x + 10.0 * step as f32, y));
+        h.run();
+    }
+    h.drop_at(egui::pos2(x + 40.0, y));
+    h.run();
+    let after = h.state().design().operating();
+    let (bowgrip::design::Operating::Stroke(s0), bowgrip::design::Operating::Stroke(s1)) =
+        (before, after)
+    else {
+        panic!("{before:?} -> {after:?}");
+    };
+    assert!(s1 > s0 + 0.05, "{s0} -> {s1}");
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::Z);
+    h.run();
+    assert_eq!(
+        h.state().design().operating(),
+        before,
+        "one undo takes the drag back"
+    );
+}
