@@ -615,6 +615,59 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
 /// An export: button label, file ending, and the text to write.
 type ExportJob<'a> = (&'static str, &'static str, Box<dyn Fn() -> String + 'a>);
 
+/// The reference lines the app and the sheet draw on each plot, for its SVG export: the
+/// operating stroke and the tolerance ends on the stroke-against-bore plot; the operating
+/// stroke with the required holding force (forces) or the static and fatigue allowables
+/// (stress). They span the curves' own range, so they never stretch the axes.
+fn svg_references(
+    a: &crate::analysis::Analysis,
+    title: &str,
+    curves: &[export::SvgSeries],
+) -> Vec<export::SvgSeries> {
+    let Some([x0, x1, y0, y1]) = export::span(curves) else {
+        return Vec::new();
+    };
+    let seg = &a.segment;
+    let op = a.nominal_operating_stroke_mm();
+    let line = export::SvgSeries::reference;
+    let mut out = Vec::new();
+    if title.starts_with("Stroke against bore") {
+        if let Some(op) = op.filter(|v| (y0..=y1).contains(v)) {
+            out.push(line("operating stroke", "#444444", [x0, op], [x1, op]));
+        }
+        for (name, bore) in [
+            ("smallest bore", seg.bore_smallest_mm),
+            ("largest bore", seg.bore_largest_mm),
+        ] {
+            if (x0..=x1).contains(&bore) {
+                out.push(line(name, "#6a6aa8", [bore, y0], [bore, y1]));
+            }
+        }
+        return out;
+    }
+    if let Some(op) = op.filter(|v| (x0..=x1).contains(v)) {
+        out.push(line("operating stroke", "#444444", [op, y0], [op, y1]));
+    }
+    let levels: Vec<(&str, f64, &str)> = if title.starts_with("Forces") {
+        vec![(
+            "load x safety factor",
+            seg.required_holding_force_n(),
+            "#2e8b57",
+        )]
+    } else {
+        vec![
+            ("static allowable", seg.static_allowable_mpa, "#c0392b"),
+            ("fatigue allowable", seg.fatigue_allowable_mpa, "#8e44ad"),
+        ]
+    };
+    for (name, v, color) in levels {
+        if v.is_finite() && v <= 1.5 * y1 {
+            out.push(line(name, color, [x0, v], [x1, v]));
+        }
+    }
+    out
+}
+
 fn export_window(app: &mut GripApp, ctx: &Context) {
     let mut open = app.dialogs.show_export;
     let mut close_now = false;
@@ -635,7 +688,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
             };
             let base = app.dialogs.export_base.trim().to_string();
             let svg = |title: &str, x: &str, y: &str, curves: Vec<outputs::Curve>| {
-                let series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
+                let mut series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
+                series.extend(svg_references(a, title, &series));
                 export::svg_chart(title, x, y, &series)
             };
             let jobs: [ExportJob<'_>; 5] = [
@@ -854,5 +908,41 @@ fn print_sheet(app: &mut GripApp) {
                 ));
             }
         },
+    }
+}
+
+#[cfg(test)]
+mod svg_reference_tests {
+    use super::{export, outputs, svg_references};
+
+    /// The exported plots carry the sheet's reference lines, dashed: the operating stroke
+    /// at the analysis' own value and the required holding force on the force plot; the
+    /// tolerance ends on the stroke-against-bore plot; both allowables on the stress plot.
+    #[test]
+    fn exported_plots_carry_the_reference_lines() {
+        let a = crate::analysis::analyse(&crate::design::Design::default()).expect("analyses");
+        let op = a
+            .nominal_operating_stroke_mm()
+            .expect("an operating stroke");
+        let svg = |title: &str, curves: Vec<outputs::Curve>| {
+            let series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
+            let refs = svg_references(&a, title, &series);
+            let names: Vec<String> = refs.iter().map(|r| r.name.clone()).collect();
+            assert!(refs.iter().all(|r| r.dashed));
+            (refs, names)
+        };
+        let (refs, names) = svg(
+            "Forces against stroke, nominal bore",
+            outputs::force_curves(&a),
+        );
+        assert_eq!(names, ["operating stroke", "load x safety factor"]);
+        assert_eq!(refs[0].runs[0][0][0], op);
+        assert_eq!(refs[1].runs[0][0][1], a.segment.required_holding_force_n());
+        let (_, names) = svg("Stroke against bore", outputs::window_curves(&a));
+        assert_eq!(names, ["operating stroke", "smallest bore", "largest bore"]);
+        let (_, names) = svg("Peak stress against stroke", outputs::stress_curves(&a));
+        assert!(names.contains(&"static allowable".to_string()));
+        let chart = export::svg_chart("t", "x", "y", &refs);
+        assert!(chart.contains("stroke-dasharray"));
     }
 }

@@ -46,6 +46,41 @@ pub struct SvgSeries {
     pub color: String,
     /// Each run is drawn as one polyline.
     pub runs: Vec<Vec<[f64; 2]>>,
+    /// Drawn dashed: a reference line (operating stroke, tolerance ends, allowables).
+    pub dashed: bool,
+}
+
+impl SvgSeries {
+    /// A dashed straight reference line from `a` to `b`.
+    pub fn reference(name: &str, color: &str, a: [f64; 2], b: [f64; 2]) -> SvgSeries {
+        SvgSeries {
+            name: name.to_string(),
+            color: color.to_string(),
+            runs: vec![vec![a, b]],
+            dashed: true,
+        }
+    }
+}
+
+/// The span of the finite points of `series`, `[x0, x1, y0, y1]`; `None` when there are none.
+pub fn span(series: &[SvgSeries]) -> Option<[f64; 4]> {
+    let mut out = [
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+    ];
+    for p in series.iter().flat_map(|s| s.runs.iter().flatten()) {
+        if p[0].is_finite() && p[1].is_finite() {
+            out = [
+                out[0].min(p[0]),
+                out[1].max(p[0]),
+                out[2].min(p[1]),
+                out[3].max(p[1]),
+            ];
+        }
+    }
+    (out[0] <= out[1]).then_some(out)
 }
 
 /// A simple line chart as SVG: frame, axis labels with units, grid lines and tick values
@@ -141,8 +176,13 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
             if path.len() >= 2 {
                 let _ = writeln!(
                     s,
-                    r#"<polyline fill="none" stroke="{}" stroke-width="1.6" points="{}"/>"#,
+                    r#"<polyline fill="none" stroke="{}" stroke-width="1.6"{} points="{}"/>"#,
                     ser.color,
+                    if ser.dashed {
+                        r#" stroke-dasharray="6 4""#
+                    } else {
+                        ""
+                    },
                     path.join(" ")
                 );
             }
@@ -233,6 +273,7 @@ mod tests {
     #[test]
     fn svg_has_one_polyline_per_run_and_escapes_text() {
         let series = [SvgSeries {
+            dashed: false,
             name: "a<b".into(),
             color: "#112233".into(),
             runs: vec![

@@ -50,6 +50,7 @@ impl Curve {
             name: self.name.to_string(),
             color: format!("#{r:02x}{g:02x}{b:02x}"),
             runs: self.runs.clone(),
+            dashed: false,
         }
     }
 
