@@ -232,27 +232,6 @@ pub fn layout_dated(
     )
 }
 
-/// Lays the sheet out with the given date, and with a page of bench measurements against
-/// the model when `measured` is given.
-pub fn layout_measured(
-    design: &Design,
-    file_label: &str,
-    file_bytes: &[u8],
-    paper: Paper,
-    date: &str,
-    measured: Option<&Measured>,
-) -> anyhow::Result<SheetLayout> {
-    layout_with(
-        design,
-        file_label,
-        file_bytes,
-        paper,
-        date,
-        measured,
-        &SheetOptions::default(),
-    )
-}
-
 /// Lays the sheet out with every optional part: bench measurements when `measured` is
 /// given, and the parts `options` asks for (with the given date text).
 pub fn layout_with(
@@ -280,6 +259,10 @@ pub fn layout_with(
     let mut sections = sections::build(&analysis, &meta, content_w);
     // Optional parts go before the closing text sections (assumptions, references, cautions).
     let mut extra = Vec::new();
+    extra.extend(bench::calibration_section(&analysis, content_w));
+    if let Some(m) = measured {
+        extra.push(bench::section(&analysis, m, content_w));
+    }
     if let Some(spec) = &design.scatter {
         extra.push(scatter::section(design, spec, content_w)?);
     }
@@ -291,10 +274,6 @@ pub fn layout_with(
         .position(|s| s.title == CLOSING_FIRST)
         .unwrap_or(sections.len());
     sections.splice(at..at, extra);
-    sections.extend(bench::calibration_section(&analysis, content_w));
-    if let Some(m) = measured {
-        sections.push(bench::section(&analysis, m, content_w));
-    }
     Ok(paginate(
         sections, &meta, &analysis, paper, printable, design,
     ))
@@ -345,26 +324,6 @@ pub fn render_with(
         &format::now_utc(),
         measured,
         options,
-    )?;
-    write_pdf(&laid, design)
-}
-
-/// Renders the sheet with a page of bench measurements against the model (see
-/// [`layout_measured`]).
-pub fn render_measured(
-    design: &Design,
-    file_label: &str,
-    file_bytes: &[u8],
-    paper: Paper,
-    measured: Option<&Measured>,
-) -> anyhow::Result<Vec<u8>> {
-    let laid = layout_measured(
-        design,
-        file_label,
-        file_bytes,
-        paper,
-        &format::now_utc(),
-        measured,
     )?;
     write_pdf(&laid, design)
 }
