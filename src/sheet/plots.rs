@@ -383,7 +383,7 @@ pub(super) fn curve_plots(a: &Analysis, width: f32) -> Section {
         Weight::Regular,
         GREY,
         &format!(
-            "Curves run from 0 to {} (the smaller of the model limit and {}). Holding force is static friction times the radial force; it enters no shape calculation.",
+            "Curves run from 0 to {} (the smaller of the model limit and {}). Holding force is static friction times the radial force; it enters no shape calculation. The peak stress dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them and at first falls (linear beam-column theory of a clamped strut pressed at mid-span shows the same dip).",
             f::mm(end),
             if a.travel_limit_window.is_empty() {
                 "the actuator maximum stroke"

@@ -558,3 +558,19 @@ fn the_inputs_name_the_load_sharing_fields_when_given() {
     assert!(!flat.contains("Radial load on the strips"));
     assert!(!flat.contains("Out of round"));
 }
+
+/// Issue 16, item 10: the sheet explains the dip of the peak-stress curve where it draws it.
+#[test]
+fn the_stress_plot_explains_its_dip() {
+    let (d, text) = sample("riser-climber-2in-sch40.ron");
+    let pdf = sheet::render(&d, "riser.ron", text.as_bytes(), Paper::A4).expect("renders");
+    let flat = pdf_text(&pdf)
+        .1
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(
+        flat.contains("The peak stress dips just after first contact, and that is physics"),
+        "{flat}"
+    );
+}
