@@ -29,9 +29,24 @@ pub struct CompareArgs {
     #[arg(long, value_name = "FACTORS", value_parser = fit_list)]
     pub fit: Option<FitList>,
     /// Print one JSON object instead of a table.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "csv")]
     pub json: bool,
+    /// Print one CSV row per measured value instead of a table: quantity, line, stroke_mm,
+    /// bore_mm, measured, model, residual (the model after the fit when --fit is given).
+    #[arg(long)]
+    pub csv: bool,
 }
+
+/// Columns of `compare --csv`, in order.
+pub const CSV_COLUMNS: [&str; 7] = [
+    "quantity",
+    "line",
+    "stroke_mm",
+    "bore_mm",
+    "measured",
+    "model",
+    "residual",
+];
 
 /// The factors named by `--fit`, each once.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -75,6 +90,23 @@ pub fn run(a: &CompareArgs, out: &mut impl Write) -> anyhow::Result<()> {
         let v = to_json(&before, fit.as_ref(), after.as_deref());
         serde_json::to_writer(&mut *out, &v)?;
         writeln!(out)?;
+    } else if a.csv {
+        writeln!(out, "{}", CSV_COLUMNS.join(","))?;
+        for q in after.as_deref().unwrap_or(&before) {
+            for r in &q.points {
+                writeln!(
+                    out,
+                    "{},{},{},{},{},{},{}",
+                    q.quantity.column(),
+                    r.line,
+                    r.stroke_mm,
+                    r.bore_mm,
+                    r.measured,
+                    r.predicted,
+                    r.residual()
+                )?;
+            }
+        }
     } else {
         let text = table(
             &design,

@@ -813,3 +813,47 @@ fn sweep_bores_and_check_print_both_json_and_csv() {
         }
     }
 }
+
+/// Issue 16, item 8: `compare --csv` gives one row per measured value; per quantity its
+/// rows match `compare --json` (the number of points, and the root mean square of the
+/// residual column, sqrt(sum r^2 / n), equals the reported `rms`), with and without a fit.
+#[test]
+fn compare_prints_one_csv_row_per_measured_value() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-designs");
+    let design = root.join("riser-climber-2in-sch40.ron");
+    let bench = root.join("riser-climber-2in-sch40.bench.csv");
+    for fit in [None, Some("modulus,offset")] {
+        let mut args = vec!["compare", s(&design), "--measured", s(&bench)];
+        if let Some(f) = fit {
+            args.extend(["--fit", f]);
+        }
+        let csv = run(&[args.as_slice(), &["--csv"]].concat());
+        let js = json(&run(&[args.as_slice(), &["--json"]].concat()).stdout);
+        assert_eq!(csv.code, Some(0), "{}", csv.stderr);
+        let mut lines = csv.stdout.lines();
+        assert_eq!(
+            lines.next(),
+            Some("quantity,line,stroke_mm,bore_mm,measured,model,residual")
+        );
+        let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+        let residuals = js["residuals"].as_object().expect("residuals");
+        let mut total = 0;
+        for (column, summary) in residuals {
+            let r: Vec<f64> = rows
+                .iter()
+                .filter(|row| row[0] == column)
+                .map(|row| row[6].parse().expect("a number"))
+                .collect();
+            let points = summary["points"].as_u64().expect("points") as usize;
+            assert_eq!(r.len(), points, "{column}");
+            let rms = (r.iter().map(|x| x * x).sum::<f64>() / r.len() as f64).sqrt();
+            let want = num(summary, "rms");
+            assert!(
+                (rms - want).abs() <= 1e-12 * want,
+                "{column}: {rms} vs {want}"
+            );
+            total += points;
+        }
+        assert_eq!(total, rows.len());
+    }
+}
