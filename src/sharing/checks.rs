@@ -212,22 +212,25 @@ fn no_judgement(p: &LoadedPoint) -> String {
 
 /// Holding at the largest bore: friction times the contact forces summed over the strips
 /// in contact, the case with the least holding.
+/// A check of `id` at the point's bore and stroke that could not be judged there (the
+/// reason says why); the judged checks start from it and fill in verdict and margin.
+fn unjudged(id: CheckId, p: &LoadedPoint) -> Check {
+    Check {
+        id,
+        pass: false,
+        margin: None,
+        reason: no_judgement(p),
+        bore_mm: Some(p.bore_mm),
+        stroke_mm: Some(p.stroke_mm),
+    }
+}
+
 fn hold(seg: &Segment, p: &LoadedPoint) -> Check {
     let d = &seg.design;
     let required = seg.required_holding_force_n();
-    let base = Check {
-        id: CheckId::Hold,
-        pass: false,
-        margin: None,
-        reason: String::new(),
-        bore_mm: Some(p.bore_mm),
-        stroke_mm: Some(p.stroke_mm),
-    };
+    let base = unjudged(CheckId::Hold, p);
     let Some(c) = &p.checks else {
-        return Check {
-            reason: no_judgement(p),
-            ..base
-        };
+        return base;
     };
     let h = c.holding_force_n;
     let over = format!(
@@ -365,19 +368,9 @@ fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check 
 /// as such and fails only when holding fails. Margin: the operating stroke minus the stroke
 /// at which the last strip touches, mm, when the top strip touches; none when it does not.
 fn top_strip(p: &LoadedPoint, hold_pass: bool) -> Check {
-    let base = Check {
-        id: CheckId::TopStrip,
-        pass: false,
-        margin: None,
-        reason: String::new(),
-        bore_mm: Some(p.bore_mm),
-        stroke_mm: Some(p.stroke_mm),
-    };
+    let base = unjudged(CheckId::TopStrip, p);
     let Some(c) = &p.checks else {
-        return Check {
-            reason: no_judgement(p),
-            ..base
-        };
+        return base;
     };
     let last = p.last_strip_contact_stroke_mm;
     let margin = last.map(|s| p.stroke_mm - s);

@@ -251,21 +251,7 @@ impl<'a> BoreCases<'a> {
                 choice.major_axis.unwrap_or(MajorAxis::Vertical),
             ));
         }
-        let cases = cases
-            .into_iter()
-            .map(|(clocking, major_axis)| {
-                let case = Loading {
-                    clocking,
-                    major_axis,
-                    ..loading.clone()
-                };
-                Ok((
-                    clocking,
-                    major_axis,
-                    segment.loaded_at_bore(bore_mm, &case)?,
-                ))
-            })
-            .collect::<Result<Vec<_>, SharingError>>()?;
+        let cases = super::set_up_cases(segment, loading, &cases, bore_mm)?;
         Ok(BoreCases { bore_mm, cases })
     }
 

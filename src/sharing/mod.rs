@@ -958,7 +958,18 @@ fn governing_of(
     stroke_mm: f64,
     judge: Judge,
 ) -> Result<Governing, SharingError> {
-    let bores = cases
+    let bores = set_up_cases(segment, loading, cases, bore_mm)?;
+    governing_among(&bores, stroke_mm, judge).map(|(g, _)| g)
+}
+
+/// Each case set up at `bore_mm`: the loading with the case's clocking and major axis.
+pub(crate) fn set_up_cases<'a>(
+    segment: &'a Segment,
+    loading: &Loading,
+    cases: &[(Clocking, MajorAxis)],
+    bore_mm: f64,
+) -> Result<Vec<(Clocking, MajorAxis, LoadedBore<'a>)>, SharingError> {
+    cases
         .iter()
         .map(|&(clocking, major_axis)| {
             let case = Loading {
@@ -972,8 +983,7 @@ fn governing_of(
                 segment.loaded_at_bore(bore_mm, &case)?,
             ))
         })
-        .collect::<Result<Vec<_>, SharingError>>()?;
-    governing_among(&bores, stroke_mm, judge).map(|(g, _)| g)
+        .collect()
 }
 
 /// The worse of the set-up cases (not empty) by `judge`, with its index.
