@@ -15,6 +15,7 @@
 
 pub mod command;
 pub mod model;
+pub mod shared;
 pub mod spec;
 pub mod stats;
 
@@ -28,6 +29,7 @@ use crate::design::Design;
 use crate::segment::SegmentError;
 
 pub use model::{CentredModel, CheckInfo, MarginModel, Outcome};
+pub use shared::SharedModel;
 pub use spec::{DistributionKind, Input, SampleInputs, ScatterSpec, Spread, Tolerance};
 pub use stats::{Histogram, Z_95, wilson_interval};
 
@@ -124,7 +126,9 @@ pub struct WorstCase {
     /// The check's id.
     pub id: &'static str,
     /// Its outcome with every input at the end of its tolerance in the harmful
-    /// direction (per strip), the direction taken from that input alone at each end.
+    /// direction (per strip), the direction taken from that input alone at each end, then
+    /// each per-strip input turned to its other end where that is more harmful with the
+    /// rest at the corner (strips that differ move the hub).
     pub outcome: Outcome,
 }
 
@@ -174,18 +178,19 @@ pub struct Control<'a> {
     pub progress: Option<&'a mut dyn FnMut(&ScatterReport)>,
 }
 
-/// Runs a design's scatter with the centred model, to the end.
+/// Runs a design's scatter with the load-sharing model ([`SharedModel`]), to the end.
 pub fn run(design: &Design, spec: &ScatterSpec) -> Result<ScatterReport, ScatterError> {
     run_with(design, spec, Control::default())
 }
 
-/// Runs a design's scatter with the centred model, with a cancel flag and progress.
+/// Runs a design's scatter with the load-sharing model ([`SharedModel`]), with a cancel
+/// flag and progress.
 pub fn run_with(
     design: &Design,
     spec: &ScatterSpec,
     control: Control<'_>,
 ) -> Result<ScatterReport, ScatterError> {
-    let model = CentredModel::new(design).map_err(ScatterError::Design)?;
+    let model = SharedModel::new(design).map_err(ScatterError::Design)?;
     run_model(&model, spec, control)
 }
 
@@ -310,15 +315,33 @@ fn deterministic<M: MarginModel>(
         .enumerate()
         .map(|(k, info)| {
             let mut x = centre_x.clone();
+            let mut signs = Vec::with_capacity(inputs.len());
             for (&(input, s), (low, high)) in inputs.iter().zip(&ends) {
                 let delta = if high[k].value() < low[k].value() {
                     s.half_width
                 } else {
                     -s.half_width
                 };
+                signs.push(delta);
                 x = x.moved(input, delta);
             }
-            let out = eval(&x)?;
+            let mut out = eval(&x)?;
+            // Strips that differ move the hub, so a strip's harmful end can depend on the
+            // others': one pass turns each per-strip input to its other end where that is
+            // more harmful with the rest at the corner.
+            if n > 1 {
+                for (&(input, _), &delta) in inputs.iter().zip(&signs) {
+                    if !input.per_strip() {
+                        continue;
+                    }
+                    let turned = x.moved(input, -2.0 * delta);
+                    let o = eval(&turned)?;
+                    if o[k].value() < out[k].value() {
+                        x = turned;
+                        out = o;
+                    }
+                }
+            }
             Ok(WorstCase {
                 id: info.id,
                 outcome: out[k],

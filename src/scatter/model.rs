@@ -211,6 +211,12 @@ impl MarginModel for CentredModel {
     }
 }
 
+/// The worst of several outcomes (every one must pass; the least margin).
+pub(super) fn combine_worst(per: &[Outcome]) -> Outcome {
+    let with: Vec<(Outcome, usize)> = per.iter().map(|o| (*o, 1)).collect();
+    combine(Combine::Worst, &with, per.len())
+}
+
 /// The segment's outcome from the per-strip ones, each with its multiplicity.
 fn combine(rule: Combine, per: &[(Outcome, usize)], n: usize) -> Outcome {
     let all_pass = per.iter().all(|(o, _)| o.pass);

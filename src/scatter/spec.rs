@@ -172,6 +172,16 @@ pub enum Input {
     Friction,
 }
 
+impl Input {
+    /// Whether the input belongs to one strip (thickness, width or free length).
+    pub fn per_strip(self) -> bool {
+        matches!(
+            self,
+            Input::Thickness(_) | Input::Width(_) | Input::FreeLength(_)
+        )
+    }
+}
+
 /// A file-level tolerance, as the sensitivities name it: per-strip ones move every strip
 /// together.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -14,9 +14,9 @@ use crate::checks::{Check, CheckId};
 use crate::segment::Segment;
 
 use super::entry::{
-    BoreCases, CaseChoice, LoadedPoint, checks_with, design_uses_sharing, loading_of,
+    BoreCases, CaseChoice, LoadedPoint, SharingChecks, checks_with, design_uses_sharing, loading_of,
 };
-use super::{BoreStrokes, Clocking, Loading, MajorAxis};
+use super::{BoreStrokes, Clocking, Loading, MajorAxis, SharingError};
 
 /// Replaces the centred checks that load sharing changes and appends `top-strip` and (when
 /// the design gives a bend) `bend`. Does nothing for a design without load-sharing fields,
@@ -25,20 +25,64 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
     if !design_uses_sharing(&seg.design) {
         return;
     }
+    amend_loading(seg, &loading_of(&seg.design), checks);
+}
+
+/// [`amend`] under any loading (e.g. the design's with unequal strips), whether or not the
+/// design uses a load-sharing field: every state and stroke solved in full.
+pub fn amend_loading(seg: &Segment, loading: &Loading, checks: &mut Vec<Check>) {
+    amend_by(seg, loading, checks, |small, large, op_small, op_large| {
+        let l = checks_with(seg, small, large, op_small, op_large)?;
+        Ok(Judged {
+            small_strokes: case_strokes(small),
+            large_strokes: case_strokes(large),
+            sharing: l,
+        })
+    });
+}
+
+/// What the amended checks read: the three judged points and every case's strokes at the
+/// smallest and the largest bore (in the order of [`BoreCases::each`]).
+pub(crate) struct Judged {
+    /// The judged points (stress, holding, top strip).
+    pub sharing: SharingChecks,
+    /// Strokes of each case at the smallest bore (or why there are none).
+    pub small_strokes: CaseStrokes,
+    /// Strokes of each case at the largest bore.
+    pub large_strokes: CaseStrokes,
+}
+
+/// Each case's clocking, major axis and bore-level strokes (or why there are none).
+pub(crate) type CaseStrokes = Vec<(Clocking, MajorAxis, Result<BoreStrokes, String>)>;
+
+fn case_strokes(cases: &BoreCases<'_>) -> CaseStrokes {
+    cases
+        .each()
+        .map(|(c, a, l)| (c, a, l.strokes().map_err(|e| e.to_string())))
+        .collect()
+}
+
+/// [`amend`]'s rules with the judged points and strokes from `judge` (given the cases set
+/// up at the smallest and the largest bore and the operating stroke at each).
+pub(crate) fn amend_by(
+    seg: &Segment,
+    loading: &Loading,
+    checks: &mut Vec<Check>,
+    judge: impl FnOnce(&BoreCases<'_>, &BoreCases<'_>, f64, f64) -> Result<Judged, SharingError>,
+) {
     let all = CaseChoice::default();
     let (op_small, op_large) = (
         operating_stroke_at(seg, seg.bore_smallest_mm),
         operating_stroke_at(seg, seg.bore_largest_mm),
     );
-    let cases = BoreCases::new(seg, seg.bore_smallest_mm, all).and_then(|small| {
-        let large = BoreCases::new(seg, seg.bore_largest_mm, all)?;
-        Ok((small, large))
-    });
+    let cases =
+        BoreCases::with_loading(seg, loading, seg.bore_smallest_mm, all).and_then(|small| {
+            let large = BoreCases::with_loading(seg, loading, seg.bore_largest_mm, all)?;
+            Ok((small, large))
+        });
     let loaded = match (&cases, op_small, op_large) {
         (Ok((small, large)), Some(op_small), Some(op_large)) => {
-            checks_with(seg, small, large, op_small, op_large)
-                .map(|l| (l, small, large))
-                .map_err(|e| e.to_string())
+            judge(small, large, op_small, op_large).map_err(|e| e.to_string())
         }
         (Err(e), _, _) => Err(e.to_string()),
         _ => Err("the actuator's set pull is never reached at the smallest or the largest bore, so there is no operating stroke to judge".to_string()),
@@ -50,15 +94,16 @@ pub fn amend(seg: &Segment, checks: &mut Vec<Check>) {
         }
     };
     match loaded {
-        Ok((l, small, large)) => {
-            replace(checks, reach(seg, large));
+        Ok(j) => {
+            let l = &j.sharing;
+            replace(checks, reach(seg, loading, &j.large_strokes));
             let hold = hold(seg, &l.holding);
             let hold_pass = hold.pass;
             replace(checks, hold);
             for c in stress_checks(seg, &l.stress) {
                 replace(checks, c);
             }
-            replace(checks, stroke(seg, &l.stress, small));
+            replace(checks, stroke(seg, loading, &l.stress, &j.small_strokes));
             checks.push(top_strip(&l.top_strip, hold_pass));
         }
         Err(e) => {
@@ -126,8 +171,7 @@ fn case_words(loading: &Loading, clocking: Clocking, axis: MajorAxis) -> String 
 /// Reach under load sharing, at the largest bore: the strips must lift the hub off its rest
 /// (carry all of the radial load) within the actuator's maximum stroke, in every case; with
 /// no radial load, the first strip must touch. The worst case (the latest lift-off) governs.
-fn reach(seg: &Segment, large_cases: &BoreCases<'_>) -> Check {
-    let loading = loading_of(&seg.design);
+fn reach(seg: &Segment, loading: &Loading, large_cases: &CaseStrokes) -> Check {
     let large = seg.bore_largest_mm;
     let max_stroke = seg.max_stroke_mm();
     let loaded = loading.radial_load_n > 0.0;
@@ -141,10 +185,10 @@ fn reach(seg: &Segment, large_cases: &BoreCases<'_>) -> Check {
     };
     // The latest lift-off over the cases (`None` in a case: never, which governs).
     let mut worst: Option<(f64, String)> = None;
-    for (clocking, axis, loaded_bore) in large_cases.each() {
-        let words = case_words(&loading, clocking, axis);
-        let strokes: BoreStrokes = match loaded_bore.strokes() {
-            Ok(s) => s,
+    for (clocking, axis, strokes) in large_cases {
+        let words = case_words(loading, *clocking, *axis);
+        let strokes: BoreStrokes = match strokes {
+            Ok(s) => *s,
             Err(e) => return fail(format!("{words}: {e}"), None),
         };
         let Some(first) = strokes.first_strip_contact_stroke_mm else {
@@ -337,18 +381,17 @@ fn stress_checks(seg: &Segment, p: &LoadedPoint) -> Vec<Check> {
 
 /// The operating stroke at the smallest bore: within the actuator and short of the
 /// segment's limit (the first strip to reach its own), the earliest limit over the cases.
-fn stroke(seg: &Segment, p: &LoadedPoint, small_cases: &BoreCases<'_>) -> Check {
+fn stroke(seg: &Segment, loading: &Loading, p: &LoadedPoint, small_cases: &CaseStrokes) -> Check {
     let op = p.stroke_mm;
     let max_stroke = seg.max_stroke_mm();
-    let loading = loading_of(&seg.design);
     let mut limit = p.limit_stroke_mm;
     let mut words = String::from("the governing stress case");
-    for (clocking, axis, loaded_bore) in small_cases.each() {
-        if let Ok(s) = loaded_bore.strokes()
+    for (clocking, axis, strokes) in small_cases {
+        if let Ok(s) = strokes
             && s.limit_stroke_mm < limit
         {
             limit = s.limit_stroke_mm;
-            words = case_words(&loading, clocking, axis);
+            words = case_words(loading, *clocking, *axis);
         }
     }
     Check {
@@ -409,7 +452,7 @@ fn top_strip(p: &LoadedPoint, hold_pass: bool) -> Check {
 }
 
 /// The bend check when the design gives a bend.
-fn bend(seg: &Segment) -> Option<Check> {
+pub fn bend(seg: &Segment) -> Option<Check> {
     let result = super::entry::bend_passage(seg)?;
     let small = seg.bore_smallest_mm;
     Some(match result {

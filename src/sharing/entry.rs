@@ -272,8 +272,45 @@ impl<'a> BoreCases<'a> {
         let loaded = &self.cases[index].2;
         let strokes: BoreStrokes = loaded.strokes()?;
         let segment_state = loaded.segment_state(stroke_mm)?;
+        Ok(self.point_of(stroke_mm, gov, &strokes, segment_state))
+    }
+
+    /// [`BoreCases::point`] from states and strokes found elsewhere (one of each per case,
+    /// in the order of [`BoreCases::each`]), e.g. near a nominal design's: the same rule
+    /// picks the governing case and the same fields are filled.
+    pub(crate) fn point_from(
+        &self,
+        stroke_mm: f64,
+        judge: Judge,
+        states: &[SharedState],
+        strokes: &[BoreStrokes],
+    ) -> Result<LoadedPoint, SharingError> {
+        let list = self
+            .cases
+            .iter()
+            .zip(states)
+            .map(|((c, a, _), st)| (*c, *a, st.clone()))
+            .collect();
+        let (gov, index) = super::govern(list, judge)?;
+        let loaded = &self.cases[index].2;
+        let strokes = strokes[index];
+        let segment_state = if loaded.is_centred() {
+            loaded.segment_state(stroke_mm)?
+        } else {
+            loaded.segment_state_of(&gov.state, &strokes)
+        };
+        Ok(self.point_of(stroke_mm, gov, &strokes, segment_state))
+    }
+
+    fn point_of(
+        &self,
+        stroke_mm: f64,
+        gov: super::Governing,
+        strokes: &BoreStrokes,
+        segment_state: SegmentState,
+    ) -> LoadedPoint {
         let st = gov.state;
-        Ok(LoadedPoint {
+        LoadedPoint {
             bore_mm: self.bore_mm,
             stroke_mm,
             clocking: gov.clocking,
@@ -288,7 +325,7 @@ impl<'a> BoreCases<'a> {
             limit_stroke_mm: strokes.limit_stroke_mm,
             checks: check_inputs(&st),
             segment_state,
-        })
+        }
     }
 }
 

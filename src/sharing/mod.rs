@@ -17,7 +17,10 @@
 pub mod checks;
 mod entry;
 mod geometry;
+mod near;
 mod solve;
+
+pub use near::{NEAR_ITER, NearCounts, NearPlan};
 
 pub use entry::{
     BoreCases, CaseChoice, CheckInputs, LoadedPoint, STRIP_COLUMNS, SharingChecks, StripRow,
@@ -782,6 +785,13 @@ impl<'a> LoadedBore<'a> {
         }
         let st = self.state(stroke_mm)?;
         let strokes = self.strokes()?;
+        Ok(self.segment_state_of(&st, &strokes))
+    }
+
+    /// [`LoadedBore::segment_state`] of a state already solved (not of a centred case), with
+    /// the bore-level strokes to report.
+    pub(crate) fn segment_state_of(&self, st: &SharedState, strokes: &BoreStrokes) -> SegmentState {
+        let stroke_mm = st.stroke_mm;
         let seg = self.segment;
         let ok = !st.beyond_limit;
         let some = |v: f64| ok.then_some(v);
@@ -814,7 +824,7 @@ impl<'a> LoadedBore<'a> {
                 })
                 .unwrap_or(Phase::Free)
         };
-        Ok(SegmentState {
+        SegmentState {
             stroke_mm,
             phase,
             axial_force_per_strip_n: known(t.mean_axial_force_per_strip_n),
@@ -844,11 +854,11 @@ impl<'a> LoadedBore<'a> {
                     strokes.limit_reason.describe()
                 ))
             } else if t.strips_off_wall > 0 {
-                Some(off_wall_reason(&st))
+                Some(off_wall_reason(st))
             } else {
                 None
             },
-        })
+        }
     }
 
     /// The least line-contact onset stroke over the strips at hub offset `d`, mm.
@@ -992,11 +1002,24 @@ pub(crate) fn governing_among(
     stroke_mm: f64,
     judge: Judge,
 ) -> Result<(Governing, usize), SharingError> {
+    let states = bores
+        .iter()
+        .map(|(clocking, major_axis, loaded)| {
+            Ok((*clocking, *major_axis, loaded.state(stroke_mm)?))
+        })
+        .collect::<Result<Vec<_>, SharingError>>()?;
+    govern(states, judge)
+}
+
+/// The worse of the cases' states (not empty) by `judge`, with its index: the rule of
+/// [`governing_among`] on states already solved.
+pub(crate) fn govern(
+    states: Vec<(Clocking, MajorAxis, SharedState)>,
+    judge: Judge,
+) -> Result<(Governing, usize), SharingError> {
     let mut best: Option<(Clocking, MajorAxis, SharedState)> = None;
     let mut best_index = 0;
-    for (index, (clocking, major_axis, loaded)) in bores.iter().enumerate() {
-        let (clocking, major_axis) = (*clocking, *major_axis);
-        let st = loaded.state(stroke_mm)?;
+    for (index, (clocking, major_axis, st)) in states.into_iter().enumerate() {
         let worse = match &best {
             None => true,
             Some((_, _, b)) => match (st.beyond_limit, b.beyond_limit) {

@@ -42,18 +42,18 @@ struct Outer {
 }
 
 /// One evaluation of every strip at a hub offset.
-struct Eval {
+pub(super) struct Eval {
     /// Gap and strip state per strip, in clock order (states are `BeyondLimit` for strips
     /// that touch or are past their limit).
-    strips: Vec<(f64, StripState)>,
+    pub(super) strips: Vec<(f64, StripState)>,
     /// `sum F_i u_i`, N.
-    force: [f64; 2],
+    pub(super) force: [f64; 2],
     /// Strips past their limit (or touching the wall at rest).
-    beyond: Vec<usize>,
+    pub(super) beyond: Vec<usize>,
 }
 
 impl Eval {
-    fn is_beyond(&self) -> bool {
+    pub(super) fn is_beyond(&self) -> bool {
         !self.beyond.is_empty()
     }
 }
@@ -65,20 +65,30 @@ fn beyond_state(stroke: f64) -> StripState {
 
 impl LoadedBore<'_> {
     /// The strip model of class `class` at gap `gap_mm` and stroke `stroke_mm`.
-    fn strip_at(&self, class: usize, gap_mm: f64, stroke_mm: f64) -> Result<StripState, PathError> {
+    pub(super) fn strip_at(
+        &self,
+        class: usize,
+        gap_mm: f64,
+        stroke_mm: f64,
+    ) -> Result<StripState, PathError> {
         let l = self.classes[class].length_mm;
         let path = Path::new(self.segment.design.strip.ends, gap_mm / l)?;
         Ok(path.state(stroke_mm / l))
     }
 
     /// The strip's path at its gap at offset `d`.
-    fn path_at(&self, i: usize, d: [f64; 2]) -> Result<Path, PathError> {
+    pub(super) fn path_at(&self, i: usize, d: [f64; 2]) -> Result<Path, PathError> {
         let l = self.classes[self.places[i].class].length_mm;
         Path::new(self.segment.design.strip.ends, self.gap_mm(i, d, false) / l)
     }
 
     /// Every strip at offset `d` (`folded`: symmetric case, mirror pairs solved once).
-    fn eval(&self, d: [f64; 2], stroke_mm: f64, folded: bool) -> Result<Eval, SolveFailure> {
+    pub(super) fn eval(
+        &self,
+        d: [f64; 2],
+        stroke_mm: f64,
+        folded: bool,
+    ) -> Result<Eval, SolveFailure> {
         let n = self.places.len();
         let mut strips: Vec<(f64, StripState)> = Vec::with_capacity(n);
         let mut force = [0.0, 0.0];
@@ -185,8 +195,16 @@ impl LoadedBore<'_> {
         }
     }
 
+    /// The strips' force units `B / L^2` summed, N: the scale of their forces.
+    pub(super) fn force_scale_n(&self) -> f64 {
+        self.places
+            .iter()
+            .map(|p| self.classes[p.class].force_unit_n)
+            .sum()
+    }
+
     /// Force tolerance: a fraction of the load, or of the strips' forces with no load.
-    fn tolerance_n(&self, e: &Eval) -> f64 {
+    pub(super) fn tolerance_n(&self, e: &Eval) -> f64 {
         let w = self.loading.radial_load_n;
         if w > 0.0 {
             1e-11 * w
@@ -363,7 +381,30 @@ impl LoadedBore<'_> {
         Ok(self.beyond(stroke_mm, d, evaluations))
     }
 
-    fn assemble_eval(
+    /// [`Self::wall_or_beyond`], after looking for a lifted balance (every strip short of
+    /// its limit, the rim clear of the wall) from `best`, then from the centre, by Broyden
+    /// steps (the hub's stiffness by central differences at the start): the nested roots
+    /// can give up on a trial offset with strips past their limit on both sides while such
+    /// a balance lies nearby, and the quasi-static path stays on it.
+    fn lifted_or_wall(
+        &self,
+        stroke_mm: f64,
+        d: [f64; 2],
+        best: Option<[f64; 2]>,
+        evaluations: usize,
+    ) -> Result<SharedState, SolveFailure> {
+        // From the best trial, else from the centre.
+        for start in best.into_iter().chain(std::iter::once([0.0, 0.0])) {
+            if let Some(k) = self.stiffness(stroke_mm, start)
+                && let Some(st) = self.balance_from(stroke_mm, start, k, 1e-13)?
+            {
+                return Ok(st);
+            }
+        }
+        self.wall_or_beyond(stroke_mm, d, evaluations)
+    }
+
+    pub(super) fn assemble_eval(
         &self,
         stroke_mm: f64,
         d: [f64; 2],
@@ -378,7 +419,7 @@ impl LoadedBore<'_> {
     }
 
     /// Residual `sum F_i u_i + W` (the support's share) at offset `d`; `None` past a limit.
-    fn residual_2d(
+    pub(super) fn residual_2d(
         &self,
         d: [f64; 2],
         stroke_mm: f64,
@@ -395,7 +436,7 @@ impl LoadedBore<'_> {
     /// the inner parallel curve (convex while the rim is no larger than the wall's least
     /// radius of curvature, which the caller has checked) at that height, by bisection on
     /// its normal angle, whose height falls from the top (`phi = 0`) to the bottom.
-    fn reach_z(&self, y: f64) -> f64 {
+    pub(super) fn reach_z(&self, y: f64) -> f64 {
         let rim = self.rim_radius_mm;
         let (mut lo, mut hi) = (0.0, PI);
         if y >= self.bore.inner_parallel(lo, rim)[0] || y <= self.bore.inner_parallel(hi, rim)[0] {
@@ -579,14 +620,26 @@ impl LoadedBore<'_> {
         }
         let cy = self.bore.clearance_y(rim).max(0.0);
         let mut z_prev = 0.0;
+        // The offset with the least out-of-balance force seen where every strip has a
+        // state: where a lifted balance is looked for when the nested roots give up.
+        let best: std::cell::Cell<Option<([f64; 2], f64)>> = std::cell::Cell::new(None);
         let outer = |y: f64, z_prev: &mut f64, count: &mut usize| -> Result<Outer, SolveFailure> {
             let inner = self.inner_z(y, *z_prev, stroke_mm, count)?;
             *z_prev = inner.z;
             let g = match inner.r {
-                Some(r) => r[0],
+                Some(r) => {
+                    let size = r[0].hypot(r[1]);
+                    if best.get().is_none_or(|(_, b)| size < b) {
+                        best.set(Some(([y, inner.z], size)));
+                    }
+                    r[0]
+                }
                 None => self.beyond_sign(&inner.e, 0),
             };
             Ok(Outer { y, g, inner })
+        };
+        let wall_or_beyond = |stroke_mm: f64, d: [f64; 2], count: usize| {
+            self.lifted_or_wall(stroke_mm, d, best.get().map(|(b, _)| b), count)
         };
         let first = outer(0.0, &mut z_prev, &mut count)?;
         let all_free =
@@ -604,11 +657,16 @@ impl LoadedBore<'_> {
         let settle = |o: Outer, count: usize| -> Result<SharedState, SolveFailure> {
             let d = [o.y, o.inner.z];
             match o.inner.r {
-                None => self.wall_or_beyond(stroke_mm, d, count),
+                None => wall_or_beyond(stroke_mm, d, count),
                 Some(_) if o.inner.clamped => self.solve_on_wall(stroke_mm, count),
                 Some(r) => {
+                    // At the rounding floor of the offset, a residual within the strip
+                    // solver's own rounding of the forces (a millionth of a millionth of
+                    // the strips' force unit `B / L^2`; the tolerance proper can fall
+                    // below that when the strips barely touch) is the state.
                     let tol = self.tolerance_n(&o.inner.e);
-                    if r[0].hypot(r[1]) <= 2.0 * tol {
+                    let floor = 1e-10 * self.force_scale_n();
+                    if r[0].hypot(r[1]) <= (2.0 * tol).max(floor) {
                         Ok(self.assemble_eval(stroke_mm, d, &o.inner.e, [0.0, 0.0], count))
                     } else {
                         Err(SolveFailure::Stalled {
@@ -620,16 +678,30 @@ impl LoadedBore<'_> {
             }
         };
         if first.g.is_nan() {
-            return self.wall_or_beyond(stroke_mm, [0.0, first.inner.z], count);
+            return wall_or_beyond(stroke_mm, [0.0, first.inner.z], count);
         }
         let tol_of = |o: &Outer| self.tolerance_n(&o.inner.e);
         if first.g.is_finite() && first.g.abs() <= tol_of(&first) {
             return settle(first, count);
         }
         let y1 = if first.g > 0.0 { -cy } else { cy };
-        let end = outer(y1, &mut z_prev, &mut count)?;
+        let mut end = outer(y1, &mut z_prev, &mut count)?;
+        // An end of the reach where strips on both sides are past their limit says
+        // nothing of the balance in between: draw it in towards the first height until
+        // the strips there have states (or no longer say which way the balance points).
+        let mut y_end = y1;
+        for _ in 0..BISECT {
+            if !end.g.is_nan() {
+                break;
+            }
+            y_end = 0.5 * (first.y + y_end);
+            if (y_end - first.y).abs() <= 1e-12 * self.bore_mm {
+                break;
+            }
+            end = outer(y_end, &mut z_prev, &mut count)?;
+        }
         if end.g.is_nan() {
-            return self.wall_or_beyond(stroke_mm, [end.y, end.inner.z], count);
+            return wall_or_beyond(stroke_mm, [end.y, end.inner.z], count);
         }
         if end.g.signum() == first.g.signum() {
             // The strips cannot balance the load anywhere in the reach: the hub rests.
@@ -656,7 +728,7 @@ impl LoadedBore<'_> {
             };
             let o = outer(y, &mut z_prev, &mut count)?;
             if o.g.is_nan() {
-                return self.wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
+                return wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
             }
             if o.g.is_finite() && o.g.abs() <= tol_of(&o) {
                 return settle(o, count);
@@ -664,7 +736,7 @@ impl LoadedBore<'_> {
             if b.y - a.y <= floor {
                 // At the rounding floor: a jump across a strip's limit is no state.
                 if !(fa.is_finite() && fb.is_finite()) {
-                    return self.wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
+                    return wall_or_beyond(stroke_mm, [o.y, o.inner.z], count);
                 }
                 return settle(o, count);
             }
@@ -756,8 +828,22 @@ impl LoadedBore<'_> {
                 let (s, c) = mid.sin_cos();
                 let push = -(r[0] * c + r[1] * s);
                 if push < 0.0 {
-                    return Err(SolveFailure::NoRestBalance { stroke_mm });
+                    // The strips pull the hub off the wall here: they balance the load
+                    // just inside the rest support's reach (near lift-off, where the
+                    // nested roots can miss it). Balance it from here, else no state.
+                    if let Some(k) = self.stiffness(stroke_mm, d)
+                        && let Some(st) = self.balance_from(stroke_mm, d, k, 1e-13)?
+                    {
+                        return Ok(st);
+                    }
+                    // Within rounding of the load (the tangential balance's own tolerance
+                    // times a thousand), the hub sits at the wall with no support: the
+                    // strips lift it exactly here.
+                    if push < -1e-8 * w {
+                        return Err(SolveFailure::NoRestBalance { stroke_mm });
+                    }
                 }
+                let push = push.max(0.0);
                 let support = [-push * c, -push * s];
                 return Ok(self.assemble(stroke_mm, d, &e.strips, support, count.get()));
             }
@@ -774,7 +860,7 @@ impl LoadedBore<'_> {
     }
 
     /// The hub's position before any strip touches: on its rest under a load, else centred.
-    fn rest_offset(&self) -> [f64; 2] {
+    pub(super) fn rest_offset(&self) -> [f64; 2] {
         if self.loading.radial_load_n > 0.0 {
             if self.symmetric {
                 [-self.clearance_y_mm, 0.0]

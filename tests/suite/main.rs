@@ -19,6 +19,7 @@ mod map;
 mod readme;
 mod recovery;
 mod scatter;
+mod scatter_sharing;
 mod segment_model;
 mod shared;
 mod sheet;
