@@ -207,8 +207,9 @@ impl ScatterView {
         );
         ui.label(
             RichText::new(format!(
-                "Tolerances read as {}. The centred model: the hub on the axis, each strip judged as if every strip were like it.",
-                distribution_words(r.distribution)
+                "Tolerances read as {}. The model: {}.",
+                distribution_words(r.distribution),
+                crate::scatter::shared::MODEL_WORDS
             ))
             .small(),
         );

@@ -163,10 +163,11 @@ fn tables(design: &Design, r: &ScatterReport) -> String {
     }
     let _ = writeln!(
         t,
-        "{} samples, seed {}; tolerances read as {}; the centred model (hub on the axis, each strip judged as if all were like it)",
+        "{} samples, seed {}; tolerances read as {}; the model: {}",
         r.samples,
         r.seed,
-        distribution_words(r.distribution)
+        distribution_words(r.distribution),
+        super::shared::MODEL_WORDS
     );
     if let Some(spec) = &design.scatter {
         let drawn: Vec<String> = Tolerance::ALL

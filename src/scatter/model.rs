@@ -2,8 +2,9 @@
 //! (per-strip deviations, hub, modulus, friction) to the outcome of every check. The
 //! centred model here holds the hub on the axis and judges each strip as the segment
 //! would be if every strip were like it; for a sample whose strips are all alike that is
-//! exactly `checks::run` on the changed design. A load-sharing model (strips that differ
-//! put the hub off-centre) plugs in through the same trait.
+//! exactly `checks::run` on the changed design. The load-sharing model (`shared`:
+//! strips that differ put the hub off-centre), which a run uses, plugs in through the same
+//! trait and keeps this one for samples whose strips are alike.
 
 use crate::checks::{self, Check, MarginUnit};
 use crate::design::Design;

@@ -22,6 +22,9 @@ use crate::sharing::{self, NearCounts, NearPlan, StripDeviation};
 use super::model::{CentredModel, CheckInfo, MarginModel, Outcome, combine_worst};
 use super::spec::SampleInputs;
 
+/// The model in words, for the command's text, the app's window and the sheet.
+pub const MODEL_WORDS: &str = "load sharing, each strip with its own thickness, width and free length (strips that differ put the hub off-centre), found near the nominal design's loaded states (held to the full solve within 1e-7 on ratio margins and 2e-5 mm on strokes in the tests)";
+
 /// How the load-sharing checks of a sample with unequal strips are found.
 #[derive(Debug)]
 enum Solve {

@@ -41,14 +41,14 @@ const NEAR_TOL: f64 = 1e-10;
 const FIXED_STEPS: usize = 40;
 
 /// Levels of halving the stroke step when a balance is followed along the stroke.
-const FOLLOW_DEPTH: usize = 2;
+const FOLLOW_DEPTH: usize = 1;
 
 /// Broyden steps in a row that had to be halved before the balance is taken to lie at or
 /// past a strip's limit.
-const HELD_STEPS: usize = 3;
+const HELD_STEPS: usize = 2;
 
 /// Halvings of a Broyden step that takes a strip past its limit.
-const HALVINGS: usize = 12;
+const HALVINGS: usize = 4;
 
 /// Secant steps of the lift-off stroke at most.
 const SECANT_ITER: usize = 60;
@@ -667,6 +667,13 @@ impl LoadedBore<'_> {
         let mut d = d_start;
         for _ in 0..FIXED_STEPS {
             let p = eval(x, d)?;
+            // Settled from one side: the stroke moves by no more than the searches' 1e-10.
+            if let (Some(phi), Some(t)) = (p.phi, p.t)
+                && phi.abs() <= 1e-10 * p.s.abs()
+                && (phi > 0.0 || !valid_end)
+            {
+                return Ok(Some((p.s, t)));
+            }
             match p.phi {
                 Some(phi) if phi > 0.0 => {
                     if let Some(l) = &lo {

@@ -45,7 +45,7 @@ fn intro(spec: &ScatterSpec, r: &ScatterReport, width: f32) -> Block {
         .filter_map(|&t| tolerance_words(spec, t))
         .collect();
     let text = format!(
-        "Drawn: {}. Tolerances read as {}; {} Monte Carlo samples (JCGM 101:2008), seed {}. Each check stays at its own bore and stroke; the centred model is used (hub on the axis, each strip judged as if every strip were like it).",
+        "Drawn: {}. Tolerances read as {}; {} Monte Carlo samples (JCGM 101:2008), seed {}. Each check stays at its own bore and stroke; the model: {}.",
         if drawn.is_empty() {
             "nothing (every tolerance is zero)".to_string()
         } else {
@@ -53,7 +53,8 @@ fn intro(spec: &ScatterSpec, r: &ScatterReport, width: f32) -> Block {
         },
         distribution_words(r.distribution),
         r.samples,
-        r.seed
+        r.seed,
+        crate::scatter::shared::MODEL_WORDS
     );
     b.height = b.paragraph(0.0, 10.0, width, 8.0, Weight::Regular, INK, &text) + 2.0;
     b
