@@ -12,6 +12,7 @@ use serde::{Serialize, Serializer};
 use crate::actuation;
 use crate::design::Operating;
 use crate::segment::{Segment, SegmentError, SegmentState};
+use crate::units::{Quantity, UnitSystem};
 
 /// Unit of a check's margin (serialised as its label, `mm` or `ratio`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -180,6 +181,24 @@ impl Check {
     /// command line, the app and the sheet.
     pub fn margin_text(&self) -> Option<String> {
         self.unit().margin_text(self.margin?)
+    }
+
+    /// [`Check::margin_text`] in display units: a length margin in inches to 4 decimals
+    /// (`+0.0049 in`) when `units` is inches; a ratio margin reads the same in both. In
+    /// metric exactly `margin_text`.
+    pub fn margin_text_in(&self, units: UnitSystem) -> Option<String> {
+        match self.unit() {
+            MarginUnit::Mm if !units.is_metric() => {
+                let m = Some(self.margin?).filter(|m| m.is_finite())?;
+                let shown = units.to_display(Quantity::Length, m);
+                Some(format!(
+                    "{:+.4} {}",
+                    no_negative_zero(shown, 4),
+                    units.unit(Quantity::Length)
+                ))
+            }
+            _ => self.margin_text(),
+        }
     }
 }
 

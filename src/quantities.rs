@@ -10,6 +10,7 @@ use std::f64::consts::{PI, TAU};
 
 use crate::design::Actuator;
 use crate::segment::{ActuatorReading, BoreRow, Segment, SegmentState};
+use crate::units::{Quantity, UnitSystem};
 
 impl Segment {
     /// The holding force the design asks for: the load to hold times the safety factor, N.
@@ -336,8 +337,10 @@ pub struct StateField {
     pub label: &'static str,
     /// Label on the sizing sheet, with the symbol its model section uses.
     pub sheet_label: &'static str,
-    /// Unit printed after the value; empty for a pure number.
+    /// Unit printed after the value in millimetres-newtons-MPa; empty for a pure number.
     pub unit: &'static str,
+    /// The kind of quantity, for the display units (`None`: a pure number).
+    pub quantity: Option<Quantity>,
     /// Decimals in the command line's and the app's tables (the sheet formats by unit).
     pub decimals: usize,
     /// One line saying what it is (the app's hover text).
@@ -354,6 +357,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "axial force per strip",
         sheet_label: "Axial force per strip P",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "compression in each strip",
         get: |s| s.axial_force_per_strip_n,
@@ -363,6 +367,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "contact force per strip",
         sheet_label: "Contact force per strip F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "wall force of each strip",
         get: |s| s.contact_force_per_strip_n,
@@ -372,6 +377,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "actuator pull",
         sheet_label: "Actuator pull N P",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "pull on the end plates, N x axial force per strip",
         get: |s| s.actuator_force_n,
@@ -381,6 +387,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "radial force",
         sheet_label: "Radial force on the wall N F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "total force of all strips on the wall",
         get: |s| s.radial_force_n,
@@ -390,6 +397,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "holding force",
         sheet_label: "Holding force μ N F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "friction x radial force: the axial load the segment holds",
         get: |s| s.holding_force_n,
@@ -399,6 +407,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "outer diameter",
         sheet_label: "Diameter over the strips",
         unit: "mm",
+        quantity: Some(Quantity::Length),
         decimals: 3,
         meaning: "diameter over the strip corners at the crest",
         get: |s| s.outer_diameter_mm,
@@ -408,6 +417,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "flat run on the wall",
         sheet_label: "Flat run on the wall",
         unit: "mm",
+        quantity: Some(Quantity::Length),
         decimals: 3,
         meaning: "length of strip lying on the wall",
         get: |s| s.flat_length_mm,
@@ -417,6 +427,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "peak stress",
         sheet_label: "Peak stress σ",
         unit: "MPa",
+        quantity: Some(Quantity::Stress),
         decimals: 1,
         meaning: "bending plus axial stress at the peak curvature",
         get: |s| s.max_stress_mpa,
@@ -426,6 +437,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "static factor of safety",
         sheet_label: "Static factor of safety",
         unit: "",
+        quantity: None,
         decimals: 3,
         meaning: "0.75 x tensile strength / peak stress",
         get: |s| s.static_safety_factor,
@@ -435,6 +447,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "fatigue factor of safety",
         sheet_label: "Fatigue factor of safety (Goodman)",
         unit: "",
+        quantity: None,
         decimals: 3,
         meaning: "Goodman, zero-to-peak cycles",
         get: |s| s.fatigue_safety_factor,
@@ -444,6 +457,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "stored energy",
         sheet_label: "Stored strain energy, all strips",
         unit: "J",
+        quantity: Some(Quantity::Energy),
         decimals: 4,
         meaning: "strain energy in all strips",
         get: |s| s.strain_energy_j,
@@ -458,6 +472,20 @@ impl StateField {
             || none.to_string(),
             |v| format!("{v:.prec$}", prec = self.decimals),
         )
+    }
+
+    /// The unit label in `units` (empty for a pure number).
+    pub fn unit_in(&self, units: UnitSystem) -> &'static str {
+        self.quantity.map_or(self.unit, |q| units.unit(q))
+    }
+
+    /// The value in `s` in `units` (no unit), or `none` where it does not exist; in metric
+    /// exactly [`StateField::number`].
+    pub fn number_in(&self, s: &SegmentState, none: &str, units: UnitSystem) -> String {
+        match self.quantity {
+            Some(q) if !units.is_metric() => units.number_or(q, (self.get)(s), self.decimals, none),
+            _ => self.number(s, none),
+        }
     }
 
     /// The value in `s` to the field's decimals with its unit, or `none` where it does

@@ -291,6 +291,83 @@ impl UnitSystem {
     }
 }
 
+/// The metric units [`UnitSystem::prose`] recognises after a number, longest first (so
+/// `N m` and `N/mm` are not read as `N`), with their kinds.
+const PROSE_UNITS: [(&str, Quantity); 6] = [
+    ("N/mm", Quantity::Stiffness),
+    ("N m", Quantity::Torque),
+    ("MPa", Quantity::Stress),
+    ("mm", Quantity::Length),
+    ("N", Quantity::Force),
+    ("J", Quantity::Energy),
+];
+
+impl UnitSystem {
+    /// A sentence written in millimetres, newtons and MPa (a check's reason, the usable
+    /// stroke in words) in this system: every number directly followed by a space and one
+    /// of mm, N, MPa, N m, N/mm or J (as a whole word) is converted and relabelled, keeping
+    /// its sign and showing as many decimals as it had (one more for a length or a stress,
+    /// whose inch units are coarser; at least 3 for a length, 2 for a torque, 1 otherwise). Everything else (percentages, degrees, counts,
+    /// factors) is left as written. In metric the text is returned unchanged.
+    pub fn prose(self, text: &str) -> String {
+        if self.is_metric() {
+            return text.to_string();
+        }
+        let bytes = text.as_bytes();
+        let mut out = String::with_capacity(text.len() + 16);
+        let mut i = 0;
+        let mut copied = 0;
+        while i < bytes.len() {
+            // A number starts at a digit not preceded by a letter, digit, '.' or '_'.
+            let starts = bytes[i].is_ascii_digit()
+                && (i == 0
+                    || !(bytes[i - 1].is_ascii_alphanumeric() || b"._".contains(&bytes[i - 1])));
+            if !starts {
+                i += 1;
+                continue;
+            }
+            let mut j = i;
+            while j < bytes.len() && bytes[j].is_ascii_digit() {
+                j += 1;
+            }
+            if j + 1 < bytes.len() && bytes[j] == b'.' && bytes[j + 1].is_ascii_digit() {
+                j += 1;
+                while j < bytes.len() && bytes[j].is_ascii_digit() {
+                    j += 1;
+                }
+            }
+            let decimals = text[i..j].find('.').map_or(0, |d| j - i - d - 1);
+            let unit = text[j..].strip_prefix(' ').and_then(|rest| {
+                PROSE_UNITS.iter().find(|(u, _)| {
+                    rest.starts_with(u)
+                        && !rest[u.len()..]
+                            .chars()
+                            .next()
+                            .is_some_and(|c| c.is_alphanumeric() || c == '/' || c == '_')
+                })
+            });
+            let (Some((u, q)), Ok(v)) = (unit, text[i..j].parse::<f64>()) else {
+                i = j;
+                continue;
+            };
+            let extra = usize::from(matches!(q, Quantity::Length | Quantity::Stress));
+            // Short numbers (`1.8 mm`, `300 N`) still get a sensible resolution.
+            let least = match q {
+                Quantity::Length | Quantity::Thickness => 3,
+                Quantity::Torque => 2,
+                _ => 1,
+            };
+            let d = (decimals + extra).max(least);
+            out.push_str(&text[copied..i]);
+            out.push_str(&format!("{:.d$} {}", self.to_display(*q, v), self.unit(*q)));
+            i = j + 1 + u.len();
+            copied = i;
+        }
+        out.push_str(&text[copied..]);
+        out
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -367,18 +444,30 @@ mod tests {
             "0.0100 in"
         );
         // 0.25 mm / 25.4 = 0.009843 in (NIST SP 811 B.8 factor).
-        assert_eq!(UnitSystem::Inch.number(Quantity::Thickness, 0.25, 3), "0.0098");
+        assert_eq!(
+            UnitSystem::Inch.number(Quantity::Thickness, 0.25, 3),
+            "0.0098"
+        );
         // Metric keeps the caller's decimals (today's output).
         assert_eq!(
             UnitSystem::Metric.format(Quantity::Thickness, 0.25, 3),
             "0.250 mm"
         );
         // 1000 MPa = 145.04 ksi (NIST SP 811 B.8: 1 ksi = 6.894757 MPa).
-        assert_eq!(UnitSystem::Inch.format(Quantity::Stress, 1000.0, 1), "145.04 ksi");
+        assert_eq!(
+            UnitSystem::Inch.format(Quantity::Stress, 1000.0, 1),
+            "145.04 ksi"
+        );
         // 100 N = 22.481 lbf (NIST SP 811 B.8: 1 lbf = 4.448222 N).
-        assert_eq!(UnitSystem::Inch.format(Quantity::Force, 100.0, 3), "22.481 lbf");
+        assert_eq!(
+            UnitSystem::Inch.format(Quantity::Force, 100.0, 3),
+            "22.481 lbf"
+        );
         // 1 N m = 8.851 lbf in (NIST SP 811 B.8: 1 lbf in = 0.1129848 N m).
-        assert_eq!(UnitSystem::Inch.format(Quantity::Torque, 1.0, 3), "8.851 lbf in");
+        assert_eq!(
+            UnitSystem::Inch.format(Quantity::Torque, 1.0, 3),
+            "8.851 lbf in"
+        );
     }
 
     #[test]
@@ -405,6 +494,26 @@ mod tests {
         assert_eq!(
             UnitSystem::Inch.csv_row(&kinds, "hold,\"a, \"\"b\"\"\",50.8"),
             "hold,\"a, \"\"b\"\"\",2"
+        );
+    }
+
+    #[test]
+    fn prose_numbers_follow_the_units() {
+        let text = "holding force 369.05 N (line-contact) vs 150.00 N x safety factor 2.00; \
+                    peak 1462.1 MPa at 100 000 cycles; needs 21.955 N m; gap +0.125 mm, \
+                    2 r tan(pi/N) = 31.48 mm for 8 strips, 12.5 % and 30 deg, 1000 N/mm, \
+                    stroke_mm 3 mmHg";
+        assert_eq!(UnitSystem::Metric.prose(text), text);
+        // 369.05 N / 4.4482216152605 = 82.966 lbf; 1462.1 MPa / 6.894757 = 212.06 ksi;
+        // 21.955 N m / 0.1129848 = 194.32 lbf in; 0.125 mm / 25.4 = 0.0049 in;
+        // 31.48 mm / 25.4 = 1.239 in; 1000 N/mm / 0.1751268 = 5710 lbf/in
+        // (factors: NIST SP 811 (2008), Appendix B).
+        assert_eq!(
+            UnitSystem::Inch.prose(text),
+            "holding force 82.97 lbf (line-contact) vs 33.72 lbf x safety factor 2.00; \
+             peak 212.06 ksi at 100 000 cycles; needs 194.318 lbf in; gap +0.0049 in, \
+             2 r tan(pi/N) = 1.239 in for 8 strips, 12.5 % and 30 deg, 5710.1 lbf/in, \
+             stroke_mm 3 mmHg"
         );
     }
 }

@@ -113,6 +113,7 @@ impl MapView {
                 .axes
                 .clone()
                 .filter(|_| self.open && self.error.is_none()),
+            ..Default::default()
         }
     }
 

@@ -211,6 +211,9 @@ const CLOSING_FIRST: &str = "Model, assumptions and limits";
 pub struct SheetOptions {
     /// A design-map page over these two axes (across, up).
     pub map: Option<(crate::map::AxisSpec, crate::map::AxisSpec)>,
+    /// Units of every number printed (metric by default); the inputs also give the file's
+    /// own SI value beside an inch value.
+    pub units: crate::units::UnitSystem,
 }
 
 /// Lays the sheet out (with the given date text) without writing the PDF.

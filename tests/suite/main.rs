@@ -6,6 +6,7 @@ mod app_map;
 mod app_window;
 mod calibration;
 mod cli;
+mod cli_units;
 mod command_words;
 mod data_tables;
 mod design_file;
