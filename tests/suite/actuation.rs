@@ -799,12 +799,18 @@ fn under_a_set_torque_stress_is_judged_where_it_is_highest() {
             "{}",
             c.reason
         );
+        // The title names the bore it was judged at, in every front end (they all print
+        // `Check::title`, and the check JSON carries it).
+        assert!(c.title().ends_with("at the largest bore"), "{}", c.title());
+        let json = serde_json::to_value(c).expect("serialises");
+        assert_eq!(json["title"], c.title());
     }
     // Under a fixed stroke the smallest bore stays where stress is judged (contract).
     let riser = segment(&load("riser-climber-2in-sch40.ron"));
     for c in checks::run(&riser) {
         if matches!(c.id, CheckId::Static | CheckId::Fatigue) {
             assert_eq!(c.bore_mm, Some(riser.bore_smallest_mm));
+            assert!(c.title().ends_with("at the smallest bore"), "{}", c.title());
         }
     }
 }
