@@ -159,14 +159,17 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
         mt + ph / 2.0,
         esc(y_label)
     );
+    // The finite points of a run in page coordinates.
+    let points = |run: &[[f64; 2]]| -> Vec<String> {
+        run.iter()
+            .filter(|p| p[0].is_finite() && p[1].is_finite())
+            .map(|p| format!("{:.2},{:.2}", sx(p[0]), sy(p[1])))
+            .collect()
+    };
     // Shaded areas first, so that the grid and the curves stay readable over them.
     for ser in series.iter().filter(|s| s.shaded) {
         for run in &ser.runs {
-            let path: Vec<String> = run
-                .iter()
-                .filter(|p| p[0].is_finite() && p[1].is_finite())
-                .map(|p| format!("{:.2},{:.2}", sx(p[0]), sy(p[1])))
-                .collect();
+            let path = points(run);
             if path.len() >= 3 {
                 let _ = writeln!(
                     s,
@@ -201,11 +204,7 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
     }
     for (i, ser) in series.iter().enumerate() {
         for run in ser.runs.iter().filter(|_| !ser.shaded) {
-            let path: Vec<String> = run
-                .iter()
-                .filter(|p| p[0].is_finite() && p[1].is_finite())
-                .map(|p| format!("{:.2},{:.2}", sx(p[0]), sy(p[1])))
-                .collect();
+            let path = points(run);
             if path.len() >= 2 {
                 let _ = writeln!(
                     s,
