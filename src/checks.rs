@@ -165,9 +165,19 @@ pub struct Check {
 }
 
 impl Check {
-    /// What is checked, in words (`id.title()`).
+    /// What is checked, in words: `id.title()`, except for a static or fatigue check that
+    /// a set pull or torque moved to the largest bore (its reason starts with
+    /// [`JUDGED_AT_LARGEST`]), whose title names that bore.
     pub fn title(&self) -> &'static str {
-        self.id.title()
+        match self.id {
+            CheckId::Static if self.reason.starts_with(JUDGED_AT_LARGEST) => {
+                "static stress at the largest bore"
+            }
+            CheckId::Fatigue if self.reason.starts_with(JUDGED_AT_LARGEST) => {
+                "fatigue (Goodman, zero-to-peak) at the largest bore"
+            }
+            _ => self.id.title(),
+        }
     }
 
     /// Unit of the margin (`id.unit()`).
@@ -433,6 +443,10 @@ pub fn run_centred(seg: &Segment) -> Vec<Check> {
     out
 }
 
+/// How the reason of a stress check moved to the largest bore begins (see
+/// [`Check::title`]).
+pub const JUDGED_AT_LARGEST: &str = "judged at the largest bore";
+
 /// The static or the fatigue check (`id`) of the state `s`.
 /// Under a set pull or torque the stroke is longest, and so the stress highest, in the
 /// largest bore, not the smallest where a fixed stroke stresses the strips most. There the
@@ -455,7 +469,7 @@ fn worse_under_set_pull(seg: &Segment, at_smallest: Check, large: f64, id: Check
         return at_smallest;
     }
     there.reason = format!(
-        "judged at the largest bore, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
+        "{JUDGED_AT_LARGEST}, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
         there.reason
     );
     there

@@ -73,7 +73,7 @@ pub enum Command {
     /// One state of the segment at a stroke: forces, diameter, flat run, stress.
     Point(PointArgs),
     /// The force-stroke curve at one bore, from rest to the model's limit or the actuator's
-    /// maximum stroke, whichever comes first.
+    /// maximum (of travel, through a compliant drive), whichever comes first.
     Sweep(SweepArgs),
     /// Strokes against bore: first contact, holding, stress limit, line contact and model
     /// limit for equally spaced bores.
@@ -709,15 +709,30 @@ fn point(a: &PointArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Resu
         }
         return Ok(Status::Done);
     }
-    if stroke_mm > seg.max_stroke_mm() {
+    // Through a compliant drive the actuator's maximum is of travel (stroke plus the
+    // drive's stretch), which runs out before the stroke does.
+    let travel_mm = actuation::travel_at_mm(&path, stroke_mm);
+    if travel_mm > seg.max_stroke_mm() {
         // A note, not an error: the model state is still asked for. On stderr, so the JSON
         // and the table stay as they were.
-        eprintln!(
-            "bowgrip: note: stroke {} is past the actuator's maximum stroke of {}; the \
-             actuator cannot reach it",
-            shown(units, Quantity::Length, stroke_mm),
-            shown(units, Quantity::Length, seg.max_stroke_mm())
-        );
+        if travel_mm > stroke_mm {
+            let note = format!(
+                "bowgrip: note: stroke {} mm takes {} mm of actuator travel through the drive's \
+                 stretch, past the actuator's maximum of {} mm; the actuator cannot reach it",
+                show_number(stroke_mm),
+                show_number((travel_mm * 1e3).round() / 1e3),
+                show_number(seg.max_stroke_mm())
+            );
+            eprintln!("{}", units.prose(&note));
+        } else {
+            let note = format!(
+                "bowgrip: note: stroke {} mm is past the actuator's maximum stroke of {} mm; the \
+                 actuator cannot reach it",
+                show_number(stroke_mm),
+                show_number(seg.max_stroke_mm())
+            );
+            eprintln!("{}", units.prose(&note));
+        }
     }
     let shared =
         sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
@@ -928,16 +943,6 @@ fn fixed_in(units: UnitSystem, q: Quantity, v: Option<f64>, decimals: usize) -> 
         v.map(|v| units.to_display(q, v)),
         units.decimals(q, decimals),
     )
-}
-
-/// A value as [`show_number`] prints it, with its unit, in `units` (shortest form in
-/// metric, four significant decimals in inches).
-fn shown(units: UnitSystem, q: Quantity, v: f64) -> String {
-    if units.is_metric() {
-        format!("{} {}", show_number(v), units.unit(q))
-    } else {
-        units.format(q, v, 4)
-    }
 }
 
 /// The operating mode in words with its value: `stroke 1.8 mm`, `pull 300 N`,

@@ -632,6 +632,30 @@ fn svg_references(
     let line = export::SvgSeries::reference;
     let mut out = Vec::new();
     if title.starts_with("Stroke against bore") {
+        // The shaded areas the app and the sheet draw: the bore tolerance band over the
+        // plot's height, and the usable strokes at each bore (between the holding curve and
+        // the lowest of the stress limit, the model limit and the actuator maximum).
+        if seg.bore_smallest_mm < x1 && seg.bore_largest_mm > x0 {
+            let (b0, b1) = (seg.bore_smallest_mm.max(x0), seg.bore_largest_mm.min(x1));
+            out.push(export::SvgSeries::area(
+                "bore tolerance",
+                "#6a6aa8",
+                vec![vec![[b0, y0], [b1, y0], [b1, y1], [b0, y1]]],
+            ));
+        }
+        let usable: Vec<Vec<[f64; 2]>> = a
+            .usable_window_mm()
+            .iter()
+            .filter(|run| run.len() >= 2)
+            .map(|run| {
+                let low = run.iter().map(|p| [p[0], p[1].clamp(y0, y1)]);
+                let high = run.iter().rev().map(|p| [p[0], p[2].clamp(y0, y1)]);
+                low.chain(high).collect()
+            })
+            .collect();
+        if !usable.is_empty() {
+            out.push(export::SvgSeries::area("usable strokes", "#2e8b57", usable));
+        }
         if let Some(op) = op.filter(|v| (y0..=y1).contains(v)) {
             out.push(line("operating stroke", "#444444", [x0, op], [x1, op]));
         }
@@ -928,7 +952,7 @@ mod svg_reference_tests {
             let series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
             let refs = svg_references(&a, title, &series);
             let names: Vec<String> = refs.iter().map(|r| r.name.clone()).collect();
-            assert!(refs.iter().all(|r| r.dashed));
+            assert!(refs.iter().all(|r| r.dashed != r.shaded));
             (refs, names)
         };
         let (refs, names) = svg(
@@ -938,8 +962,34 @@ mod svg_reference_tests {
         assert_eq!(names, ["operating stroke", "load x safety factor"]);
         assert_eq!(refs[0].runs[0][0][0], op);
         assert_eq!(refs[1].runs[0][0][1], a.segment.required_holding_force_n());
-        let (_, names) = svg("Stroke against bore", outputs::window_curves(&a));
-        assert_eq!(names, ["operating stroke", "smallest bore", "largest bore"]);
+        let (refs, names) = svg("Stroke against bore", outputs::window_curves(&a));
+        assert_eq!(
+            names,
+            [
+                "bore tolerance",
+                "usable strokes",
+                "operating stroke",
+                "smallest bore",
+                "largest bore"
+            ]
+        );
+        // The band spans the tolerance; the usable area's outline runs along the lower
+        // ends of the usable window and back along its upper ends (the same numbers the
+        // app's plot and the sheet shade).
+        let band = &refs[0].runs[0];
+        assert_eq!(band[0][0], a.segment.bore_smallest_mm);
+        assert_eq!(band[1][0], a.segment.bore_largest_mm);
+        let window = a.usable_window_mm();
+        let run = window.iter().find(|r| r.len() >= 2).expect("a usable run");
+        let outline = &refs[1].runs[0];
+        assert_eq!(outline.len(), 2 * run.len());
+        assert_eq!(outline[0], [run[0][0], run[0][1]]);
+        let last = run[run.len() - 1];
+        assert_eq!(outline[run.len()], [last[0], last[2]]);
+        let chart = export::svg_chart("t", "x", "y", &refs);
+        assert_eq!(chart.matches("<polygon").count(), 1 + window.len());
+        // Pale solid fills a quarter of the way from white: #6a6aa8 -> #dadae9.
+        assert!(chart.contains(r##"<polygon fill="#dadae9""##));
         let (_, names) = svg("Peak stress against stroke", outputs::stress_curves(&a));
         assert!(names.contains(&"static allowable".to_string()));
         let chart = export::svg_chart("t", "x", "y", &refs);

@@ -51,6 +51,7 @@ impl Curve {
             color: format!("#{r:02x}{g:02x}{b:02x}"),
             runs: self.runs.clone(),
             dashed: false,
+            shaded: false,
         }
     }
 
