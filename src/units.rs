@@ -303,6 +303,18 @@ const PROSE_UNITS: [(&str, Quantity); 6] = [
 ];
 
 impl UnitSystem {
+    /// An axis title ending in its metric unit in brackets (`stroke (mm)`, `force (N)`)
+    /// in this system (`stroke (in)`), with the kind of quantity on the axis; `None` for a
+    /// title without one of the units (left as it is).
+    pub fn axis_label(self, label: &str) -> (String, Option<Quantity>) {
+        for (u, q) in PROSE_UNITS {
+            if let Some(stem) = label.strip_suffix(&format!("({u})")) {
+                return (format!("{stem}({})", self.unit(q)), Some(q));
+            }
+        }
+        (label.to_string(), None)
+    }
+
     /// A sentence written in millimetres, newtons and MPa (a check's reason, the usable
     /// stroke in words) in this system: every number directly followed by a space and one
     /// of mm, N, MPa, N m, N/mm or J (as a whole word) is converted and relabelled, keeping
@@ -346,6 +358,12 @@ impl UnitSystem {
                             .is_some_and(|c| c.is_alphanumeric() || c == '/' || c == '_')
                 })
             });
+            // `N` before ` mm` is a compound (`N mm²`), not a force; `... mm in the file`
+            // is a design file's own value, kept as written.
+            let unit = unit.filter(|(u, _)| {
+                let after = &text[j + 1 + u.len()..];
+                !(*u == "N" && after.starts_with(" mm")) && !after.starts_with(" in the file")
+            });
             let (Some((u, q)), Ok(v)) = (unit, text[i..j].parse::<f64>()) else {
                 i = j;
                 continue;
@@ -357,9 +375,16 @@ impl UnitSystem {
                 Quantity::Torque => 2,
                 _ => 1,
             };
-            let d = (decimals + extra).max(least);
+            // ... and at least two significant figures when small (0.01 mm is 0.00039 in).
+            let shown = self.to_display(*q, v);
+            let significant = if shown != 0.0 && shown.abs() < 1.0 {
+                (1.0 - shown.abs().log10().floor()) as usize
+            } else {
+                0
+            };
+            let d = (decimals + extra).max(least).max(significant.min(8));
             out.push_str(&text[copied..i]);
-            out.push_str(&format!("{:.d$} {}", self.to_display(*q, v), self.unit(*q)));
+            out.push_str(&format!("{shown:.d$} {}", self.unit(*q)));
             i = j + 1 + u.len();
             copied = i;
         }
@@ -498,11 +523,28 @@ mod tests {
     }
 
     #[test]
+    fn axis_titles_take_the_unit() {
+        assert_eq!(
+            UnitSystem::Inch.axis_label("stroke (mm)"),
+            ("stroke (in)".to_string(), Some(Quantity::Length))
+        );
+        assert_eq!(
+            UnitSystem::Inch.axis_label("torque (N m)"),
+            ("torque (lbf in)".to_string(), Some(Quantity::Torque))
+        );
+        assert_eq!(
+            UnitSystem::Metric.axis_label("stress (MPa)"),
+            ("stress (MPa)".to_string(), Some(Quantity::Stress))
+        );
+        assert_eq!(UnitSystem::Inch.axis_label("cycles").1, None);
+    }
+
+    #[test]
     fn prose_numbers_follow_the_units() {
         let text = "holding force 369.05 N (line-contact) vs 150.00 N x safety factor 2.00; \
                     peak 1462.1 MPa at 100 000 cycles; needs 21.955 N m; gap +0.125 mm, \
                     2 r tan(pi/N) = 31.48 mm for 8 strips, 12.5 % and 30 deg, 1000 N/mm, \
-                    stroke_mm 3 mmHg";
+                    +/-0.01 mm, stroke_mm 3 mmHg, 1234 N mm², 0.25 mm in the file";
         assert_eq!(UnitSystem::Metric.prose(text), text);
         // 369.05 N / 4.4482216152605 = 82.966 lbf; 1462.1 MPa / 6.894757 = 212.06 ksi;
         // 21.955 N m / 0.1129848 = 194.32 lbf in; 0.125 mm / 25.4 = 0.0049 in;
@@ -513,7 +555,7 @@ mod tests {
             "holding force 82.97 lbf (line-contact) vs 33.72 lbf x safety factor 2.00; \
              peak 212.06 ksi at 100 000 cycles; needs 194.318 lbf in; gap +0.0049 in, \
              2 r tan(pi/N) = 1.239 in for 8 strips, 12.5 % and 30 deg, 5710.1 lbf/in, \
-             stroke_mm 3 mmHg"
+             +/-0.00039 in, stroke_mm 3 mmHg, 1234 N mm², 0.25 mm in the file"
         );
     }
 }
