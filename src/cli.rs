@@ -876,7 +876,11 @@ fn strips_table(p: &sharing::LoadedPoint, units: UnitSystem) -> String {
     let stroke = |v: Option<f64>| fixed_in(units, Quantity::Length, v, 3);
     let offset = |v: f64| units.to_display(Quantity::Length, v);
     let _ = writeln!(t);
-    let _ = writeln!(t, "load sharing ({})", p.governing);
+    let _ = writeln!(
+        t,
+        "{}",
+        units.prose(&format!("load sharing ({})", p.governing))
+    );
     let _ = writeln!(
         t,
         "  hub offset        y {:+.4} {len} (up), z {:+.4} {len}",
