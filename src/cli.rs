@@ -609,26 +609,6 @@ fn refuse_units(command: &Command, units: UnitSystem) -> anyhow::Result<()> {
     Ok(())
 }
 
-/// A CSV text (a header line, then rows) in `units`: column names and dimensioned cells
-/// converted, everything else as it was. Unchanged in metric.
-fn csv_in(units: UnitSystem, text: &str) -> String {
-    if units.is_metric() {
-        return text.to_string();
-    }
-    let mut lines = text.lines();
-    let Some(header) = lines.next() else {
-        return String::new();
-    };
-    let (header, kinds) = units.csv_header(header);
-    let mut out = header;
-    out.push('\n');
-    for line in lines {
-        out.push_str(&units.csv_row(&kinds, line));
-        out.push('\n');
-    }
-    out
-}
-
 // ---------------------------------------------------------------------------------------
 // Loading.
 
@@ -747,7 +727,7 @@ fn point(a: &PointArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Resu
             write!(
                 out,
                 "{}",
-                csv_in(units, &sharing::strips_csv(&sharing::strip_rows(&st)))
+                units.csv_text(&sharing::strips_csv(&sharing::strip_rows(&st)))
             )?;
         } else if a.json {
             serde_json::to_writer(&mut *out, &point_json(&state, &drive)?)?;
@@ -781,7 +761,7 @@ fn point(a: &PointArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Resu
         write!(
             out,
             "{}",
-            csv_in(units, &sharing::strips_csv(&loaded.strips))
+            units.csv_text(&sharing::strips_csv(&loaded.strips))
         )?;
     } else if a.json {
         let mut v = loaded_json(&loaded)?;

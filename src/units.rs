@@ -242,6 +242,27 @@ impl UnitSystem {
         (names.join(","), kinds)
     }
 
+    /// A CSV text (a header line, then rows, each ended by a line break) in this system:
+    /// column names and dimensioned cells converted, everything else as it was. In metric
+    /// the text is returned unchanged.
+    pub fn csv_text(self, text: &str) -> String {
+        if self.is_metric() {
+            return text.to_string();
+        }
+        let mut lines = text.lines();
+        let Some(header) = lines.next() else {
+            return String::new();
+        };
+        let (header, kinds) = self.csv_header(header);
+        let mut out = header;
+        out.push('\n');
+        for line in lines {
+            out.push_str(&self.csv_row(&kinds, line));
+            out.push('\n');
+        }
+        out
+    }
+
     /// A CSV row of metric cells in this system: numeric cells of a dimensioned column
     /// converted (full round-trip precision), all other cells as they were. In metric the
     /// row is returned unchanged. Cells are split at commas, so quoted text cells must sit

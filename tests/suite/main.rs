@@ -3,6 +3,7 @@ mod actuation;
 mod app;
 mod app_bench;
 mod app_map;
+mod app_units;
 mod app_walkthrough;
 mod app_window;
 mod calibration;
