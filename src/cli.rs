@@ -1256,7 +1256,7 @@ fn bores(a: &BoresArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Resu
         )?;
     }
     let len = units.unit(Quantity::Length);
-    let len_words = if units.is_metric() { len } else { "inches" };
+    let len_words = units.length_words();
     writeln!(
         out,
         "strokes in {len_words} against bore; '-' where the quantity does not exist (the segment does not \

@@ -147,6 +147,14 @@ impl UnitSystem {
         }
     }
 
+    /// The length unit as a word in a sentence: `mm` or `inches` ("strokes in inches").
+    pub fn length_words(self) -> &'static str {
+        match self {
+            UnitSystem::Metric => "mm",
+            UnitSystem::Inch => "inches",
+        }
+    }
+
     /// Whether this is the metric default (whose output is unchanged).
     pub fn is_metric(self) -> bool {
         self == UnitSystem::Metric

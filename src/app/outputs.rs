@@ -141,7 +141,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
         super::strips::status_ui(app, ui);
-        ui.label(RichText::new(format!("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or {} of room.", units().unit(Quantity::Length))).small());
+        ui.label(RichText::new(format!("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or {} of room.", units().length_words())).small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
         let stored = a.max_strain_energy_j().map_or_else(|| "store spring energy when bowed".to_string(), |e| units().prose(&format!("store up to {e:.3} J at the operating stroke")));
         ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));

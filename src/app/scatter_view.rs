@@ -570,7 +570,7 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
     ui.label(
         RichText::new(format!(
             "Margins: clearance or stroke in {}, or capacity over demand minus one in per cent.",
-            units().unit(Quantity::Length)
+            units().length_words()
         ))
         .small(),
     );

@@ -139,7 +139,7 @@ fn table(r: &ScatterReport, width: f32) -> Block {
         GREY,
         &format!(
             "Margins: clearance or stroke in {}, or capacity over demand minus one in per cent. 95 % Wilson: the score interval of the probability of failing (E. B. Wilson, JASA 1927). sd MC: standard deviation over the samples; sd prop.: law of propagation, JCGM 100:2008 section 5, sensitivities by central differences. Worst case: every input at the end of its tolerance in the harmful direction.",
-            super::format::units().unit(crate::units::Quantity::Length)
+            super::format::units().length_words()
         ),
     );
     b.height = y;

@@ -936,7 +936,7 @@ fn check_table(a: &Analysis, width: f32) -> Section {
         GREY,
         &format!(
             "Margins are in the check's own unit: {} for geometry, otherwise capacity over demand minus one, in per cent (+42.0 % is a capacity 1.42 times the demand). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
-            f::units().unit(crate::units::Quantity::Length),
+            f::units().length_words(),
             if all { "every check passes" } else { "at least one check fails" }
         ),
     );
