@@ -292,20 +292,35 @@ pub fn run_centred(seg: &Segment) -> Vec<Check> {
     let max_stroke = seg.max_stroke_mm();
     let mut out = Vec::with_capacity(CheckId::BASIC.len());
 
-    // 1. Fits when relaxed, at the smallest bore.
+    // 1. Fits when relaxed, at the smallest bore; in an out-of-round bore (an ellipse with
+    //    diameters D + o/2 and D - o/2, the mechanics note) across its least diameter.
     let need = seg.relaxed_diameter_mm() + 1.0;
-    let fit_margin = small - need;
+    let oval = d.bore.out_of_round_mm;
+    let least = small - 0.5 * oval;
+    let fit_margin = least - need;
     out.push(Check::new(
         CheckId::Fit,
         fit_margin >= 0.0,
         Some(fit_margin),
-        format!(
-            "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs smallest bore {:.2} mm",
-            seg.relaxed_diameter_mm(),
-            d.end_plate_diameter_mm,
-            seg.outer_diameter_mm(0.0),
-            small
-        ),
+        if oval > 0.0 {
+            format!(
+                "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs the least diameter of the smallest bore, {:.2} mm ({:.2} mm less half the out-of-roundness {:.2} mm)",
+                seg.relaxed_diameter_mm(),
+                d.end_plate_diameter_mm,
+                seg.outer_diameter_mm(0.0),
+                least,
+                small,
+                oval
+            )
+        } else {
+            format!(
+                "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs smallest bore {:.2} mm",
+                seg.relaxed_diameter_mm(),
+                d.end_plate_diameter_mm,
+                seg.outer_diameter_mm(0.0),
+                small
+            )
+        },
         Some(small),
         Some(0.0),
     ));

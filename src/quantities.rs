@@ -61,6 +61,11 @@ impl Segment {
             largest_bore_mm: largest.bore_mm,
             holding_mm: largest.holding_stroke_mm,
             largest_fits: largest.limit_stroke_mm.is_some(),
+            force_set: match self.design.operating() {
+                crate::design::Operating::Stroke(_) => None,
+                crate::design::Operating::Pull(_) => Some("pull"),
+                crate::design::Operating::Torque(_) => Some("torque"),
+            },
             top: match self.design.actuator.stiffness_n_per_mm() {
                 None => self.stroke_top_mm(smallest),
                 // Through a compliant drive the maximum is of travel: the strokes end where
@@ -172,6 +177,9 @@ pub struct UsableStroke {
     /// The top of the range at the smallest bore and what sets it (`None`: the relaxed
     /// segment does not fit the smallest bore).
     pub top: Option<(f64, StrokeBound)>,
+    /// What the actuator sets when it is not the stroke (`"pull"`, `"torque"`): then the
+    /// stroke follows the bore, and a stroke usable at every bore is only a comparison.
+    pub force_set: Option<&'static str>,
 }
 
 impl UsableStroke {
@@ -181,9 +189,27 @@ impl UsableStroke {
         self.holding_mm.filter(|h| *h < top).map(|h| (h, top))
     }
 
+    /// Whether the missing range is a finding: under a fixed stroke it is (no stroke
+    /// serves every bore); under a set pull or torque each bore takes its own stroke, and
+    /// the checks judge those.
+    pub fn is_problem(&self) -> bool {
+        self.range_mm().is_none() && self.force_set.is_none()
+    }
+
     /// One line in words: the range, its width and what bounds each end, or plainly that
-    /// there is none and why.
+    /// there is none and why. Under a set pull or torque the line says that the stroke
+    /// follows the bore and the fixed-stroke range is a comparison only.
     pub fn describe(&self) -> String {
+        let fixed = self.describe_fixed();
+        match self.force_set {
+            None => fixed,
+            Some(kind) => format!(
+                "under the set {kind} the stroke follows the bore and each bore is judged at its own (see the operating point per bore); for comparison, at one fixed stroke: {fixed}"
+            ),
+        }
+    }
+
+    fn describe_fixed(&self) -> String {
         let small = self.smallest_bore_mm;
         let large = self.largest_bore_mm;
         match (self.range_mm(), self.top, self.holding_mm) {

@@ -172,7 +172,13 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.separator();
             let mut text = units().prose(&u.describe());
             text[..1].make_ascii_uppercase();
-            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui) };
+            let col = if u.range_mm().is_some() {
+                C_HOLD
+            } else if u.is_problem() {
+                error_color(ui)
+            } else {
+                ui.visuals().text_color()
+            };
             ui.label(RichText::new(text).color(col)).on_hover_text(
                 "The strokes at which every bore of the tolerance band works: the segment holds the required load at the largest bore and stays within the stress limit, the model's limit and the actuator's travel at the smallest. The green fill of the stroke-against-bore plot shows the window bore by bore.",
             );

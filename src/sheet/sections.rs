@@ -396,7 +396,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
         );
     }
     if let Some(u) = a.usable_stroke() {
-        let usable = u.range_mm().is_some();
+        let usable = !u.is_problem();
         y = b.paragraph(
             0.0,
             y + 2.0,

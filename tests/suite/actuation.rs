@@ -1021,3 +1021,37 @@ fn the_usable_stroke_ends_where_the_travel_reaches_the_maximum() {
     let top = seg.usable_stroke_across_tolerance().top.map(|t| t.0);
     assert!(top.is_some_and(|t| t > reach), "{top:?}");
 }
+
+/// Under a set torque each bore takes its own stroke, so a missing fixed-stroke window is
+/// not a finding: the torque sample passes every check (the contract's checks, each at its
+/// bore's own operating stroke), and its usable-stroke line says that the stroke follows the
+/// bore and gives the fixed-stroke comparison, not drawn as a failure. The same design
+/// under a fixed stroke reports the missing window as the finding it then is.
+#[test]
+fn under_a_set_torque_the_fixed_stroke_window_is_a_comparison() {
+    let d = load("water-main-tractor-torque-screw.ron");
+    let a = bowgrip::analysis::analyse(&d).unwrap_or_else(|e| panic!("{e}"));
+    assert!(a.checks.iter().all(|c| c.pass));
+    let u = a.usable_stroke().expect("both bores fit");
+    assert!(u.range_mm().is_none());
+    assert!(!u.is_problem());
+    let words = u.describe();
+    assert!(
+        words.starts_with("under the set torque the stroke follows the bore"),
+        "{words}"
+    );
+    assert!(
+        words.contains("no usable stroke across the bore tolerance"),
+        "{words}"
+    );
+    let mut fixed = d.clone();
+    fixed.set_operating(Operating::Stroke(2.0));
+    let a = bowgrip::analysis::analyse(&fixed).unwrap_or_else(|e| panic!("{e}"));
+    let u = a.usable_stroke().expect("both bores fit");
+    assert!(u.is_problem());
+    assert!(
+        u.describe().starts_with("no usable stroke"),
+        "{}",
+        u.describe()
+    );
+}
