@@ -391,7 +391,8 @@ impl UnitSystem {
             // is a design file's own value, kept as written.
             let unit = unit.filter(|(u, _)| {
                 let after = &text[j + 1 + u.len()..];
-                !(*u == "N" && after.starts_with(" mm")) && !after.starts_with(" in the file")
+                let compound = *u == "N" && after.starts_with(" mm");
+                !(compound || after.starts_with(" in the file"))
             });
             let (Some((u, q)), Ok(v)) = (unit, text[i..j].parse::<f64>()) else {
                 i = j;

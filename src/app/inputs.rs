@@ -95,12 +95,12 @@ impl<'a> Row<'a> {
     }
 
     /// A file value (SI) in the display units.
-    fn to_shown(&self, si: f64) -> f64 {
+    fn shown_of(&self, si: f64) -> f64 {
         self.quantity().map_or(si, |q| units().to_display(q, si))
     }
 
     /// A value in the display units back in the file's units.
-    fn from_shown(&self, shown: f64) -> f64 {
+    fn file_of(&self, shown: f64) -> f64 {
         self.quantity()
             .map_or(shown, |q| units().from_display(q, shown))
     }
@@ -113,7 +113,7 @@ impl<'a> Row<'a> {
             Some(Quantity::Thickness) if !u.is_metric() => {
                 format!("{:.4}", u.to_display(Quantity::Thickness, si))
             }
-            _ => fmt_value(self.to_shown(si)),
+            _ => fmt_value(self.shown_of(si)),
         }
     }
 
@@ -381,15 +381,15 @@ impl InputsPanel {
             .inner
             .on_hover_text(&tip);
         // Slider, in the display units; only a move writes, converted back.
-        let mut v = row.to_shown(value);
+        let mut v = row.shown_of(value);
         let (lo, hi) = slider_span(&row, limit, d, value);
-        let (lo, hi) = (row.to_shown(lo), row.to_shown(hi));
+        let (lo, hi) = (row.shown_of(lo), row.shown_of(hi));
         let mut slider = egui::Slider::new(&mut v, lo..=hi)
             .show_value(false)
             .clamping(egui::SliderClamping::Never)
             .logarithmic(row.log);
         if row.log && lo <= 0.0 {
-            let smallest = row.smallest.map_or(hi * 1e-4, |s| row.to_shown(s));
+            let smallest = row.smallest.map_or(hi * 1e-4, |s| row.shown_of(s));
             slider = slider.smallest_positive(smallest);
         }
         if row.integer {
@@ -403,7 +403,7 @@ impl InputsPanel {
                 Gesture::Done
             };
             self.take_gesture(row.key, out);
-            let _ = self.propose(d, row, row.from_shown(v), gesture, out, &set);
+            let _ = self.propose(d, row, row.file_of(v), gesture, out, &set);
             self.typed.remove(row.key);
         }
         if resp.drag_stopped() {
@@ -429,7 +429,7 @@ impl InputsPanel {
                 },
             );
             self.take_gesture(row.key, out);
-            match text.trim().parse::<f64>().map(|x| row.from_shown(x)) {
+            match text.trim().parse::<f64>().map(|x| row.file_of(x)) {
                 Ok(x) => {
                     if self.propose(d, row, x, Gesture::Ongoing, out, &set)
                         && let Some(t) = self.typed.get_mut(row.key)

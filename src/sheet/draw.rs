@@ -203,7 +203,7 @@ impl Block {
             size,
             weight,
             color,
-            text: text.into(),
+            text,
         });
     }
 
