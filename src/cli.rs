@@ -1038,13 +1038,7 @@ fn reading_in(
     unit: &'static str,
     decimals: usize,
 ) -> (String, &'static str) {
-    let q = match unit {
-        "N" => Some(Quantity::Force),
-        "N m" => Some(Quantity::Torque),
-        "mm" => Some(Quantity::Length),
-        _ => None,
-    };
-    match q {
+    match Quantity::of_metric_unit(unit) {
         Some(q) => (
             format!(
                 "{:.d$}",

@@ -60,6 +60,15 @@ pub enum Quantity {
 }
 
 impl Quantity {
+    /// The kind of a value the metric display labels with `unit` (`mm`, `N`, `MPa`,
+    /// `N m`, `N/mm`, `J`); `None` for any other label (degrees, turns, per cent, none).
+    pub fn of_metric_unit(unit: &str) -> Option<Quantity> {
+        PROSE_UNITS
+            .iter()
+            .find(|(u, _)| *u == unit)
+            .map(|(_, q)| *q)
+    }
+
     /// How many SI display units (mm, N, MPa, N m, N/mm, J) one displayed unit holds.
     pub fn factor(self, system: UnitSystem) -> f64 {
         match system {

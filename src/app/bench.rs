@@ -651,7 +651,11 @@ fn bench_plot(id: &str, y: (&str, UnitKind), width: f32, height: f32) -> Plot<'s
     if super::units().is_metric() {
         plot
     } else {
-        super::outputs::display_axes(plot, ("measured stroke", UnitKind::Length), y)
+        super::outputs::display_axes(
+            plot,
+            ("measured stroke", Some(UnitKind::Length)),
+            (y.0, Some(y.1)),
+        )
     }
 }
 

@@ -80,12 +80,7 @@ impl<'a> Row<'a> {
     fn quantity(&self) -> Option<Quantity> {
         match self.unit {
             "mm" if self.key == "strip.thickness_mm" => Some(Quantity::Thickness),
-            "mm" => Some(Quantity::Length),
-            "N" => Some(Quantity::Force),
-            "MPa" => Some(Quantity::Stress),
-            "N m" => Some(Quantity::Torque),
-            "N/mm" => Some(Quantity::Stiffness),
-            _ => None,
+            unit => Quantity::of_metric_unit(unit),
         }
     }
 

@@ -552,18 +552,22 @@ fn plot_frame<'a>(
                 .follow_insertion_order(true),
         )
         .grid_spacing(egui::Rangef::new(GRID_MIN_PX, 300.0));
-    display_axes(plot, (x_name, xq), (y_name, yq))
+    display_axes(plot, (x_name, Some(xq)), (y_name, Some(yq)))
 }
 
 /// A plot's axes titled, gridded at round values and numbered in the display units of
-/// `xq` and `yq`, over data in the file's units (mm, N, MPa).
+/// `xq` and `yq` (`None`: a pure number, the title as given), over data in the file's
+/// units (mm, N, MPa).
 pub(super) fn display_axes<'a>(
     plot: Plot<'a>,
-    (x_name, xq): (&str, Quantity),
-    (y_name, yq): (&str, Quantity),
+    (x_name, xq): (&str, Option<Quantity>),
+    (y_name, yq): (&str, Option<Quantity>),
 ) -> Plot<'a> {
-    let (fx, fy) = (units().from_display(xq, 1.0), units().from_display(yq, 1.0));
-    let (x_label, y_label) = (axis_title(x_name, xq), axis_title(y_name, yq));
+    let factor = |q: Option<Quantity>| q.map_or(1.0, |q| units().from_display(q, 1.0));
+    let title =
+        |name: &str, q: Option<Quantity>| q.map_or(name.to_string(), |q| axis_title(name, q));
+    let (fx, fy) = (factor(xq), factor(yq));
+    let (x_label, y_label) = (title(x_name, xq), title(y_name, yq));
     plot.custom_x_axes(vec![
         AxisHints::new_x()
             .label(x_label)

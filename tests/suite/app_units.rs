@@ -85,6 +85,45 @@ fn inches_show_and_take_inches_and_the_design_stays_in_millimetres() {
     assert_eq!(h.state().session().units, UnitSystem::Metric);
 }
 
+/// The design map's range fields show inches over the axis's own millimetres.
+#[test]
+fn the_design_map_ranges_read_in_inches() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    choose(&mut h, "Units: in, lbf, ksi");
+    h.get_by_label("Tools").click();
+    h.run();
+    h.get_by_label("Design map…").click();
+    h.run_steps(3);
+    let (x, _) = h
+        .state()
+        .map_view()
+        .axes()
+        .cloned()
+        .unwrap_or_else(|| panic!("no axes"));
+    assert_eq!(x.field, "strip.thickness_mm");
+    // The first thickness of the range in inches (25.4 mm per inch, NIST SP 811).
+    let want = x.from / 25.4;
+    let shown: Vec<String> = h
+        .query_all_by_role(Role::SpinButton)
+        .filter_map(|n| n.value())
+        .collect();
+    let read = shown.iter().find_map(|v| {
+        v.strip_prefix("from ")?
+            .strip_suffix(" in")?
+            .parse::<f64>()
+            .ok()
+    });
+    // Shown to about five significant figures.
+    assert!(
+        read.is_some_and(|r| (r / want - 1.0).abs() < 1e-4),
+        "{want} in {shown:?}"
+    );
+    // The axes stay in the file's field units: only the display changed.
+    assert!(x.from > 0.01 && x.from < 1.0, "{}", x.from);
+}
+
 #[test]
 fn the_choice_is_kept_in_the_session() {
     let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));

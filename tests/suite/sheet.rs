@@ -626,6 +626,25 @@ fn the_sheet_in_inches_converts_every_number_and_traces_the_inputs() {
             assert_inside(&format!("{name} in inches"), &lay(&d, paper, &inch));
         }
     }
+    // The design-map page numbers its axes in inches too: the demo's thickness axis
+    // from 0.2 to 0.3 mm is 0.0079 to 0.0118 in (25.4 mm per inch, NIST SP 811), ticked
+    // every 0.0005 in.
+    let axis = |t: &str| bowgrip::map::command::axis_spec(t).unwrap_or_else(|e| panic!("{e}"));
+    let with_map = sheet::SheetOptions {
+        map: Some((
+            axis("strip.thickness_mm:0.2:0.3:3"),
+            axis("strip.count:8:12:3"),
+        )),
+        units: UnitSystem::Inch,
+    };
+    let laid = lay(&d, Paper::A4, &with_map);
+    let texts: Vec<&str> = laid.texts.iter().map(|t| t.text.as_str()).collect();
+    assert!(
+        texts.contains(&"across: strip.thickness_mm (in)"),
+        "{texts:?}"
+    );
+    assert!(texts.contains(&"up: strip.count"), "{texts:?}");
+    assert!(texts.contains(&"0.0100"), "an inch tick: {texts:?}");
     // Metric is the default: the options' default lays out what the plain call does.
     let metric = lay(&d, Paper::A4, &sheet::SheetOptions::default());
     let plain = sheet::layout_dated(&d, "d.ron", b"d", Paper::A4, "2026-01-01").expect("lays out");
