@@ -665,7 +665,13 @@ fn nearest(map: &DesignMap, x: f64, y: f64) -> Option<(usize, usize)> {
 fn field_words(field: &str) -> String {
     match crate::design::limit(field) {
         Some(row) if row.unit.is_empty() => format!("{} ({field})", row.meaning),
-        Some(row) => format!("{}, {} ({field})", row.meaning, row.unit),
+        Some(row) => {
+            let u = super::units();
+            let unit = Quantity::of_metric_unit(row.unit)
+                .filter(|_| !u.is_metric())
+                .map_or(row.unit, |q| u.unit(q));
+            format!("{}, {unit} ({field})", row.meaning)
+        }
         None => field.to_string(),
     }
 }
