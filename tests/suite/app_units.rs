@@ -124,6 +124,61 @@ fn the_design_map_ranges_read_in_inches() {
     assert!(x.from > 0.01 && x.from < 1.0, "{}", x.from);
 }
 
+/// The exports follow the display: CSV columns named in inches with the values divided by
+/// 25.4 (NIST SP 811, Appendix B), SVG axes titled in inches.
+#[test]
+fn exports_in_inches() {
+    let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let out = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+    let mut h = harness(GripApp::new(state.path().to_path_buf(), None));
+    h.run();
+    choose(&mut h, "Units: in, lbf, ksi");
+    h.get_by_role_and_label(Role::Button, "Tools").click();
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Export plots and tables…")
+        .click();
+    h.run();
+    let base = out.path().join("demo");
+    h.get_by_role_and_label(Role::TextInput, "Files start with")
+        .set_text_value_accesskit(base.to_str().unwrap_or_else(|| panic!("utf-8 path")));
+    h.run();
+    h.get_by_role_and_label(Role::Button, "Export all").click();
+    h.run();
+    let read = |ending: &str| {
+        std::fs::read_to_string(out.path().join(format!("demo{ending}")))
+            .unwrap_or_else(|e| panic!("{ending}: {e}"))
+    };
+    let window = read("-window.csv");
+    assert_eq!(
+        window.lines().next(),
+        Some(
+            "bore_in,first_contact_stroke_in,holding_stroke_in,stress_limit_stroke_in,line_contact_stroke_in,limit_stroke_in"
+        )
+    );
+    let a = h
+        .state()
+        .analysis()
+        .unwrap_or_else(|| panic!("no analysis"));
+    let first: Vec<f64> = window
+        .lines()
+        .nth(1)
+        .unwrap_or_else(|| panic!("no rows"))
+        .split(',')
+        .map(|c| c.parse().unwrap_or(f64::NAN))
+        .collect();
+    let bore_mm = a.window[0].bore_mm;
+    assert!((first[0] * 25.4 / bore_mm - 1.0).abs() < 1e-12, "{first:?}");
+    let curve = read("-curve.csv");
+    assert!(
+        curve.starts_with("stroke_in,phase,axial_force_per_strip_lbf,"),
+        "{}",
+        &curve[..80.min(curve.len())]
+    );
+    assert!(read("-forces.svg").contains("force, lbf"));
+    assert!(read("-stress.svg").contains("stress, ksi"));
+    assert!(read("-window.svg").contains("stroke, in"));
+}
+
 #[test]
 fn the_choice_is_kept_in_the_session() {
     let state = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
