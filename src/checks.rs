@@ -12,6 +12,7 @@ use serde::{Serialize, Serializer};
 use crate::actuation;
 use crate::design::Operating;
 use crate::segment::{Segment, SegmentError, SegmentState};
+use crate::units::{Quantity, UnitSystem};
 
 /// Unit of a check's margin (serialised as its label, `mm` or `ratio`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -164,9 +165,19 @@ pub struct Check {
 }
 
 impl Check {
-    /// What is checked, in words (`id.title()`).
+    /// What is checked, in words: `id.title()`, except for a static or fatigue check that
+    /// a set pull or torque moved to the largest bore (its reason starts with
+    /// [`JUDGED_AT_LARGEST`]), whose title names that bore.
     pub fn title(&self) -> &'static str {
-        self.id.title()
+        match self.id {
+            CheckId::Static if self.reason.starts_with(JUDGED_AT_LARGEST) => {
+                "static stress at the largest bore"
+            }
+            CheckId::Fatigue if self.reason.starts_with(JUDGED_AT_LARGEST) => {
+                "fatigue (Goodman, zero-to-peak) at the largest bore"
+            }
+            _ => self.id.title(),
+        }
     }
 
     /// Unit of the margin (`id.unit()`).
@@ -180,6 +191,24 @@ impl Check {
     /// command line, the app and the sheet.
     pub fn margin_text(&self) -> Option<String> {
         self.unit().margin_text(self.margin?)
+    }
+
+    /// [`Check::margin_text`] in display units: a length margin in inches to 4 decimals
+    /// (`+0.0049 in`) when `units` is inches; a ratio margin reads the same in both. In
+    /// metric exactly `margin_text`.
+    pub fn margin_text_in(&self, units: UnitSystem) -> Option<String> {
+        match self.unit() {
+            MarginUnit::Mm if !units.is_metric() => {
+                let m = Some(self.margin?).filter(|m| m.is_finite())?;
+                let shown = units.to_display(Quantity::Length, m);
+                Some(format!(
+                    "{:+.4} {}",
+                    no_negative_zero(shown, 4),
+                    units.unit(Quantity::Length)
+                ))
+            }
+            _ => self.margin_text(),
+        }
     }
 }
 
@@ -263,20 +292,35 @@ pub fn run_centred(seg: &Segment) -> Vec<Check> {
     let max_stroke = seg.max_stroke_mm();
     let mut out = Vec::with_capacity(CheckId::BASIC.len());
 
-    // 1. Fits when relaxed, at the smallest bore.
+    // 1. Fits when relaxed, at the smallest bore; in an out-of-round bore (an ellipse with
+    //    diameters D + o/2 and D - o/2, the mechanics note) across its least diameter.
     let need = seg.relaxed_diameter_mm() + 1.0;
-    let fit_margin = small - need;
+    let oval = d.bore.out_of_round_mm;
+    let least = small - 0.5 * oval;
+    let fit_margin = least - need;
     out.push(Check::new(
         CheckId::Fit,
         fit_margin >= 0.0,
         Some(fit_margin),
-        format!(
-            "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs smallest bore {:.2} mm",
-            seg.relaxed_diameter_mm(),
-            d.end_plate_diameter_mm,
-            seg.outer_diameter_mm(0.0),
-            small
-        ),
+        if oval > 0.0 {
+            format!(
+                "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs the least diameter of the smallest bore, {:.2} mm ({:.2} mm less half the out-of-roundness {:.2} mm)",
+                seg.relaxed_diameter_mm(),
+                d.end_plate_diameter_mm,
+                seg.outer_diameter_mm(0.0),
+                least,
+                small,
+                oval
+            )
+        } else {
+            format!(
+                "relaxed diameter {:.2} mm (plates {:.2} mm, strips {:.2} mm) + 1 mm clearance vs smallest bore {:.2} mm",
+                seg.relaxed_diameter_mm(),
+                d.end_plate_diameter_mm,
+                seg.outer_diameter_mm(0.0),
+                small
+            )
+        },
         Some(small),
         Some(0.0),
     ));
@@ -414,6 +458,10 @@ pub fn run_centred(seg: &Segment) -> Vec<Check> {
     out
 }
 
+/// How the reason of a stress check moved to the largest bore begins (see
+/// [`Check::title`]).
+pub const JUDGED_AT_LARGEST: &str = "judged at the largest bore";
+
 /// The static or the fatigue check (`id`) of the state `s`.
 /// Under a set pull or torque the stroke is longest, and so the stress highest, in the
 /// largest bore, not the smallest where a fixed stroke stresses the strips most. There the
@@ -436,7 +484,7 @@ fn worse_under_set_pull(seg: &Segment, at_smallest: Check, large: f64, id: Check
         return at_smallest;
     }
     there.reason = format!(
-        "judged at the largest bore, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
+        "{JUDGED_AT_LARGEST}, {large:.3} mm, not the smallest: under a set pull the stroke, and the stress, is largest there; {}",
         there.reason
     );
     there

@@ -18,12 +18,13 @@ use anyhow::{Context, anyhow, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
 use crate::actuation::{self, Drive};
-use crate::checks::{self, Check, CheckId};
+use crate::checks::{self, Check, CheckId, MarginUnit};
 use crate::design::{self, Design, show_number};
 use crate::quantities::{STATE_FIELDS, UsableStroke};
 use crate::segment::{BORE_ROW_COLUMNS, BorePath, STATE_COLUMNS, Segment, SegmentState, csv_cell};
 use crate::sharing;
 use crate::sheet::{self, Paper};
+use crate::units::{Quantity, UnitSystem};
 
 /// Default number of strokes on a `sweep`.
 pub const SWEEP_POINTS: usize = 200;
@@ -56,6 +57,11 @@ pub struct Cli {
     /// Design file (.ron) to open in the app; without it the app reopens the last design
     /// (the built-in demo on a first start).
     pub file: Option<PathBuf>,
+    /// Units of the printed numbers (tables, CSV, the sheet): mm (millimetre, newton, MPa,
+    /// N m) or in (inch, pound-force, ksi, lbf in). JSON stays in the SI units its keys
+    /// name, so `--units in` with `--json` is refused.
+    #[arg(long, global = true, value_enum, default_value_t = UnitsArg::Mm)]
+    pub units: UnitsArg,
     /// What to compute; none opens the app.
     #[command(subcommand)]
     pub command: Option<Command>,
@@ -67,7 +73,7 @@ pub enum Command {
     /// One state of the segment at a stroke: forces, diameter, flat run, stress.
     Point(PointArgs),
     /// The force-stroke curve at one bore, from rest to the model's limit or the actuator's
-    /// maximum stroke, whichever comes first.
+    /// maximum (of travel, through a compliant drive), whichever comes first.
     Sweep(SweepArgs),
     /// Strokes against bore: first contact, holding, stress limit, line contact and model
     /// limit for equally spaced bores.
@@ -114,6 +120,24 @@ pub struct PointArgs {
     /// Load sharing: the out-of-round bore's largest diameter [default: the governing case].
     #[arg(long = "major-axis", value_enum)]
     pub major_axis: Option<MajorAxisArg>,
+}
+
+/// Display units as spelled on the command line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum UnitsArg {
+    /// Millimetre, newton, MPa, N m.
+    Mm,
+    /// Inch, pound-force, ksi, lbf in.
+    In,
+}
+
+impl From<UnitsArg> for UnitSystem {
+    fn from(u: UnitsArg) -> UnitSystem {
+        match u {
+            UnitsArg::Mm => UnitSystem::Metric,
+            UnitsArg::In => UnitSystem::Inch,
+        }
+    }
 }
 
 /// Arguments of `completions`.
@@ -369,7 +393,35 @@ pub fn install_panic_hook() {
 /// Parses the process arguments. On help or version it prints them and gives status 0; on
 /// a bad command line it prints one line and gives status 2.
 pub fn parse_args() -> Result<Cli, ExitCode> {
-    Cli::try_parse_from(joined_numbers(std::env::args_os())).map_err(|e| usage_error(&e))
+    Cli::try_parse_from(units_last(joined_numbers(std::env::args_os())))
+        .map_err(|e| usage_error(&e))
+}
+
+/// Moves `--units VALUE` (or `--units=VALUE`) to the end of the arguments, so that it may
+/// come before the sub-command too (`bowgrip --units in check FILE`): the top level's
+/// arguments otherwise conflict with a sub-command. Nothing after a `--` is moved.
+fn units_last(args: Vec<std::ffi::OsString>) -> Vec<std::ffi::OsString> {
+    let mut kept = Vec::with_capacity(args.len());
+    let mut moved = Vec::new();
+    let mut rest = Vec::new();
+    let mut args = args.into_iter();
+    while let Some(arg) = args.next() {
+        match arg.to_str() {
+            Some("--") => {
+                rest.push(arg);
+                rest.extend(args.by_ref());
+            }
+            Some("--units") => {
+                moved.push(arg);
+                moved.extend(args.next());
+            }
+            Some(a) if a.starts_with("--units=") => moved.push(arg),
+            _ => kept.push(arg),
+        }
+    }
+    kept.extend(moved);
+    kept.extend(rest);
+    kept
 }
 
 /// Options that take a number, whose value may start with `-`.
@@ -503,14 +555,16 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         crate::app::run(cli.file)?;
         return Ok(Status::Done);
     };
+    let units = UnitSystem::from(cli.units);
+    refuse_units(&command, units)?;
     let stdout = io::stdout();
     let mut out = BufWriter::new(Stdout(stdout.lock()));
     let status = match command {
-        Command::Point(a) => point(&a, &mut out)?,
-        Command::Sweep(a) => sweep(&a, &mut out)?,
-        Command::Bores(a) => bores(&a, &mut out)?,
-        Command::Check(a) => check(&a, &mut out)?,
-        Command::Sheet(a) => write_sheet(&a)?,
+        Command::Point(a) => point(&a, units, &mut out)?,
+        Command::Sweep(a) => sweep(&a, units, &mut out)?,
+        Command::Bores(a) => bores(&a, units, &mut out)?,
+        Command::Check(a) => check(&a, units, &mut out)?,
+        Command::Sheet(a) => write_sheet(&a, units)?,
         Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Scatter(a) => crate::scatter::command::run(&a, &mut out).map(|()| Status::Done)?,
@@ -522,6 +576,37 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
     };
     out.flush()?;
     Ok(status)
+}
+
+/// Refuses `--units in` where it cannot apply: with `--json` (the keys name SI units by
+/// contract: `stroke_mm`, `max_stress_mpa`), and on the sub-commands whose output keeps
+/// the design file's own units (`compare`, `map`, `scatter`).
+fn refuse_units(command: &Command, units: UnitSystem) -> anyhow::Result<()> {
+    if units.is_metric() {
+        return Ok(());
+    }
+    let json = match command {
+        Command::Point(a) => a.json,
+        Command::Sweep(a) => a.json,
+        Command::Bores(a) => a.json,
+        Command::Check(a) => a.json,
+        Command::Compare(_) => bail!(
+            "--units in: compare prints in the units of the design file and the bench CSV (mm, N); use --units mm (the default)"
+        ),
+        Command::Map(_) => bail!(
+            "--units in: map works on the design file's own fields (mm, N, MPa); use --units mm (the default)"
+        ),
+        Command::Scatter(_) => bail!(
+            "--units in: scatter prints in the design file's units (mm, N, MPa); use --units mm (the default)"
+        ),
+        Command::Sheet(_) | Command::Completions(_) => false,
+    };
+    if json {
+        bail!(
+            "--units in does not apply to --json: JSON keys name their SI units (stroke_mm, max_stress_mpa) and always hold mm, N and MPa; for inches use --csv (columns such as stroke_in) or the table"
+        );
+    }
+    Ok(())
 }
 
 // ---------------------------------------------------------------------------------------
@@ -579,7 +664,7 @@ fn no_fit_message(e: &crate::segment::SegmentError, width_mm: f64, bore_mm: f64)
 // ---------------------------------------------------------------------------------------
 // point
 
-fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+fn point(a: &PointArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Result<Status> {
     let (design, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
     let drive = Drive::of(&seg);
@@ -600,19 +685,34 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
             serde_json::to_writer(&mut *out, &point_json(&state, &drive)?)?;
             writeln!(out)?;
         } else {
-            write!(out, "{}", point_table(&seg, &state))?;
+            write!(out, "{}", point_table(&seg, &state, units))?;
         }
         return Ok(Status::Done);
     }
-    if stroke_mm > seg.max_stroke_mm() {
+    // Through a compliant drive the actuator's maximum is of travel (stroke plus the
+    // drive's stretch), which runs out before the stroke does.
+    let travel_mm = actuation::travel_at_mm(&path, stroke_mm);
+    if travel_mm > seg.max_stroke_mm() {
         // A note, not an error: the model state is still asked for. On stderr, so the JSON
         // and the table stay as they were.
-        eprintln!(
-            "bowgrip: note: stroke {} mm is past the actuator's maximum stroke of {} mm; the \
-             actuator cannot reach it",
-            show_number(stroke_mm),
-            show_number(seg.max_stroke_mm())
-        );
+        if travel_mm > stroke_mm {
+            let note = format!(
+                "bowgrip: note: stroke {} mm takes {} mm of actuator travel through the drive's \
+                 stretch, past the actuator's maximum of {} mm; the actuator cannot reach it",
+                show_number(stroke_mm),
+                show_number((travel_mm * 1e3).round() / 1e3),
+                show_number(seg.max_stroke_mm())
+            );
+            eprintln!("{}", units.prose(&note));
+        } else {
+            let note = format!(
+                "bowgrip: note: stroke {} mm is past the actuator's maximum stroke of {} mm; the \
+                 actuator cannot reach it",
+                show_number(stroke_mm),
+                show_number(seg.max_stroke_mm())
+            );
+            eprintln!("{}", units.prose(&note));
+        }
     }
     let shared =
         sharing::design_uses_sharing(&design) || a.clocking.is_some() || a.major_axis.is_some();
@@ -624,12 +724,16 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
                 .loaded_at_bore(path.bore_mm(), &sharing::Loading::default())
                 .and_then(|l| l.state(stroke_mm))
                 .map_err(|e| anyhow!("{}: {e}", a.file.display()))?;
-            write!(out, "{}", sharing::strips_csv(&sharing::strip_rows(&st)))?;
+            write!(
+                out,
+                "{}",
+                units.csv_text(&sharing::strips_csv(&sharing::strip_rows(&st)))
+            )?;
         } else if a.json {
             serde_json::to_writer(&mut *out, &point_json(&state, &drive)?)?;
             writeln!(out)?;
         } else {
-            write!(out, "{}", point_table(&seg, &state))?;
+            write!(out, "{}", point_table(&seg, &state, units))?;
         }
         return Ok(Status::Done);
     }
@@ -654,15 +758,19 @@ fn point(a: &PointArgs, out: &mut impl Write) -> anyhow::Result<Status> {
                 )
             })?;
     if a.csv {
-        write!(out, "{}", sharing::strips_csv(&loaded.strips))?;
+        write!(
+            out,
+            "{}",
+            units.csv_text(&sharing::strips_csv(&loaded.strips))
+        )?;
     } else if a.json {
         let mut v = loaded_json(&loaded)?;
         add_drive_keys(&mut v, &loaded.segment_state, &drive)?;
         serde_json::to_writer(&mut *out, &v)?;
         writeln!(out)?;
     } else {
-        write!(out, "{}", point_table(&seg, &loaded.segment_state))?;
-        write!(out, "{}", strips_table(&loaded))?;
+        write!(out, "{}", point_table(&seg, &loaded.segment_state, units))?;
+        write!(out, "{}", strips_table(&loaded, units))?;
     }
     Ok(Status::Done)
 }
@@ -742,19 +850,26 @@ fn loaded_json(p: &sharing::LoadedPoint) -> anyhow::Result<serde_json::Value> {
 }
 
 /// The per-strip table under the state table of `point` when the strips share unequally.
-fn strips_table(p: &sharing::LoadedPoint) -> String {
+fn strips_table(p: &sharing::LoadedPoint, units: UnitSystem) -> String {
     let mut t = String::new();
-    let stroke = |v: Option<f64>| fixed(v, 3);
+    let len = units.unit(Quantity::Length);
+    let stroke = |v: Option<f64>| fixed_in(units, Quantity::Length, v, 3);
+    let offset = |v: f64| units.to_display(Quantity::Length, v);
     let _ = writeln!(t);
-    let _ = writeln!(t, "load sharing ({})", p.governing);
     let _ = writeln!(
         t,
-        "  hub offset        y {:+.4} mm (up), z {:+.4} mm",
-        p.hub_offset_mm[0], p.hub_offset_mm[1]
+        "{}",
+        units.prose(&format!("load sharing ({})", p.governing))
     );
     let _ = writeln!(
         t,
-        "  first strip touches at {} mm, lifts the hub off its rest at {} mm, last strip touches at {} mm",
+        "  hub offset        y {:+.4} {len} (up), z {:+.4} {len}",
+        offset(p.hub_offset_mm[0]),
+        offset(p.hub_offset_mm[1])
+    );
+    let _ = writeln!(
+        t,
+        "  first strip touches at {} {len}, lifts the hub off its rest at {} {len}, last strip touches at {} {len}",
         stroke(p.first_strip_contact_stroke_mm),
         stroke(p.lift_off_stroke_mm),
         stroke(p.last_strip_contact_stroke_mm)
@@ -769,9 +884,14 @@ fn strips_table(p: &sharing::LoadedPoint) -> String {
     let _ = writeln!(
         t,
         "  {:>9}  {:>9}  {:<13}  {:>11}  {:>11}  {:>11}",
-        "clock deg", "gap mm", "phase", "contact N", "axial N", "stress MPa"
+        "clock deg",
+        format!("gap {len}"),
+        "phase",
+        format!("contact {}", units.unit(Quantity::Force)),
+        format!("axial {}", units.unit(Quantity::Force)),
+        format!("stress {}", units.unit(Quantity::Stress))
     );
-    let num = |v: f64, d: usize| fixed(v.is_finite().then_some(v), d);
+    let num = |q: Quantity, v: f64, d: usize| fixed_in(units, q, v.is_finite().then_some(v), d);
     for r in &p.strips {
         let phase = if r.phase.has_state() {
             r.phase.to_string()
@@ -780,13 +900,13 @@ fn strips_table(p: &sharing::LoadedPoint) -> String {
         };
         let _ = writeln!(
             t,
-            "  {:>9.1}  {:>9.4}  {:<13}  {:>11.3}  {:>11}  {:>11}",
+            "  {:>9.1}  {:>9}  {:<13}  {:>11}  {:>11}  {:>11}",
             r.clock_deg,
-            r.gap_mm,
+            units.number(Quantity::Length, r.gap_mm, 4),
             phase,
-            r.contact_force_n,
-            num(r.axial_force_n, 3),
-            num(r.max_stress_mpa, 1)
+            units.number(Quantity::Force, r.contact_force_n, 3),
+            num(Quantity::Force, r.axial_force_n, 3),
+            num(Quantity::Stress, r.max_stress_mpa, 1)
         );
     }
     t
@@ -800,9 +920,22 @@ fn fixed(v: Option<f64>, decimals: usize) -> String {
     }
 }
 
+/// [`fixed`] for an SI value of kind `q` shown in `units` (the metric decimals given; in
+/// metric exactly `fixed`).
+fn fixed_in(units: UnitSystem, q: Quantity, v: Option<f64>, decimals: usize) -> String {
+    fixed(
+        v.map(|v| units.to_display(q, v)),
+        units.decimals(q, decimals),
+    )
+}
+
 /// The operating mode in words with its value: `stroke 1.8 mm`, `pull 300 N`,
-/// `torque 0.5 N m (pull 942.5 N)`, and the drive's stiffness when it gives.
-fn operating_words(drive: &Drive) -> String {
+/// `torque 0.5 N m (pull 942.5 N)`, and the drive's stiffness when it gives; in `units`.
+fn operating_words(drive: &Drive, units: UnitSystem) -> String {
+    units.prose(&operating_words_mm(drive))
+}
+
+fn operating_words_mm(drive: &Drive) -> String {
     let op = drive.operating;
     let mut words = format!(
         "{} {} {}",
@@ -819,72 +952,103 @@ fn operating_words(drive: &Drive) -> String {
     words
 }
 
-fn point_table(seg: &Segment, s: &SegmentState) -> String {
+fn point_table(seg: &Segment, s: &SegmentState, units: UnitSystem) -> String {
     let mut t = String::new();
     let bore_label = if s.bore_mm == seg.bore_nominal_mm {
         "bore (nominal)"
     } else {
         "bore"
     };
+    let len = units.unit(Quantity::Length);
+    let length = |v: Option<f64>| fixed_in(units, Quantity::Length, v, 3);
     let mut rows: Vec<(&str, String, &str)> = vec![
-        (bore_label, format!("{:.3}", s.bore_mm), "mm"),
-        ("gap to the wall", format!("{:.3}", s.gap_mm), "mm"),
+        (bore_label, length(Some(s.bore_mm)), len),
+        ("gap to the wall", length(Some(s.gap_mm)), len),
         (
             "stroke",
-            fixed(Some(s.stroke_mm).filter(|v| v.is_finite()), 3),
-            "mm",
+            length(Some(s.stroke_mm).filter(|v| v.is_finite())),
+            len,
         ),
         ("phase", s.phase.to_string(), ""),
     ];
     rows.extend(
         STATE_FIELDS
             .iter()
-            .map(|f| (f.label, f.number(s, "-"), f.unit)),
+            .map(|f| (f.label, f.number_in(s, "-", units), f.unit_in(units))),
     );
     rows.extend([
         (
             "first contact at stroke",
-            fixed(s.first_contact_stroke_mm, 3),
-            "mm",
+            length(s.first_contact_stroke_mm),
+            len,
         ),
         (
             "line contact from stroke",
-            fixed(s.line_contact_stroke_mm, 3),
-            "mm",
+            length(s.line_contact_stroke_mm),
+            len,
         ),
         (
             "model limit at stroke",
-            format!("{:.3}", s.limit_stroke_mm),
-            "mm",
+            length(Some(s.limit_stroke_mm)),
+            len,
         ),
     ]);
     for (label, value, unit) in rows {
         let _ = writeln!(t, "{label:<26} {value:>14} {unit}");
     }
     if let Some(r) = &s.actuator {
+        // The effort is N or N m, the position mm or degrees (`ActuatorReading`).
+        let (effort, effort_unit) = reading_in(units, r.effort, r.effort_unit, 3);
+        let (position, position_unit) = reading_in(units, r.position, r.position_unit, 3);
         let _ = writeln!(
             t,
-            "{:<26} {:>14.3} {} at {:.3} {}",
-            "actuator effort", r.effort, r.effort_unit, r.position, r.position_unit
+            "{:<26} {:>14} {} at {} {}",
+            "actuator effort", effort, effort_unit, position, position_unit
         );
     }
     let _ = writeln!(t, "{:<26} {}", "limit reason", s.limit_reason);
     if seg.design.uses_actuation() {
         let drive = Drive::of(seg);
-        let _ = writeln!(t, "{:<26} {}", "operating mode", operating_words(&drive));
         let _ = writeln!(
             t,
-            "{:<26} {:>14} mm",
+            "{:<26} {}",
+            "operating mode",
+            operating_words(&drive, units)
+        );
+        let _ = writeln!(
+            t,
+            "{:<26} {:>14} {len}",
             "actuator travel",
-            fixed(travel_of(s, &drive), 3)
+            length(travel_of(s, &drive))
         );
     }
     if let Some(reason) = &s.reason {
-        let _ = writeln!(t, "{:<26} {reason}", "no state");
+        let _ = writeln!(t, "{:<26} {}", "no state", units.prose(reason));
     }
     let _ = writeln!(t, "stiffness: {}", seg.stiffness_reason);
     let _ = writeln!(t, "{CAUTION}");
     t
+}
+
+/// A value given with a metric unit label (`N`, `N m`, `mm`; anything else, such as
+/// `deg`, is left alone) as a number to `decimals` and its label in `units`.
+fn reading_in(
+    units: UnitSystem,
+    v: f64,
+    unit: &'static str,
+    decimals: usize,
+) -> (String, &'static str) {
+    match Quantity::of_metric_unit(unit) {
+        Some(q) => (
+            format!(
+                "{:.d$}",
+                units.to_display(q, v),
+                d = units.decimals(q, decimals)
+            ),
+            units.unit(q),
+        ),
+        None => (format!("{v:.decimals$}"), unit),
+    }
 }
 
 // ---------------------------------------------------------------------------------------
@@ -909,7 +1073,7 @@ fn sweep_csv_row(s: &SegmentState, drive: Option<&Drive>) -> String {
     format!("{},{}", s.csv_cells().join(","), extra.join(","))
 }
 
-fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+fn sweep(a: &SweepArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
     let path = bore_path(&a.file, &seg, a.bore_mm)?;
     // The strokes of `BorePath::sweep`, computed one at a time so that a long sweep
@@ -923,31 +1087,33 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         let travel = if drive.is_some() { ",travel_mm" } else { "" };
         let header = format!("{},{SWEEP_EXTRA}{travel}", STATE_COLUMNS.join(","));
         let rows = states.map(|s| sweep_csv_row(&s, drive.as_ref()));
-        tabular(&header, rows, a.json, out)?;
+        tabular(&header, rows, a.json, units, out)?;
         return Ok(Status::Done);
     }
+    let len = units.unit(Quantity::Length);
+    let length = |v: Option<f64>| fixed_in(units, Quantity::Length, v, 3);
     writeln!(
         out,
-        "bore {:.3} mm, gap {:.3} mm; first contact at {} mm, line contact from {} mm; \
-         model limit {:.3} mm ({}); actuator maximum {:.3} mm{}",
-        path.bore_mm(),
-        path.gap_mm(),
-        fixed(path.first_contact_stroke_mm(), 3),
-        fixed(path.line_contact_stroke_mm(), 3),
-        path.limit_stroke_mm(),
+        "bore {} {len}, gap {} {len}; first contact at {} {len}, line contact from {} {len}; \
+         model limit {} {len} ({}); actuator maximum {} {len}{}",
+        length(Some(path.bore_mm())),
+        length(Some(path.gap_mm())),
+        length(path.first_contact_stroke_mm()),
+        length(path.line_contact_stroke_mm()),
+        length(Some(path.limit_stroke_mm())),
         path.limit_reason().describe(),
-        seg.max_stroke_mm(),
+        length(Some(seg.max_stroke_mm())),
         // Through a compliant drive the maximum is of travel, reached at a shorter stroke.
         match seg.design.actuator.stiffness_n_per_mm() {
             Some(_) => match actuation::stroke_at_travel_mm(&path, seg.max_stroke_mm()) {
-                Some(s) => format!(" of travel, reached at {s:.3} mm of stroke"),
+                Some(s) => format!(" of travel, reached at {} {len} of stroke", length(Some(s))),
                 None => " of travel, not reached before the model limit".to_string(),
             },
             None => String::new(),
         }
     )?;
     if let Some(drive) = &drive {
-        writeln!(out, "{}", operating_line(&path, drive))?;
+        writeln!(out, "{}", operating_line(&path, drive, units))?;
     }
     writeln!(
         out,
@@ -963,34 +1129,51 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         "flat",
         "stress"
     )?;
+    let force = units.unit(Quantity::Force);
     writeln!(
         out,
         "{:>10} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
-        "mm", "", "N", "N", "N", "N", "N", "mm", "mm", "MPa"
+        len,
+        "",
+        force,
+        force,
+        force,
+        force,
+        force,
+        len,
+        len,
+        units.unit(Quantity::Stress)
     )?;
+    let f = |v: Option<f64>, d: usize| fixed_in(units, Quantity::Force, v, d);
+    let l = |v: Option<f64>, d: usize| fixed_in(units, Quantity::Length, v, d);
     for s in states {
         writeln!(
             out,
-            "{:>10.4} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
-            s.stroke_mm,
+            "{:>10} {:<13} {:>10} {:>10} {:>10} {:>10} {:>10} {:>9} {:>8} {:>8}",
+            l(Some(s.stroke_mm), 4),
             s.phase,
-            fixed(s.axial_force_per_strip_n, 3),
-            fixed(s.contact_force_per_strip_n, 3),
-            fixed(s.actuator_force_n, 2),
-            fixed(s.radial_force_n, 2),
-            fixed(s.holding_force_n, 2),
-            fixed(s.outer_diameter_mm, 3),
-            fixed(s.flat_length_mm, 2),
-            fixed(s.max_stress_mpa, 1),
+            f(s.axial_force_per_strip_n, 3),
+            f(s.contact_force_per_strip_n, 3),
+            f(s.actuator_force_n, 2),
+            f(s.radial_force_n, 2),
+            f(s.holding_force_n, 2),
+            l(s.outer_diameter_mm, 3),
+            l(s.flat_length_mm, 2),
+            fixed_in(units, Quantity::Stress, s.max_stress_mpa, 1),
         )?;
     }
     if drive
         .as_ref()
         .is_some_and(|d| d.stiffness_n_per_mm.is_some())
     {
+        let outputs = if units.is_metric() {
+            "travel_mm of the CSV and JSON output"
+        } else {
+            "travel_in of the CSV output"
+        };
         writeln!(
             out,
-            "(actuator travel = stroke + pull / drive stiffness: column travel_mm of the CSV and JSON output)"
+            "(actuator travel = stroke + pull / drive stiffness: column {outputs})"
         )?;
     }
     writeln!(out, "{CAUTION}")?;
@@ -999,17 +1182,20 @@ fn sweep(a: &SweepArgs, out: &mut impl Write) -> anyhow::Result<Status> {
 
 /// One line on the operating point at a path's bore: the mode, the operating stroke and
 /// the actuator travel, or why a set pull is never reached.
-fn operating_line(path: &BorePath, drive: &Drive) -> String {
+fn operating_line(path: &BorePath, drive: &Drive, units: UnitSystem) -> String {
     let op = actuation::operating_state(path);
+    let len = units.unit(Quantity::Length);
     match (op.stroke_mm, op.travel_mm) {
         (Some(s), Some(t)) => format!(
-            "operating point ({}): stroke {s:.3} mm, actuator travel {t:.3} mm",
-            operating_words(drive)
+            "operating point ({}): stroke {} {len}, actuator travel {} {len}",
+            operating_words(drive, units),
+            fixed_in(units, Quantity::Length, Some(s), 3),
+            fixed_in(units, Quantity::Length, Some(t), 3),
         ),
         _ => format!(
             "operating point ({}): {}",
-            operating_words(drive),
-            op.state.reason.unwrap_or_default()
+            operating_words(drive, units),
+            units.prose(&op.state.reason.unwrap_or_default())
         ),
     }
 }
@@ -1026,7 +1212,7 @@ fn spaced(from: f64, to: f64, i: usize, n: usize) -> f64 {
     }
 }
 
-fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+fn bores(a: &BoresArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Result<Status> {
     let (_, seg) = load(&a.file)?;
     let from_mm = a.from_mm.unwrap_or(seg.bore_smallest_mm);
     let to_mm = a.to_mm.unwrap_or(seg.bore_largest_mm);
@@ -1053,19 +1239,21 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
                 r.csv_line()
             }
         });
-        tabular(&header, rows, a.json, out)?;
+        tabular(&header, rows, a.json, units, out)?;
         return Ok(Status::Done);
     }
     if operating {
         writeln!(
             out,
             "operating point: {}",
-            operating_words(&Drive::of(&seg))
+            operating_words(&Drive::of(&seg), units)
         )?;
     }
+    let len = units.unit(Quantity::Length);
+    let len_words = units.length_words();
     writeln!(
         out,
-        "strokes in mm against bore; '-' where the quantity does not exist (the segment does not \
+        "strokes in {len_words} against bore; '-' where the quantity does not exist (the segment does not \
          fit or reach, or the path never gets there)"
     )?;
     let (op_head, travel_head) = if operating {
@@ -1076,24 +1264,30 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
     writeln!(
         out,
         "{:>10} {:>14} {:>10} {:>13} {:>13} {:>10}{op_head}{travel_head}",
-        "bore mm", "first contact", "holding", "stress limit", "line contact", "limit"
+        format!("bore {len}"),
+        "first contact",
+        "holding",
+        "stress limit",
+        "line contact",
+        "limit"
     )?;
+    let l = |v: Option<f64>| fixed_in(units, Quantity::Length, v, 3);
     for r in rows {
         let extra = if operating {
             let (s, t) = op_cells(r.bore_mm);
-            format!(" {:>9} {:>7}", fixed(s, 3), fixed(t, 3))
+            format!(" {:>9} {:>7}", l(s), l(t))
         } else {
             String::new()
         };
         writeln!(
             out,
-            "{:>10.3} {:>14} {:>10} {:>13} {:>13} {:>10}{extra}",
-            r.bore_mm,
-            fixed(r.first_contact_stroke_mm, 3),
-            fixed(r.holding_stroke_mm, 3),
-            fixed(r.stress_limit_stroke_mm, 3),
-            fixed(r.line_contact_stroke_mm, 3),
-            fixed(r.limit_stroke_mm, 3),
+            "{:>10} {:>14} {:>10} {:>13} {:>13} {:>10}{extra}",
+            l(Some(r.bore_mm)),
+            l(r.first_contact_stroke_mm),
+            l(r.holding_stroke_mm),
+            l(r.stress_limit_stroke_mm),
+            l(r.line_contact_stroke_mm),
+            l(r.limit_stroke_mm),
         )?;
     }
     writeln!(out, "{CAUTION}")?;
@@ -1103,7 +1297,7 @@ fn bores(a: &BoresArgs, out: &mut impl Write) -> anyhow::Result<Status> {
 // ---------------------------------------------------------------------------------------
 // check
 
-fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
+fn check(a: &CheckArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Result<Status> {
     let (design, seg) = load(&a.file)?;
     let list = checks::run(&seg);
     let pass = checks::all_pass(&list);
@@ -1131,25 +1325,34 @@ fn check(a: &CheckArgs, out: &mut impl Write) -> anyhow::Result<Status> {
         serde_json::to_writer(&mut *out, &doc)?;
         writeln!(out)?;
     } else if a.csv {
-        writeln!(out, "{}", CHECK_COLUMNS.join(","))?;
+        let (header, kinds) = units.csv_header(&CHECK_COLUMNS.join(","));
+        writeln!(out, "{header}")?;
         for c in &list {
-            writeln!(
-                out,
+            // The margin of a geometry check is a length; a ratio reads the same in both.
+            let (margin, unit) = match c.unit() {
+                MarginUnit::Mm => (
+                    c.margin.map(|m| units.to_display(Quantity::Length, m)),
+                    units.unit(Quantity::Length),
+                ),
+                MarginUnit::Ratio => (c.margin, c.unit().label()),
+            };
+            let row = format!(
                 "{},{},{},{},{},{},{}",
                 c.id,
                 c.pass,
-                csv_cell(c.margin),
-                c.unit().label(),
+                csv_cell(margin),
+                unit,
                 csv_cell(c.bore_mm),
                 csv_cell(c.stroke_mm),
-                csv_text(&c.reason)
-            )?;
+                csv_text(&units.prose(&c.reason))
+            );
+            writeln!(out, "{}", units.csv_row(&kinds, &row))?;
         }
     } else {
         write!(
             out,
             "{}",
-            check_table(&design, &seg, &list, limiting, &cautions, &usable)
+            check_table(&design, &seg, &list, limiting, &cautions, &usable, units)
         )?;
     }
     Ok(if pass {
@@ -1222,12 +1425,15 @@ fn tabular(
     header: &str,
     rows: impl Iterator<Item = String>,
     json: bool,
+    units: UnitSystem,
     out: &mut impl Write,
 ) -> anyhow::Result<()> {
     if !json {
-        writeln!(out, "{header}")?;
+        // CSV in the display units (JSON with inches is refused before any work).
+        let (shown, kinds) = units.csv_header(header);
+        writeln!(out, "{shown}")?;
         for r in rows {
-            writeln!(out, "{r}")?;
+            writeln!(out, "{}", units.csv_row(&kinds, &r))?;
         }
         return Ok(());
     }
@@ -1261,19 +1467,25 @@ fn check_table(
     limiting: Option<CheckId>,
     cautions: &[String],
     usable: &UsableStroke,
+    units: UnitSystem,
 ) -> String {
     let mut t = String::new();
     if !design.title.is_empty() {
         let _ = writeln!(t, "{}", printable(&design.title));
     }
+    let l = |v: f64| units.number(Quantity::Length, v, 3);
     let _ = writeln!(
         t,
-        "bore {:.3} mm (smallest {:.3}, largest {:.3}); stiffness {}",
-        seg.bore_nominal_mm, seg.bore_smallest_mm, seg.bore_largest_mm, seg.stiffness_reason
+        "bore {} {} (smallest {}, largest {}); stiffness {}",
+        l(seg.bore_nominal_mm),
+        units.unit(Quantity::Length),
+        l(seg.bore_smallest_mm),
+        l(seg.bore_largest_mm),
+        seg.stiffness_reason
     );
     for c in list {
         let verdict = if c.pass { "pass" } else { "FAIL" };
-        let margin = c.margin_text().unwrap_or_else(|| "-".to_string());
+        let margin = c.margin_text_in(units).unwrap_or_else(|| "-".to_string());
         let mark = if Some(c.id) == limiting {
             " (limiting)"
         } else {
@@ -1284,7 +1496,7 @@ fn check_table(
             "{:<9} {verdict:<5} {margin:>14}  {}{mark}: {}",
             c.id,
             c.title(),
-            c.reason
+            units.prose(&c.reason)
         );
     }
     let failed = list.iter().filter(|c| !c.pass).count();
@@ -1293,9 +1505,13 @@ fn check_table(
     } else {
         let _ = writeln!(t, "{failed} of {} checks fail", list.len());
     }
-    let _ = writeln!(t, "{}", usable.describe());
+    let _ = writeln!(t, "{}", units.prose(&usable.describe()));
     if design.uses_actuation() {
-        let _ = writeln!(t, "operating point: {}", operating_words(&Drive::of(seg)));
+        let _ = writeln!(
+            t,
+            "operating point: {}",
+            operating_words(&Drive::of(seg), units)
+        );
         for (case, bore) in [
             ("smallest", seg.bore_smallest_mm),
             ("nominal", seg.bore_nominal_mm),
@@ -1310,11 +1526,12 @@ fn check_table(
                 },
                 Err(why) => why,
             };
-            let _ = writeln!(t, "  at the {case} bore {bore:.3} mm: {line}");
+            let line = units.prose(&format!("  at the {case} bore {bore:.3} mm: {line}"));
+            let _ = writeln!(t, "{line}");
         }
     }
     for c in cautions {
-        let _ = writeln!(t, "geometry caution: {c}");
+        let _ = writeln!(t, "geometry caution: {}", units.prose(c));
     }
     let _ = writeln!(t, "{CAUTION}");
     t
@@ -1323,7 +1540,7 @@ fn check_table(
 // ---------------------------------------------------------------------------------------
 // sheet
 
-fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
+fn write_sheet(a: &SheetArgs, units: UnitSystem) -> anyhow::Result<Status> {
     // Parse the very bytes that are hashed on the sheet.
     let bytes = design::read_bytes(&a.file).map_err(|e| anyhow!(e.in_file(&a.file)))?;
     let text = design::decode(bytes.clone()).map_err(|e| anyhow!(e.in_file(&a.file)))?;
@@ -1337,6 +1554,7 @@ fn write_sheet(a: &SheetArgs) -> anyhow::Result<Status> {
     let label = a.file.display().to_string();
     let options = sheet::SheetOptions {
         map: a.map_x.clone().zip(a.map_y.clone()),
+        units,
     };
     if let Some((x, y)) = &options.map {
         // Refused axes are bad input: say so before any work, as `map` does.

@@ -29,3 +29,4 @@ pub mod segment;
 pub mod sharing;
 pub mod sheet;
 pub mod ticks;
+pub mod units;

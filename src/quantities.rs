@@ -10,6 +10,7 @@ use std::f64::consts::{PI, TAU};
 
 use crate::design::Actuator;
 use crate::segment::{ActuatorReading, BoreRow, Segment, SegmentState};
+use crate::units::{Quantity, UnitSystem};
 
 impl Segment {
     /// The holding force the design asks for: the load to hold times the safety factor, N.
@@ -60,6 +61,11 @@ impl Segment {
             largest_bore_mm: largest.bore_mm,
             holding_mm: largest.holding_stroke_mm,
             largest_fits: largest.limit_stroke_mm.is_some(),
+            force_set: match self.design.operating() {
+                crate::design::Operating::Stroke(_) => None,
+                crate::design::Operating::Pull(_) => Some("pull"),
+                crate::design::Operating::Torque(_) => Some("torque"),
+            },
             top: match self.design.actuator.stiffness_n_per_mm() {
                 None => self.stroke_top_mm(smallest),
                 // Through a compliant drive the maximum is of travel: the strokes end where
@@ -171,6 +177,9 @@ pub struct UsableStroke {
     /// The top of the range at the smallest bore and what sets it (`None`: the relaxed
     /// segment does not fit the smallest bore).
     pub top: Option<(f64, StrokeBound)>,
+    /// What the actuator sets when it is not the stroke (`"pull"`, `"torque"`): then the
+    /// stroke follows the bore, and a stroke usable at every bore is only a comparison.
+    pub force_set: Option<&'static str>,
 }
 
 impl UsableStroke {
@@ -180,9 +189,27 @@ impl UsableStroke {
         self.holding_mm.filter(|h| *h < top).map(|h| (h, top))
     }
 
+    /// Whether the missing range is a finding: under a fixed stroke it is (no stroke
+    /// serves every bore); under a set pull or torque each bore takes its own stroke, and
+    /// the checks judge those.
+    pub fn is_problem(&self) -> bool {
+        self.range_mm().is_none() && self.force_set.is_none()
+    }
+
     /// One line in words: the range, its width and what bounds each end, or plainly that
-    /// there is none and why.
+    /// there is none and why. Under a set pull or torque the line says that the stroke
+    /// follows the bore and the fixed-stroke range is a comparison only.
     pub fn describe(&self) -> String {
+        let fixed = self.describe_fixed();
+        match self.force_set {
+            None => fixed,
+            Some(kind) => format!(
+                "under the set {kind} the stroke follows the bore and each bore is judged at its own (see the operating point per bore); for comparison, at one fixed stroke: {fixed}"
+            ),
+        }
+    }
+
+    fn describe_fixed(&self) -> String {
         let small = self.smallest_bore_mm;
         let large = self.largest_bore_mm;
         match (self.range_mm(), self.top, self.holding_mm) {
@@ -336,8 +363,10 @@ pub struct StateField {
     pub label: &'static str,
     /// Label on the sizing sheet, with the symbol its model section uses.
     pub sheet_label: &'static str,
-    /// Unit printed after the value; empty for a pure number.
+    /// Unit printed after the value in millimetres-newtons-MPa; empty for a pure number.
     pub unit: &'static str,
+    /// The kind of quantity, for the display units (`None`: a pure number).
+    pub quantity: Option<Quantity>,
     /// Decimals in the command line's and the app's tables (the sheet formats by unit).
     pub decimals: usize,
     /// One line saying what it is (the app's hover text).
@@ -354,6 +383,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "axial force per strip",
         sheet_label: "Axial force per strip P",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "compression in each strip",
         get: |s| s.axial_force_per_strip_n,
@@ -363,6 +393,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "contact force per strip",
         sheet_label: "Contact force per strip F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "wall force of each strip",
         get: |s| s.contact_force_per_strip_n,
@@ -372,6 +403,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "actuator pull",
         sheet_label: "Actuator pull N P",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "pull on the end plates, N x axial force per strip",
         get: |s| s.actuator_force_n,
@@ -381,6 +413,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "radial force",
         sheet_label: "Radial force on the wall N F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "total force of all strips on the wall",
         get: |s| s.radial_force_n,
@@ -390,6 +423,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "holding force",
         sheet_label: "Holding force μ N F",
         unit: "N",
+        quantity: Some(Quantity::Force),
         decimals: 3,
         meaning: "friction x radial force: the axial load the segment holds",
         get: |s| s.holding_force_n,
@@ -399,6 +433,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "outer diameter",
         sheet_label: "Diameter over the strips",
         unit: "mm",
+        quantity: Some(Quantity::Length),
         decimals: 3,
         meaning: "diameter over the strip corners at the crest",
         get: |s| s.outer_diameter_mm,
@@ -408,6 +443,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "flat run on the wall",
         sheet_label: "Flat run on the wall",
         unit: "mm",
+        quantity: Some(Quantity::Length),
         decimals: 3,
         meaning: "length of strip lying on the wall",
         get: |s| s.flat_length_mm,
@@ -417,6 +453,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "peak stress",
         sheet_label: "Peak stress σ",
         unit: "MPa",
+        quantity: Some(Quantity::Stress),
         decimals: 1,
         meaning: "bending plus axial stress at the peak curvature",
         get: |s| s.max_stress_mpa,
@@ -426,6 +463,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "static factor of safety",
         sheet_label: "Static factor of safety",
         unit: "",
+        quantity: None,
         decimals: 3,
         meaning: "0.75 x tensile strength / peak stress",
         get: |s| s.static_safety_factor,
@@ -435,6 +473,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "fatigue factor of safety",
         sheet_label: "Fatigue factor of safety (Goodman)",
         unit: "",
+        quantity: None,
         decimals: 3,
         meaning: "Goodman, zero-to-peak cycles",
         get: |s| s.fatigue_safety_factor,
@@ -444,6 +483,7 @@ pub const STATE_FIELDS: [StateField; 11] = [
         label: "stored energy",
         sheet_label: "Stored strain energy, all strips",
         unit: "J",
+        quantity: Some(Quantity::Energy),
         decimals: 4,
         meaning: "strain energy in all strips",
         get: |s| s.strain_energy_j,
@@ -458,6 +498,20 @@ impl StateField {
             || none.to_string(),
             |v| format!("{v:.prec$}", prec = self.decimals),
         )
+    }
+
+    /// The unit label in `units` (empty for a pure number).
+    pub fn unit_in(&self, units: UnitSystem) -> &'static str {
+        self.quantity.map_or(self.unit, |q| units.unit(q))
+    }
+
+    /// The value in `s` in `units` (no unit), or `none` where it does not exist; in metric
+    /// exactly [`StateField::number`].
+    pub fn number_in(&self, s: &SegmentState, none: &str, units: UnitSystem) -> String {
+        match self.quantity {
+            Some(q) if !units.is_metric() => units.number_or(q, (self.get)(s), self.decimals, none),
+            _ => self.number(s, none),
+        }
     }
 
     /// The value in `s` to the field's decimals with its unit, or `none` where it does

@@ -21,6 +21,7 @@ use super::{Command, Gesture, GripApp};
 use crate::bench_data::{self, BenchData, BenchError, Quantity};
 use crate::calibrate::{self, Calibration, Factor, Factors, ModelCurve, QuantityResiduals};
 use crate::design::Design;
+use crate::units::{Quantity as UnitKind, UnitSystem};
 
 const C_DIAMETER: Color32 = Color32::from_rgb(0, 114, 178);
 const C_PULL: Color32 = Color32::from_rgb(230, 140, 20);
@@ -350,10 +351,10 @@ pub fn calibration_note_ui(ui: &mut Ui, d: &Design, out: &mut Vec<Command>) {
     let Some(c) = d.calibration else { return };
     ui.horizontal_wrapped(|ui| {
         ui.label(
-            RichText::new(format!(
+            RichText::new(super::units().prose(&format!(
                 "Bench calibration: modulus factor {:.4} on E; stroke offset {:+.4} mm (model stroke = measured stroke + offset).",
                 c.modulus_factor, c.stroke_offset_mm
-            ))
+            )))
             .small(),
         )
         .on_hover_text("Fitted to bench measurements and written into the design file as `calibration`. The modulus factor scales every force and the bending stress; the offset applies where measured strokes meet the model (bench comparisons).");
@@ -517,18 +518,18 @@ fn bench_window(app: &mut GripApp, ctx: &Context) {
                 file.path.display(),
                 file.data.rows.len(),
                 match d.calibration {
-                    Some(c) => format!(
+                    Some(c) => super::units().prose(&format!(
                         ", with its calibration (modulus factor {:.4}, stroke offset {:+.4} mm)",
                         c.modulus_factor, c.stroke_offset_mm
-                    ),
+                    )),
                     None => ", without calibration".to_string(),
                 }
             ));
             ui.label(
-                RichText::new(format!(
+                RichText::new(super::units().prose(&format!(
                     "Strokes as measured; the model's stroke is the measured stroke plus the offset ({:+.4} mm).",
                     d.stroke_offset_mm()
-                ))
+                )))
                 .small(),
             );
             ui.horizontal(|ui| {
@@ -584,19 +585,20 @@ fn residual_table_ui(ui: &mut Ui, id: &str, all: &[QuantityResiduals]) {
             let u = q.quantity.unit();
             ui.label(q.quantity.column());
             ui.label(s.points.to_string());
-            ui.label(format!("{:.3} {u}", s.rms));
-            ui.label(format!("{:+.3} {u}", s.max_signed));
-            ui.label(format!(
+            let shown = |t: String| super::units().prose(&t);
+            ui.label(shown(format!("{:.3} {u}", s.rms)));
+            ui.label(shown(format!("{:+.3} {u}", s.max_signed)));
+            ui.label(shown(format!(
                 "line {}, stroke {:.3} mm",
                 s.max_line, s.max_stroke_mm
-            ));
+            )));
             ui.end_row();
         }
     });
 }
 
 fn bore_name(bore_mm: f64) -> String {
-    format!("bore {bore_mm:.2} mm")
+    super::units().prose(&format!("bore {bore_mm:.2} mm"))
 }
 
 fn model_line(
@@ -631,8 +633,10 @@ fn points(plot: &mut egui_plot::PlotUi<'_>, name: String, color: Color32, pts: V
     );
 }
 
-fn bench_plot(id: &str, y_label: &str, width: f32, height: f32) -> Plot<'static> {
-    Plot::new(id.to_string())
+/// A bench plot against measured stroke; in inches its axes are in the display units
+/// (the data stay in mm and N).
+fn bench_plot(id: &str, y: (&str, UnitKind), width: f32, height: f32) -> Plot<'static> {
+    let plot = Plot::new(id.to_string())
         .width(width)
         .height(height)
         .legend(
@@ -643,11 +647,26 @@ fn bench_plot(id: &str, y_label: &str, width: f32, height: f32) -> Plot<'static>
                 .follow_insertion_order(true),
         )
         .x_axis_label("measured stroke, mm")
-        .y_axis_label(y_label.to_string())
+        .y_axis_label(format!("{}, {}", y.0, UnitSystem::Metric.unit(y.1)));
+    if super::units().is_metric() {
+        plot
+    } else {
+        super::outputs::display_axes(
+            plot,
+            ("measured stroke", Some(UnitKind::Length)),
+            (y.0, Some(y.1)),
+        )
+    }
 }
 
 fn diameter_plot_ui(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
-    bench_plot("bench-diameter", "diameter over the strips, mm", w, h).show(ui, |p| {
+    bench_plot(
+        "bench-diameter",
+        ("diameter over the strips", UnitKind::Length),
+        w,
+        h,
+    )
+    .show(ui, |p| {
         for (i, c) in cache.curves.iter().enumerate() {
             curve_and_points(
                 p,
@@ -664,7 +683,7 @@ fn diameter_plot_ui(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32
 }
 
 fn force_plot_ui(ui: &mut Ui, data: &BenchData, cache: &Cache, w: f32, h: f32) {
-    bench_plot("bench-force", "force, N", w, h).show(ui, |p| {
+    bench_plot("bench-force", ("force", UnitKind::Force), w, h).show(ui, |p| {
         for (i, c) in cache.curves.iter().enumerate() {
             curve_and_points(
                 p,
@@ -815,8 +834,8 @@ fn fitted_ui(ui: &mut Ui, c: &Calibration) {
                     format!(" {unit}")
                 };
                 ui.label(name).on_hover_text(tip);
-                ui.label(format!("{:.5}{u}", f.value));
-                ui.label(format!("± {:.5}{u}", f.standard_error));
+                ui.label(super::units().prose(&format!("{:.5}{u}", f.value)));
+                ui.label(super::units().prose(&format!("± {:.5}{u}", f.standard_error)));
                 ui.end_row();
             }
         });

@@ -14,6 +14,7 @@ use super::{Command, Gesture, GripApp, Pending, export, outputs};
 use crate::design::{self, Design};
 use crate::fit::{self, FitAim, FitOutcome, FitRequest, FitVar};
 use crate::sheet::{self, Paper};
+use crate::units::Quantity;
 
 /// The safety cautions, shown in their own window and in short in the verdict panel.
 pub const CAUTIONS: [&str; 6] = [
@@ -207,6 +208,19 @@ pub fn menu_bar_ui(app: &mut GripApp, ui: &mut Ui) {
                 for t in ThemeChoice::ALL {
                     if ui.radio(app.session.theme == t, t.label()).clicked() {
                         app.push(Command::SetTheme(t));
+                    }
+                }
+                ui.separator();
+                for u in crate::units::UnitSystem::ALL {
+                    let label = format!("Units: {}", u.name());
+                    if ui
+                        .radio(app.session.units == u, label)
+                        .on_hover_text(
+                            "Units every number is shown, typed and printed in. The design file keeps millimetres, newtons and MPa.",
+                        )
+                        .clicked()
+                    {
+                        app.push(Command::SetUnits(u));
                     }
                 }
             });
@@ -480,6 +494,22 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
     }
     ui.label("Find a value of one input at which every check passes: where the segment just holds the load x safety factor at the largest bore, or the middle of the passing range.");
     let var = dlg.var.unwrap_or(FitVar::Thickness);
+    // The values, and the step typed, in the display units; the search runs in mm.
+    let u = super::units();
+    let kind = |var: FitVar| match var {
+        FitVar::Count => None,
+        FitVar::Thickness => Some(Quantity::Thickness),
+        _ => Some(Quantity::Length),
+    };
+    let q = kind(var);
+    let unit = q.map_or(var.unit(), |q| u.unit(q));
+    let show = move |var: FitVar, v: f64| match kind(var) {
+        Some(Quantity::Thickness) if !u.is_metric() => {
+            format!("{:.4}", u.to_display(Quantity::Thickness, v))
+        }
+        Some(q) => fmt_value(u.to_display(q, v)),
+        None => fmt_value(v),
+    };
     let busy = dlg.running.is_some();
     ui.add_enabled_ui(!busy, |ui| {
         ui.horizontal(|ui| {
@@ -492,7 +522,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                     }
                 }
             }).response.labelled_by(label.id);
-            ui.label(format!("now {} {}", fmt_value(var.get(&app.doc.design)), var.unit()));
+            ui.label(format!("now {} {unit}", show(var, var.get(&app.doc.design))));
         });
         ui.horizontal(|ui| {
             ui.label("Land");
@@ -506,8 +536,12 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                 let label = ui.label("Round to");
                 ui.add(egui::TextEdit::singleline(&mut dlg.step).desired_width(70.0).hint_text("none"))
                     .labelled_by(label.id)
-                    .on_hover_text("A step in mm (e.g. 0.01, or 0.05 for stock thicknesses): the value is rounded to the nearest multiple that still passes every check. Empty: no rounding.");
-                ui.label(var.unit());
+                    .on_hover_text(if u.is_metric() {
+                        "A step in mm (e.g. 0.01, or 0.05 for stock thicknesses): the value is rounded to the nearest multiple that still passes every check. Empty: no rounding."
+                    } else {
+                        "A step in inches (e.g. 0.001, or 0.0005 for stock thicknesses): the value is rounded to the nearest multiple that still passes every check. Empty: no rounding."
+                    });
+                ui.label(unit);
             });
         }
     });
@@ -516,9 +550,10 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
         Ok(None)
     } else {
         match step.parse::<f64>() {
-            Ok(v) if v.is_finite() && v > 0.0 => Ok(Some(v)),
+            Ok(v) if v.is_finite() && v > 0.0 => Ok(Some(q.map_or(v, |q| u.from_display(q, v)))),
             _ => Err(format!(
-                "Round to: '{step}' is not a step above 0 mm; type e.g. 0.01, or leave it empty."
+                "Round to: '{step}' is not a step above 0 {unit}; type e.g. {}, or leave it empty.",
+                if u.is_metric() { "0.01" } else { "0.001" }
             )),
         }
     };
@@ -559,14 +594,13 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
             unrounded,
         } => {
             ui.separator();
+            let unit = kind(var).map_or(var.unit(), |q| u.unit(q));
             ui.label(format!(
-                "{} = {} {}: every check passes (they pass from {} to {} {}).",
+                "{} = {} {unit}: every check passes (they pass from {} to {} {unit}).",
                 var.label(),
-                fmt_value(*value),
-                var.unit(),
-                fmt_value(passing.0),
-                fmt_value(passing.1),
-                var.unit()
+                show(var, *value),
+                show(var, passing.0),
+                show(var, passing.1),
             ));
             if *unrounded {
                 ui.label(
@@ -583,7 +617,10 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
                 .show(ui, |ui| {
                     for c in checks {
                         ui.label(c.title());
-                        ui.label(c.margin_text().unwrap_or_else(|| "no margin".to_string()));
+                        ui.label(
+                            c.margin_text_in(u)
+                                .unwrap_or_else(|| "no margin".to_string()),
+                        );
                         ui.end_row();
                     }
                 });
@@ -607,7 +644,7 @@ fn fit_ui(app: &mut GripApp, ui: &mut Ui) {
             }
         }
         FitOutcome::Blocked(why) => {
-            ui.label(RichText::new(why).color(error_color(ui)));
+            ui.label(RichText::new(u.prose(why)).color(error_color(ui)));
         }
     }
 }
@@ -632,6 +669,30 @@ fn svg_references(
     let line = export::SvgSeries::reference;
     let mut out = Vec::new();
     if title.starts_with("Stroke against bore") {
+        // The shaded areas the app and the sheet draw: the bore tolerance band over the
+        // plot's height, and the usable strokes at each bore (between the holding curve and
+        // the lowest of the stress limit, the model limit and the actuator maximum).
+        if seg.bore_smallest_mm < x1 && seg.bore_largest_mm > x0 {
+            let (b0, b1) = (seg.bore_smallest_mm.max(x0), seg.bore_largest_mm.min(x1));
+            out.push(export::SvgSeries::area(
+                "bore tolerance",
+                "#6a6aa8",
+                vec![vec![[b0, y0], [b1, y0], [b1, y1], [b0, y1]]],
+            ));
+        }
+        let usable: Vec<Vec<[f64; 2]>> = a
+            .usable_window_mm()
+            .iter()
+            .filter(|run| run.len() >= 2)
+            .map(|run| {
+                let low = run.iter().map(|p| [p[0], p[1].clamp(y0, y1)]);
+                let high = run.iter().rev().map(|p| [p[0], p[2].clamp(y0, y1)]);
+                low.chain(high).collect()
+            })
+            .collect();
+        if !usable.is_empty() {
+            out.push(export::SvgSeries::area("usable strokes", "#2e8b57", usable));
+        }
         if let Some(op) = op.filter(|v| (y0..=y1).contains(v)) {
             out.push(line("operating stroke", "#444444", [x0, op], [x1, op]));
         }
@@ -687,10 +748,24 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                 return;
             };
             let base = app.dialogs.export_base.trim().to_string();
-            let svg = |title: &str, x: &str, y: &str, curves: Vec<outputs::Curve>| {
+            // The figures in the display units: the series are built in mm, N and MPa
+            // and scaled once here, axis titles with them.
+            let u = super::units();
+            let svg = |title: &str,
+                       (x, xq): (&str, Quantity),
+                       (y, yq): (&str, Quantity),
+                       curves: Vec<outputs::Curve>| {
                 let mut series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
                 series.extend(svg_references(a, title, &series));
-                export::svg_chart(title, x, y, &series)
+                let (fx, fy) = (u.from_display(xq, 1.0), u.from_display(yq, 1.0));
+                for p in series.iter_mut().flat_map(|s| s.runs.iter_mut().flatten()) {
+                    *p = [p[0] / fx, p[1] / fy];
+                }
+                let (x, y) = (
+                    format!("{x}, {}", u.unit(xq)),
+                    format!("{y}, {}", u.unit(yq)),
+                );
+                export::svg_chart(title, &x, &y, &series)
             };
             let jobs: [ExportJob<'_>; 5] = [
                 (
@@ -699,8 +774,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     Box::new(|| {
                         svg(
                             "Stroke against bore",
-                            "bore diameter, mm",
-                            "stroke, mm",
+                            ("bore diameter", Quantity::Length),
+                            ("stroke", Quantity::Length),
                             outputs::window_curves(a),
                         )
                     }),
@@ -711,8 +786,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     Box::new(|| {
                         svg(
                             "Forces against stroke, nominal bore",
-                            "stroke, mm",
-                            "force, N",
+                            ("stroke", Quantity::Length),
+                            ("force", Quantity::Force),
                             outputs::force_curves(a),
                         )
                     }),
@@ -723,8 +798,8 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                     Box::new(|| {
                         svg(
                             "Peak stress against stroke, nominal bore",
-                            "stroke, mm",
-                            "stress, MPa",
+                            ("stroke", Quantity::Length),
+                            ("stress", Quantity::Stress),
                             outputs::stress_curves(a),
                         )
                     }),
@@ -732,12 +807,12 @@ fn export_window(app: &mut GripApp, ctx: &Context) {
                 (
                     "Force-stroke curve (CSV)",
                     "-curve.csv",
-                    Box::new(|| export::curve_csv(&a.curve)),
+                    Box::new(|| u.csv_text(&export::curve_csv(&a.curve))),
                 ),
                 (
                     "Stroke-bore window (CSV)",
                     "-window.csv",
-                    Box::new(|| export::window_csv(&a.window)),
+                    Box::new(|| u.csv_text(&export::window_csv(&a.window))),
                 ),
             ];
             let mut report = Vec::new();
@@ -887,7 +962,10 @@ fn print_sheet(app: &mut GripApp) {
         PaperChoice::Letter => Paper::Letter,
     };
     // With the design map open, the sheet carries its page.
-    let options = app.map_view.sheet_options();
+    let options = sheet::SheetOptions {
+        units: app.session.units,
+        ..app.map_view.sheet_options()
+    };
     match sheet::render_with(&app.doc.design, &label, &bytes, paper, None, &options) {
         Err(e) => app.fail(format!("The sizing sheet could not be made: {e}")),
         Ok(pdf) => match crate::atomic::write(&path, &pdf) {
@@ -928,7 +1006,7 @@ mod svg_reference_tests {
             let series: Vec<_> = curves.iter().map(outputs::Curve::to_svg).collect();
             let refs = svg_references(&a, title, &series);
             let names: Vec<String> = refs.iter().map(|r| r.name.clone()).collect();
-            assert!(refs.iter().all(|r| r.dashed));
+            assert!(refs.iter().all(|r| r.dashed != r.shaded));
             (refs, names)
         };
         let (refs, names) = svg(
@@ -938,8 +1016,34 @@ mod svg_reference_tests {
         assert_eq!(names, ["operating stroke", "load x safety factor"]);
         assert_eq!(refs[0].runs[0][0][0], op);
         assert_eq!(refs[1].runs[0][0][1], a.segment.required_holding_force_n());
-        let (_, names) = svg("Stroke against bore", outputs::window_curves(&a));
-        assert_eq!(names, ["operating stroke", "smallest bore", "largest bore"]);
+        let (refs, names) = svg("Stroke against bore", outputs::window_curves(&a));
+        assert_eq!(
+            names,
+            [
+                "bore tolerance",
+                "usable strokes",
+                "operating stroke",
+                "smallest bore",
+                "largest bore"
+            ]
+        );
+        // The band spans the tolerance; the usable area's outline runs along the lower
+        // ends of the usable window and back along its upper ends (the same numbers the
+        // app's plot and the sheet shade).
+        let band = &refs[0].runs[0];
+        assert_eq!(band[0][0], a.segment.bore_smallest_mm);
+        assert_eq!(band[1][0], a.segment.bore_largest_mm);
+        let window = a.usable_window_mm();
+        let run = window.iter().find(|r| r.len() >= 2).expect("a usable run");
+        let outline = &refs[1].runs[0];
+        assert_eq!(outline.len(), 2 * run.len());
+        assert_eq!(outline[0], [run[0][0], run[0][1]]);
+        let last = run[run.len() - 1];
+        assert_eq!(outline[run.len()], [last[0], last[2]]);
+        let chart = export::svg_chart("t", "x", "y", &refs);
+        assert_eq!(chart.matches("<polygon").count(), 1 + window.len());
+        // Pale solid fills a quarter of the way from white: #6a6aa8 -> #dadae9.
+        assert!(chart.contains(r##"<polygon fill="#dadae9""##));
         let (_, names) = svg("Peak stress against stroke", outputs::stress_curves(&a));
         assert!(names.contains(&"static allowable".to_string()));
         let chart = export::svg_chart("t", "x", "y", &refs);

@@ -151,6 +151,8 @@ pub fn operating_summary_ui(ui: &mut egui::Ui, a: &Analysis) {
         };
         lines.push(text);
     }
-    ui.label(egui::RichText::new(lines.join("\n")).small())
+    // Written in mm, N; shown in the display units.
+    let text = super::units().prose(&lines.join("\n"));
+    ui.label(egui::RichText::new(text).small())
         .on_hover_text("The operating point at each end of the bore tolerance and at the nominal bore. Under force control the stroke follows from the set pull; the actuator travel adds the drive's stretch, pull / stiffness.");
 }

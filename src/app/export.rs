@@ -48,6 +48,9 @@ pub struct SvgSeries {
     pub runs: Vec<Vec<[f64; 2]>>,
     /// Drawn dashed: a reference line (operating stroke, tolerance ends, allowables).
     pub dashed: bool,
+    /// Drawn as a lightly filled area, each run a closed outline: the bore tolerance band
+    /// and the usable stroke window. Areas go under the grid and the curves.
+    pub shaded: bool,
 }
 
 impl SvgSeries {
@@ -58,6 +61,18 @@ impl SvgSeries {
             color: color.to_string(),
             runs: vec![vec![a, b]],
             dashed: true,
+            shaded: false,
+        }
+    }
+
+    /// A shaded area; each run is one closed outline.
+    pub fn area(name: &str, color: &str, runs: Vec<Vec<[f64; 2]>>) -> SvgSeries {
+        SvgSeries {
+            name: name.to_string(),
+            color: color.to_string(),
+            runs,
+            dashed: false,
+            shaded: true,
         }
     }
 }
@@ -144,6 +159,27 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
         mt + ph / 2.0,
         esc(y_label)
     );
+    // The finite points of a run in page coordinates.
+    let points = |run: &[[f64; 2]]| -> Vec<String> {
+        run.iter()
+            .filter(|p| p[0].is_finite() && p[1].is_finite())
+            .map(|p| format!("{:.2},{:.2}", sx(p[0]), sy(p[1])))
+            .collect()
+    };
+    // Shaded areas first, so that the grid and the curves stay readable over them.
+    for ser in series.iter().filter(|s| s.shaded) {
+        for run in &ser.runs {
+            let path = points(run);
+            if path.len() >= 3 {
+                let _ = writeln!(
+                    s,
+                    r#"<polygon fill="{}" stroke="none" points="{}"/>"#,
+                    pale(&ser.color),
+                    path.join(" ")
+                );
+            }
+        }
+    }
     // Grid lines and labels at round values (the one tick generator of every plot).
     let (xt, xd) = ticks::ticks(x0, x1, 7);
     for v in xt {
@@ -167,12 +203,8 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
         );
     }
     for (i, ser) in series.iter().enumerate() {
-        for run in &ser.runs {
-            let path: Vec<String> = run
-                .iter()
-                .filter(|p| p[0].is_finite() && p[1].is_finite())
-                .map(|p| format!("{:.2},{:.2}", sx(p[0]), sy(p[1])))
-                .collect();
+        for run in ser.runs.iter().filter(|_| !ser.shaded) {
+            let path = points(run);
             if path.len() >= 2 {
                 let _ = writeln!(
                     s,
@@ -189,18 +221,45 @@ pub fn svg_chart(title: &str, x_label: &str, y_label: &str, series: &[SvgSeries]
         }
         let ly = mt + 14.0 + 18.0 * i as f64;
         let lx = w - mr + 12.0;
-        let _ = writeln!(
-            s,
-            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" stroke="{}" stroke-width="3"/><text x="{}" y="{}">{}</text>"#,
-            lx + 18.0,
-            ser.color,
-            lx + 24.0,
-            ly + 4.0,
-            esc(&ser.name)
-        );
+        if ser.shaded {
+            let _ = writeln!(
+                s,
+                r#"<rect x="{lx}" y="{}" width="18" height="10" fill="{}" stroke="{}" stroke-width="0.6"/><text x="{}" y="{}">{}</text>"#,
+                ly - 5.0,
+                pale(&ser.color),
+                ser.color,
+                lx + 24.0,
+                ly + 4.0,
+                esc(&ser.name)
+            );
+        } else {
+            let _ = writeln!(
+                s,
+                r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" stroke="{}" stroke-width="3"/><text x="{}" y="{}">{}</text>"#,
+                lx + 18.0,
+                ser.color,
+                lx + 24.0,
+                ly + 4.0,
+                esc(&ser.name)
+            );
+        }
     }
     s.push_str("</svg>\n");
     s
+}
+
+/// `#rrggbb` a quarter of the way from white to the colour: shaded areas are solid pale
+/// fills (not transparency), so every SVG reader shows them alike.
+fn pale(color: &str) -> String {
+    let channel = |i: usize| {
+        color
+            .get(i..i + 2)
+            .and_then(|h| u8::from_str_radix(h, 16).ok())
+            .map_or(255, |c| {
+                (255.0 - 0.25 * (255.0 - f64::from(c))).round() as u8
+            })
+    };
+    format!("#{:02x}{:02x}{:02x}", channel(1), channel(3), channel(5))
 }
 
 fn esc(t: &str) -> String {
@@ -273,6 +332,7 @@ mod tests {
     #[test]
     fn svg_has_one_polyline_per_run_and_escapes_text() {
         let series = [SvgSeries {
+            shaded: false,
             dashed: false,
             name: "a<b".into(),
             color: "#112233".into(),

@@ -8,9 +8,11 @@ use std::collections::HashMap;
 
 use egui::{Color32, RichText, Ui};
 
+use super::units;
 use super::{Command, Gesture};
 use crate::analysis::Analysis;
 use crate::design::{self, Actuator, Design, Ends, MaterialChoice, Operating, PipeRef, Stiffness};
+use crate::units::Quantity;
 use crate::{friction, material, pipe};
 
 /// One numeric row: what it edits and how its slider behaves.
@@ -72,6 +74,58 @@ impl<'a> Row<'a> {
     fn integer(mut self) -> Self {
         self.integer = true;
         self
+    }
+
+    /// The kind of quantity, for the display units (`None`: shown as in the file).
+    fn quantity(&self) -> Option<Quantity> {
+        match self.unit {
+            "mm" if self.key == "strip.thickness_mm" => Some(Quantity::Thickness),
+            unit => Quantity::of_metric_unit(unit),
+        }
+    }
+
+    /// The unit label in the display units.
+    fn unit_shown(&self) -> &'a str {
+        self.quantity().map_or(self.unit, |q| units().unit(q))
+    }
+
+    /// A file value (SI) in the display units.
+    fn shown_of(&self, si: f64) -> f64 {
+        self.quantity().map_or(si, |q| units().to_display(q, si))
+    }
+
+    /// A value in the display units back in the file's units.
+    fn file_of(&self, shown: f64) -> f64 {
+        self.quantity()
+            .map_or(shown, |q| units().from_display(q, shown))
+    }
+
+    /// A file value as the typed field shows it: [`fmt_value`] of the shown value; a
+    /// thickness in inches to four decimals (0.0100 in).
+    fn text(&self, si: f64) -> String {
+        let u = units();
+        match self.quantity() {
+            Some(Quantity::Thickness) if !u.is_metric() => {
+                format!("{:.4}", u.to_display(Quantity::Thickness, si))
+            }
+            _ => fmt_value(self.shown_of(si)),
+        }
+    }
+
+    /// The allowed range of a field in the display units, in the words of
+    /// [`design::FieldLimit::range_text`] (which it is, in metric).
+    fn allowed(&self, l: &design::FieldLimit, d: &Design) -> String {
+        if units().is_metric() || self.quantity().is_none() {
+            return allowed(l, d);
+        }
+        let (lo, hi) = (self.text(l.min), self.text(l.max_for(d)));
+        let range = match (l.min_excluded, l.max_excluded) {
+            (false, false) => format!("{lo} to {hi}"),
+            (true, false) => format!("more than {lo}, up to {hi}"),
+            (false, true) => format!("from {lo}, less than {hi}"),
+            (true, true) => format!("more than {lo} and less than {hi}"),
+        };
+        format!("{range} {}", self.unit_shown())
     }
 }
 
@@ -306,8 +360,8 @@ impl InputsPanel {
     ) {
         let limit = design::limit(row.key);
         let tip = match limit {
-            Some(l) => format!("{}\nAllowed: {}", row.tip, allowed(l, d)),
-            None => row.tip.to_string(),
+            Some(l) => format!("{}\nAllowed: {}", units().prose(row.tip), row.allowed(l, d)),
+            None => units().prose(row.tip),
         };
         // One label width in every section, so the sliders and fields line up down the panel.
         let label = ui
@@ -321,15 +375,17 @@ impl InputsPanel {
             )
             .inner
             .on_hover_text(&tip);
-        // Slider.
-        let mut v = value;
+        // Slider, in the display units; only a move writes, converted back.
+        let mut v = row.shown_of(value);
         let (lo, hi) = slider_span(&row, limit, d, value);
+        let (lo, hi) = (row.shown_of(lo), row.shown_of(hi));
         let mut slider = egui::Slider::new(&mut v, lo..=hi)
             .show_value(false)
             .clamping(egui::SliderClamping::Never)
             .logarithmic(row.log);
         if row.log && lo <= 0.0 {
-            slider = slider.smallest_positive(row.smallest.unwrap_or(hi * 1e-4));
+            let smallest = row.smallest.map_or(hi * 1e-4, |s| row.shown_of(s));
+            slider = slider.smallest_positive(smallest);
         }
         if row.integer {
             slider = slider.integer();
@@ -342,7 +398,7 @@ impl InputsPanel {
                 Gesture::Done
             };
             self.take_gesture(row.key, out);
-            let _ = self.propose(d, row, v, gesture, out, &set);
+            let _ = self.propose(d, row, row.file_of(v), gesture, out, &set);
             self.typed.remove(row.key);
         }
         if resp.drag_stopped() {
@@ -352,7 +408,7 @@ impl InputsPanel {
         // Typed field.
         let shown = match self.typed.get(row.key) {
             Some(t) if t.over == value => t.text.clone(),
-            _ => fmt_value(value),
+            _ => row.text(value),
         };
         let mut text = shown;
         let resp = ui
@@ -368,7 +424,7 @@ impl InputsPanel {
                 },
             );
             self.take_gesture(row.key, out);
-            match text.trim().parse::<f64>() {
+            match text.trim().parse::<f64>().map(|x| row.file_of(x)) {
                 Ok(x) => {
                     if self.propose(d, row, x, Gesture::Ongoing, out, &set)
                         && let Some(t) = self.typed.get_mut(row.key)
@@ -380,7 +436,7 @@ impl InputsPanel {
                 }
                 Err(_) => {
                     let allowed = limit
-                        .map(|l| format!("; allowed {}", allowed(l, d)))
+                        .map(|l| format!("; allowed {}", row.allowed(l, d)))
                         .unwrap_or_default();
                     self.errors.insert(
                         row.key,
@@ -397,11 +453,11 @@ impl InputsPanel {
         if row.unit.is_empty() {
             ui.label("–").on_hover_text("A pure number, without unit.");
         } else {
-            ui.label(row.unit);
+            ui.label(row.unit_shown());
         }
         ui.end_row();
         if let Some(err) = self.errors.get(row.key) {
-            let kept = format!("{err}; kept {} {}", fmt_value(value), row.unit);
+            let kept = format!("{err}; kept {} {}", row.text(value), row.unit_shown());
             error_line_ui(ui, label.rect.left(), kept.trim_end());
             ui.end_row();
         }
@@ -451,7 +507,7 @@ impl InputsPanel {
         if row.integer && v.fract() != 0.0 {
             self.errors.insert(
                 key,
-                format!("{} {} is not a whole number", row.label, fmt_value(v)),
+                format!("{} {} is not a whole number", row.label, row.text(v)),
             );
             return false;
         }
@@ -468,12 +524,12 @@ impl InputsPanel {
                     Some(l) if !l.admits(v, l.max_for(&next)) => format!(
                         "{} {} {} is outside {}",
                         row.label,
-                        fmt_value(v),
-                        row.unit,
-                        allowed(l, &next)
+                        row.text(v),
+                        row.unit_shown(),
+                        row.allowed(l, &next)
                     )
                     .replace("  ", " "),
-                    _ => e.to_string(),
+                    _ => units().prose(&e.to_string()),
                 };
                 self.errors.insert(key, words);
                 false
@@ -584,14 +640,14 @@ impl InputsPanel {
             MaterialChoice::Grade(id) => {
                 if let Some(m) = material::find(id) {
                     ui.label(
-                        RichText::new(format!(
+                        RichText::new(units().prose(&format!(
                             "E {} GPa, nu {}, tensile {} MPa, yield {} MPa, endurance {} MPa",
                             m.youngs_modulus_gpa,
                             m.poisson_ratio,
                             m.tensile_strength_mpa,
                             m.yield_strength_mpa,
                             m.endurance_limit_mpa
-                        ))
+                        )))
                         .small(),
                     )
                     .on_hover_text(format!(
@@ -714,7 +770,10 @@ impl InputsPanel {
             ui.label("Bore given as").on_hover_text("A diameter you type, or a pipe's inside diameter (OD - 2 x nominal wall, ASME B36.10M).");
             if ui
                 .radio(!as_pipe, "Diameter")
-                .on_hover_text("Type the nominal bore diameter in mm.")
+                .on_hover_text(format!(
+                    "Type the nominal bore diameter in {}.",
+                    units().unit(Quantity::Length)
+                ))
                 .clicked()
                 && as_pipe
             {
@@ -792,12 +851,12 @@ impl InputsPanel {
             });
             if let Some(row) = pipe::find(&p.nps, &p.schedule) {
                 ui.label(
-                    RichText::new(format!(
+                    RichText::new(units().prose(&format!(
                         "OD {} mm, wall {} mm: bore {:.2} mm",
                         row.outside_diameter_mm,
                         row.wall_mm,
                         row.inside_diameter_mm()
-                    ))
+                    )))
                     .small(),
                 )
                 .on_hover_text(&row.source);
@@ -920,9 +979,9 @@ impl InputsPanel {
             ui.label(RichText::new(e).color(error_color(ui)).small());
         }
         ui.label(
-            RichText::new(format!(
+            RichText::new(units().prose(&format!(
                 "Delivers at most {pull_n:.1} N of pull over {stroke_mm:.2} mm of plate travel."
-            ))
+            )))
             .small(),
         );
     }
@@ -948,6 +1007,7 @@ impl InputsPanel {
                 None => "none (no bend check)",
                 Some(Bend::LongRadius) => "long-radius elbow, 1.5 x NPS",
                 Some(Bend::ShortRadius) => "short-radius elbow, 1.0 x NPS",
+                Some(Bend::RadiusMm(_)) if !units().is_metric() => "a radius in inches",
                 Some(Bend::RadiusMm(_)) => "a radius in mm",
             };
             let resp = egui::ComboBox::from_id_salt("bend")

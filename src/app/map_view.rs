@@ -18,6 +18,7 @@ use super::{Command, Gesture, GripApp};
 use crate::design::Design;
 use crate::map::palette::{self, Rgb};
 use crate::map::{self, AxisSpec, Cell, DesignMap, MapError, MapSpec};
+use crate::units::Quantity;
 
 /// Points per axis of a new map (whole-number fields get no more than their span holds).
 pub const DEFAULT_POINTS: usize = 41;
@@ -113,6 +114,7 @@ impl MapView {
                 .axes
                 .clone()
                 .filter(|_| self.open && self.error.is_none()),
+            ..Default::default()
         }
     }
 
@@ -387,19 +389,35 @@ impl MapView {
                 let whole = matches!(axis.field.as_str(), "strip.count" | "duty.cycles");
                 let speed =
                     ((axis.to - axis.from).abs() / 200.0).max(if whole { 1.0 } else { 1e-4 });
+                // In inches a length (force, stress) shows and takes the display unit; the
+                // axis itself stays in the field's unit.
+                let u = super::units();
+                let shown_q = Quantity::of_metric_unit(unit).filter(|_| !u.is_metric());
                 for (what, v) in [("from", &mut axis.from), ("to", &mut axis.to)] {
                     let mut drag = egui::DragValue::new(v)
                         .speed(speed)
                         .prefix(format!("{what} "));
-                    if !unit.is_empty() {
+                    if let Some(q) = shown_q {
+                        drag = drag
+                            .suffix(format!(" {}", u.unit(q)))
+                            .custom_formatter(move |v, _| fmt_value(u.to_display(q, v)))
+                            .custom_parser(move |s| {
+                                s.trim().parse::<f64>().ok().map(|x| u.from_display(q, x))
+                            });
+                    } else if !unit.is_empty() {
                         drag = drag.suffix(format!(" {unit}"));
                     }
                     if whole {
                         drag = drag.fixed_decimals(0);
                     }
                     ui.add(drag).on_hover_text(format!(
-                        "{name} axis, {what}: {} value of the range, in the field's unit",
-                        if what == "from" { "first" } else { "last" }
+                        "{name} axis, {what}: {} value of the range, in {}",
+                        if what == "from" { "first" } else { "last" },
+                        if shown_q.is_some() {
+                            "the chosen units"
+                        } else {
+                            "the field's unit"
+                        }
                     ));
                 }
                 ui.add(
@@ -466,10 +484,19 @@ impl MapView {
         let zero = map.zero_line();
         let current = [map.x.current, map.y.current];
         let height = (ui.available_height() - 70.0).max(240.0);
-        let shown = Plot::new("design-map-plot")
-            .height(height)
-            .x_axis_label(map.x.label())
-            .y_axis_label(map.y.label())
+        let plot = Plot::new("design-map-plot").height(height);
+        // In inches the axes of a length (force, stress) field are numbered in the display
+        // units over the grid's own values.
+        let plot = if super::units().is_metric() {
+            plot.x_axis_label(map.x.label()).y_axis_label(map.y.label())
+        } else {
+            super::outputs::display_axes(
+                plot,
+                (map.x.field, Quantity::of_metric_unit(map.x.unit)),
+                (map.y.field, Quantity::of_metric_unit(map.y.unit)),
+            )
+        };
+        let shown = plot
             .allow_drag(false)
             .allow_zoom(false)
             .allow_scroll(false)
@@ -638,17 +665,29 @@ fn nearest(map: &DesignMap, x: f64, y: f64) -> Option<(usize, usize)> {
 fn field_words(field: &str) -> String {
     match crate::design::limit(field) {
         Some(row) if row.unit.is_empty() => format!("{} ({field})", row.meaning),
-        Some(row) => format!("{}, {} ({field})", row.meaning, row.unit),
+        Some(row) => {
+            let u = super::units();
+            let unit = Quantity::of_metric_unit(row.unit)
+                .filter(|_| !u.is_metric())
+                .map_or(row.unit, |q| u.unit(q));
+            format!("{}, {unit} ({field})", row.meaning)
+        }
         None => field.to_string(),
     }
 }
 
 /// `strip.thickness_mm = 0.25 mm`.
 fn axis_value(axis: &map::Axis, v: f64) -> String {
-    if axis.unit.is_empty() {
-        format!("{} = {}", axis.field, fmt_value(v))
-    } else {
-        format!("{} = {} {}", axis.field, fmt_value(v), axis.unit)
+    let u = super::units();
+    match Quantity::of_metric_unit(axis.unit) {
+        _ if axis.unit.is_empty() => format!("{} = {}", axis.field, fmt_value(v)),
+        Some(q) if !u.is_metric() => format!(
+            "{} = {} {}",
+            axis.field,
+            fmt_value(u.to_display(q, v)),
+            u.unit(q)
+        ),
+        _ => format!("{} = {} {}", axis.field, fmt_value(v), axis.unit),
     }
 }
 
@@ -666,10 +705,15 @@ fn cell_ui(ui: &mut Ui, cell: &Cell, approximate: bool) {
         for c in &cell.checks {
             ui.label(c.id);
             ui.label(if c.pass { "pass" } else { "FAIL" });
-            ui.label(c.margin.and_then(|m| c.unit.margin_text(m)).map_or_else(
-                || "no margin (no state to judge)".to_string(),
-                |t| format!("margin {t}"),
-            ));
+            ui.label(
+                c.margin
+                    .and_then(|m| c.unit.margin_text(m))
+                    .map(|t| super::units().prose(&t))
+                    .map_or_else(
+                        || "no margin (no state to judge)".to_string(),
+                        |t| format!("margin {t}"),
+                    ),
+            );
             ui.end_row();
         }
     });

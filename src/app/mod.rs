@@ -27,6 +27,22 @@ use crate::design::{self, Design};
 
 pub use state::{Orphan, Recovery, Session, Slot, ThemeChoice};
 
+thread_local! {
+    /// The units the app shows numbers in, set from the session at the start of every
+    /// frame (the app draws on one thread), so every panel and window reads one choice.
+    static UNITS: std::cell::Cell<crate::units::UnitSystem> =
+        const { std::cell::Cell::new(crate::units::UnitSystem::Metric) };
+}
+
+/// The units the app shows numbers in.
+pub fn units() -> crate::units::UnitSystem {
+    UNITS.with(std::cell::Cell::get)
+}
+
+fn set_units(units: crate::units::UnitSystem) {
+    UNITS.with(|u| u.set(units));
+}
+
 /// Seconds between recovery writes while the design has unsaved changes.
 pub const AUTOSAVE_SECONDS: f64 = 3.0;
 /// Undo steps kept.
@@ -79,6 +95,8 @@ pub enum Command {
     SetTheme(ThemeChoice),
     /// Print sheets on this paper (kept in the session).
     SetPaper(state::PaperChoice),
+    /// Show numbers in these units (kept in the session; not a design edit).
+    SetUnits(crate::units::UnitSystem),
     /// Show this on the status line.
     Report(Status),
     /// Close the unsaved-changes or the rewrite prompt without acting.
@@ -398,6 +416,7 @@ impl GripApp {
     /// Draws everything and applies what the user asked for.
     pub fn ui(&mut self, ui: &mut egui::Ui) {
         let ctx = ui.ctx().clone();
+        set_units(self.session.units);
         if self.applied_theme != Some(self.session.theme) {
             ctx.set_theme(match self.session.theme {
                 ThemeChoice::System => egui::ThemePreference::System,
@@ -579,6 +598,14 @@ impl GripApp {
             }
             Command::SetPaper(paper) => {
                 self.session.paper = paper;
+                false
+            }
+            Command::SetUnits(units) => {
+                self.session.units = units;
+                set_units(units);
+                // Typed and refused entries were in the other units.
+                self.inputs.forget_entries();
+                self.store_session();
                 false
             }
             Command::Report(status) => {

@@ -16,6 +16,9 @@ use crate::analysis::{Analysis, BoreCase, SideShape};
 use crate::quantities::STATE_FIELDS;
 use crate::segment::SegmentState;
 use crate::ticks;
+use crate::units::Quantity;
+
+use super::units;
 
 /// A curve of a plot: legend name, colour, and its runs (a missing value breaks a run).
 pub struct Curve {
@@ -51,6 +54,7 @@ impl Curve {
             color: format!("#{r:02x}{g:02x}{b:02x}"),
             runs: self.runs.clone(),
             dashed: false,
+            shaded: false,
         }
     }
 
@@ -127,7 +131,7 @@ pub fn stress_curves(a: &Analysis) -> Vec<Curve> {
 pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
     egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
         if let Some(err) = &app.analysis_error {
-            ui.label(RichText::new(format!("The design as edited cannot be analysed: {err}. Showing the last valid design.")).color(error_color(ui)));
+            ui.label(RichText::new(units().prose(&format!("The design as edited cannot be analysed: {err}. Showing the last valid design."))).color(error_color(ui)));
         }
         let Some(a) = &app.analysis else {
             ui.label("No analysis yet.");
@@ -137,9 +141,9 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
         let (text, color) = if failed == 0 { ("Every check passes".to_string(), C_HOLD) } else { (format!("{failed} of {} checks fail", a.checks.len()), error_color(ui)) };
         ui.heading(RichText::new(text).color(color));
         super::strips::status_ui(app, ui);
-        ui.label(RichText::new("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or mm of room.").small());
+        ui.label(RichText::new(format!("Each check is judged at its own bore and stroke; margin is capacity over demand minus one in per cent, or {} of room.", units().length_words())).small());
         // The stored-energy caution sits at the top, where it is seen without scrolling.
-        let stored = a.max_strain_energy_j().map_or_else(|| "store spring energy when bowed".to_string(), |e| format!("store up to {e:.3} J at the operating stroke"));
+        let stored = a.max_strain_energy_j().map_or_else(|| "store spring energy when bowed".to_string(), |e| units().prose(&format!("store up to {e:.3} J at the operating stroke")));
         ui.label(RichText::new(format!("Caution: the strips {stored} and can snap or spring out when released or broken.")).color(C_ACT));
         ui.separator();
         for (i, c) in a.checks.iter().enumerate() {
@@ -154,21 +158,27 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             frame.show(ui, |ui| {
                 let head = format!("{mark} {}{}", c.title(), if limiting { "   [limiting]" } else { "" });
                 let where_ = match (c.bore_mm, c.stroke_mm) {
-                    (Some(b), Some(s)) => format!("judged at bore {b:.3} mm, stroke {s:.3} mm"),
-                    (Some(b), None) => format!("judged at bore {b:.3} mm"),
+                    (Some(b), Some(s)) => units().prose(&format!("judged at bore {b:.3} mm, stroke {s:.3} mm")),
+                    (Some(b), None) => units().prose(&format!("judged at bore {b:.3} mm")),
                     (None, _) => "judged on the hub at rest".to_string(),
                 };
                 ui.label(RichText::new(head).color(col).strong()).on_hover_text(where_);
                 let none = if c.pass { "no margin in this check's terms" } else { "no margin (no state to judge)" };
-                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, c.margin_text().map_or_else(|| none.to_string(), |m| format!("margin {m}"))));
-                ui.label(RichText::new(&c.reason).small());
+                ui.label(format!("{}: {}", if c.pass { "pass" } else { "FAIL" }, c.margin_text_in(units()).map_or_else(|| none.to_string(), |m| format!("margin {m}"))));
+                ui.label(RichText::new(units().prose(&c.reason)).small());
             });
         }
         if let Some(u) = a.usable_stroke() {
             ui.separator();
-            let mut text = u.describe();
+            let mut text = units().prose(&u.describe());
             text[..1].make_ascii_uppercase();
-            let col = if u.range_mm().is_some() { C_HOLD } else { error_color(ui) };
+            let col = if u.range_mm().is_some() {
+                C_HOLD
+            } else if u.is_problem() {
+                error_color(ui)
+            } else {
+                ui.visuals().text_color()
+            };
             ui.label(RichText::new(text).color(col)).on_hover_text(
                 "The strokes at which every bore of the tolerance band works: the segment holds the required load at the largest bore and stays within the stress limit, the model's limit and the actuator's travel at the smallest. The green fill of the stroke-against-bore plot shows the window bore by bore.",
             );
@@ -179,7 +189,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
                 "Not one of the checks: the model lets a strip pass through the end plates and through itself, so states past this point are not physical. Shorten the operating stroke or narrow the gap to the wall.",
             );
             for c in &a.cautions {
-                ui.label(RichText::new(c).color(error_color(ui)).small());
+                ui.label(RichText::new(units().prose(c)).color(error_color(ui)).small());
             }
         }
         ui.separator();
@@ -188,7 +198,7 @@ pub fn verdict_ui(app: &mut GripApp, ui: &mut Ui) {
             match &b.operating {
                 Ok(s) => state_table_ui(ui, s),
                 Err(e) => {
-                    ui.label(RichText::new(e).color(error_color(ui)));
+                    ui.label(RichText::new(units().prose(e)).color(error_color(ui)));
                 }
             }
         }
@@ -208,13 +218,18 @@ fn state_table_ui(ui: &mut Ui, s: &SegmentState) {
             ui.end_row();
         };
         row("phase", s.phase.to_string(), "free, point contact at the crest, line contact (a flat run on the wall), beyond the model's limit, or a failed solve");
+        let u = units();
         for f in &STATE_FIELDS {
-            row(f.label, f.text(s, "n/a"), f.meaning);
+            let text = match (f.get)(s) {
+                Some(_) if !f.unit.is_empty() => format!("{} {}", f.number_in(s, "n/a", u), f.unit_in(u)),
+                _ => f.number_in(s, "n/a", u),
+            };
+            row(f.label, text, f.meaning);
         }
         if let Some(r) = s.actuator {
-            row("actuator reads", r.describe(), "the actuator's own effort and position");
+            row("actuator reads", u.prose(&r.describe()), "the actuator's own effort and position");
         }
-        row("model limit", format!("{:.3} mm ({})", s.limit_stroke_mm, s.limit_reason), "stroke where the model stops in this bore");
+        row("model limit", u.prose(&format!("{:.3} mm ({})", s.limit_stroke_mm, s.limit_reason)), "stroke where the model stops in this bore");
     });
 }
 
@@ -266,7 +281,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             ui,
             cell.x,
             force_rect,
-            &format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
+            &units().prose(&format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm)),
             "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
             rating.note().filter(|_| !a.curve.is_empty()),
             |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h, &marks, &bench),
@@ -277,7 +292,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             ui,
             cell.x,
             stress_rect,
-            &format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm),
+            &units().prose(&format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm)),
             "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
             Some("dip after first contact: physical, see heading".to_string()),
             |ui| stress_plot_ui(ui, a, plot_h, &marks),
@@ -286,8 +301,8 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             ui.set_width(cell.x);
             let shape = a.side_shape();
             let heading = match (shape.is_operating(), a.nominal_operating_stroke_mm()) {
-                (true, Some(op)) => format!("To scale at {op:.3} mm stroke"),
-                (false, Some(op)) => format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke"),
+                (true, Some(op)) => units().prose(&format!("To scale at {op:.3} mm stroke")),
+                (false, Some(op)) => units().prose(&format!("To scale, strips relaxed: no state at the {op:.3} mm operating stroke")),
                 (_, None) => "To scale, strips relaxed: the set pull is never reached at the nominal bore".to_string(),
             };
             ui.add(egui::Label::new(RichText::new(&heading).strong()).truncate()).on_hover_text(format!("{heading}\n\nLeft: one strip in its meridional plane between the bore walls, the end plates, and the flat run on the wall in bold. Right: the ring of strips seen along the axis inside the bore."));
@@ -387,10 +402,10 @@ impl Marker {
 
     fn note(&self) -> Option<String> {
         self.off_scale().then(|| {
-            format!(
+            units().prose(&format!(
                 "{} {:.2} {}: above the plotted range",
                 self.name, self.value, self.unit
-            )
+            ))
         })
     }
 
@@ -464,9 +479,14 @@ const Y_LABEL_PX: egui::Rangef = egui::Rangef {
 
 /// Grid lines on a 1-2-5 series with the labelled lines at least `label_px` points apart
 /// (the plot's own powers of ten leave a narrow range with a single labelled tick).
-fn grid_125(label_px: f32) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+/// The plot's data stay in the file's units; `factor` (file units per displayed unit) puts
+/// the lines at round values of the displayed unit.
+fn grid_125(
+    label_px: f32,
+    factor: f64,
+) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
     egui_plot::uniform_grid_spacer(move |input| {
-        let min = input.base_step_size * f64::from(label_px / GRID_MIN_PX);
+        let min = input.base_step_size / factor * f64::from(label_px / GRID_MIN_PX);
         let (label, lead) = if min.is_finite() && min > 0.0 {
             ticks::nice_step(min)
         } else {
@@ -482,8 +502,29 @@ fn grid_125(label_px: f32) -> impl Fn(egui_plot::GridInput) -> Vec<egui_plot::Gr
         };
         let fine = label / if lead == 2.0 { 4.0 } else { 5.0 };
         // Labelled lines are all of one weight, so their labels share one number of decimals.
-        [fine, label, label]
+        [fine * factor, label * factor, label * factor]
     })
+}
+
+/// The tick labels of an axis whose data are in the file's units, shown in the display
+/// units: the value and the step divided by `factor` (1 in metric).
+fn tick_label_in(
+    factor: f64,
+) -> impl Fn(egui_plot::GridMark, &std::ops::RangeInclusive<f64>) -> String {
+    move |mark, range| {
+        tick_label(
+            egui_plot::GridMark {
+                value: mark.value / factor,
+                step_size: mark.step_size / factor,
+            },
+            range,
+        )
+    }
+}
+
+/// An axis title in the display units: `stroke, mm` or `stroke, in`.
+fn axis_title(name: &str, q: Quantity) -> String {
+    format!("{name}, {}", units().unit(q))
 }
 
 /// A tick label with as many decimals as its step needs.
@@ -492,9 +533,16 @@ fn tick_label(mark: egui_plot::GridMark, _range: &std::ops::RangeInclusive<f64>)
     format!("{:.decimals$}", mark.value)
 }
 
-/// A plot with the app's legend, grid and axis labels.
-fn plot_frame<'a>(id: &str, x_label: &str, y_label: &str, height: f32) -> Plot<'a> {
-    Plot::new(id)
+/// A plot with the app's legend, grid and axis labels. The data are in the file's units
+/// (mm, N, MPa); the axes are labelled, gridded and numbered in the display units of the
+/// quantities `xq` and `yq`.
+fn plot_frame<'a>(
+    id: &str,
+    (x_name, xq): (&str, Quantity),
+    (y_name, yq): (&str, Quantity),
+    height: f32,
+) -> Plot<'a> {
+    let plot = Plot::new(id)
         .height(height)
         .legend(
             Legend::default()
@@ -503,21 +551,37 @@ fn plot_frame<'a>(id: &str, x_label: &str, y_label: &str, height: f32) -> Plot<'
                 .text_style(egui::TextStyle::Small)
                 .follow_insertion_order(true),
         )
-        .custom_x_axes(vec![
-            AxisHints::new_x()
-                .label(x_label)
-                .formatter(tick_label)
-                .label_spacing(X_LABEL_PX),
-        ])
-        .custom_y_axes(vec![
-            AxisHints::new_y()
-                .label(y_label)
-                .formatter(tick_label)
-                .label_spacing(Y_LABEL_PX),
-        ])
-        .grid_spacing(egui::Rangef::new(GRID_MIN_PX, 300.0))
-        .x_grid_spacer(grid_125(X_LABEL_PX.max))
-        .y_grid_spacer(grid_125(Y_LABEL_PX.max))
+        .grid_spacing(egui::Rangef::new(GRID_MIN_PX, 300.0));
+    display_axes(plot, (x_name, Some(xq)), (y_name, Some(yq)))
+}
+
+/// A plot's axes titled, gridded at round values and numbered in the display units of
+/// `xq` and `yq` (`None`: a pure number, the title as given), over data in the file's
+/// units (mm, N, MPa).
+pub(super) fn display_axes<'a>(
+    plot: Plot<'a>,
+    (x_name, xq): (&str, Option<Quantity>),
+    (y_name, yq): (&str, Option<Quantity>),
+) -> Plot<'a> {
+    let factor = |q: Option<Quantity>| q.map_or(1.0, |q| units().from_display(q, 1.0));
+    let title =
+        |name: &str, q: Option<Quantity>| q.map_or(name.to_string(), |q| axis_title(name, q));
+    let (fx, fy) = (factor(xq), factor(yq));
+    let (x_label, y_label) = (title(x_name, xq), title(y_name, yq));
+    plot.custom_x_axes(vec![
+        AxisHints::new_x()
+            .label(x_label)
+            .formatter(tick_label_in(fx))
+            .label_spacing(X_LABEL_PX),
+    ])
+    .custom_y_axes(vec![
+        AxisHints::new_y()
+            .label(y_label)
+            .formatter(tick_label_in(fy))
+            .label_spacing(Y_LABEL_PX),
+    ])
+    .x_grid_spacer(grid_125(X_LABEL_PX.max, fx))
+    .y_grid_spacer(grid_125(Y_LABEL_PX.max, fy))
 }
 
 /// The item name and the point under the pointer.
@@ -558,7 +622,10 @@ fn stroke_hover(
             )
         })
         .unwrap_or_default();
-    format!("{name}\nstroke {:.3} mm\n{value}{phase}{act}", p.x)
+    units().prose(&format!(
+        "{name}\nstroke {:.3} mm\n{value}{phase}{act}",
+        p.x
+    ))
 }
 
 /// Colour of the operating-stroke marker: the text colour, so it reads on both themes.
@@ -576,44 +643,49 @@ fn window_plot_ui(ui: &mut Ui, a: &Analysis, curves: &[Curve], travel: &Marker, 
         range: tolerance,
         fill: C_STEEL.gamma_multiply(0.18),
     }];
-    let shown = plot_frame("window-plot", "bore diameter, mm", "stroke, mm", height)
-        .label_formatter(move |hover| {
-            let (name, p) = hovered(hover);
-            let within = if (tolerance.0..=tolerance.1).contains(&p.x) {
-                "\nwithin the bore tolerance"
-            } else {
-                ""
-            };
-            Some(format!(
-                "{name}\nbore {:.3} mm\nstroke {:.3} mm{within}",
-                p.x, p.y
-            ))
-        })
-        .show(ui, |p| {
-            for b in &bands {
-                b.add_to(p);
+    let shown = plot_frame(
+        "window-plot",
+        ("bore diameter", Quantity::Length),
+        ("stroke", Quantity::Length),
+        height,
+    )
+    .label_formatter(move |hover| {
+        let (name, p) = hovered(hover);
+        let within = if (tolerance.0..=tolerance.1).contains(&p.x) {
+            "\nwithin the bore tolerance"
+        } else {
+            ""
+        };
+        Some(units().prose(&format!(
+            "{name}\nbore {:.3} mm\nstroke {:.3} mm{within}",
+            p.x, p.y
+        )))
+    })
+    .show(ui, |p| {
+        for b in &bands {
+            b.add_to(p);
+        }
+        // Usable window: holding reached, below stress limit, model limit and actuator travel.
+        for run in &usable {
+            if run.len() >= 2 {
+                let xs: Vec<f64> = run.iter().map(|r| r[0]).collect();
+                let lo: Vec<f64> = run.iter().map(|r| r[1]).collect();
+                let hi: Vec<f64> = run.iter().map(|r| r[2]).collect();
+                p.add(
+                    FilledArea::new("usable window", &xs, &lo, &hi)
+                        .fill_color(C_HOLD.gamma_multiply(0.25)),
+                );
             }
-            // Usable window: holding reached, below stress limit, model limit and actuator travel.
-            for run in &usable {
-                if run.len() >= 2 {
-                    let xs: Vec<f64> = run.iter().map(|r| r[0]).collect();
-                    let lo: Vec<f64> = run.iter().map(|r| r[1]).collect();
-                    let hi: Vec<f64> = run.iter().map(|r| r[2]).collect();
-                    p.add(
-                        FilledArea::new("usable window", &xs, &lo, &hi)
-                            .fill_color(C_HOLD.gamma_multiply(0.25)),
-                    );
-                }
-            }
-            for c in curves {
-                c.add_to(p);
-            }
-            if !super::drive::travel_limit_marker(p, a, travel.name, C_ACT) {
-                travel.add_to(p);
-            }
-            super::drive::operating_marker(p, a, mark);
-            p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
-        });
+        }
+        for c in curves {
+            c.add_to(p);
+        }
+        if !super::drive::travel_limit_marker(p, a, travel.name, C_ACT) {
+            travel.add_to(p);
+        }
+        super::drive::operating_marker(p, a, mark);
+        p.add(VLine::new("nominal bore", seg.bore_nominal_mm).color(C_STEEL));
+    });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend([
         "usable window",
@@ -684,10 +756,10 @@ fn no_curve_ui(ui: &mut Ui, a: &Analysis, height: f32) {
     let size = Vec2::new(ui.available_width(), height);
     ui.allocate_ui_with_layout(size, egui::Layout::centered_and_justified(egui::Direction::TopDown), |ui| {
         ui.label(
-            RichText::new(format!(
+            RichText::new(units().prose(&format!(
                 "No curve: the relaxed segment does not fit the nominal bore, {:.2} mm, so the model has no state there.",
                 a.segment.bore_nominal_mm
-            ))
+            )))
             .color(error_color(ui)),
         );
     });
@@ -712,26 +784,36 @@ fn force_plot_ui(
     let curve = &a.curve;
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
-    let shown = plot_frame("force-plot", "stroke, mm", "force, N", height)
-        .allow_drag(false)
-        .label_formatter(move |hover| {
-            let (_, p) = hovered(hover);
-            Some(stroke_hover(curve, hover, format!("{:.2} N", p.y), true))
-        })
-        .show(ui, |p| {
-            phase_backdrop(p, a, &bands, mark);
-            for c in curves {
-                c.add_to(p);
-            }
-            p.add(
-                HLine::new("load x safety factor", need)
-                    .color(C_HOLD)
-                    .style(LineStyle::dashed_loose()),
-            );
-            rating.add_to(p);
-            super::strips::add_marks(p, marks);
-            super::bench::overlay_ui(p, bench);
-        });
+    let shown = plot_frame(
+        "force-plot",
+        ("stroke", Quantity::Length),
+        ("force", Quantity::Force),
+        height,
+    )
+    .allow_drag(false)
+    .label_formatter(move |hover| {
+        let (_, p) = hovered(hover);
+        Some(stroke_hover(
+            curve,
+            hover,
+            units().prose(&format!("{:.2} N", p.y)),
+            true,
+        ))
+    })
+    .show(ui, |p| {
+        phase_backdrop(p, a, &bands, mark);
+        for c in curves {
+            c.add_to(p);
+        }
+        p.add(
+            HLine::new("load x safety factor", need)
+                .color(C_HOLD)
+                .style(LineStyle::dashed_loose()),
+        );
+        rating.add_to(p);
+        super::strips::add_marks(p, marks);
+        super::bench::overlay_ui(p, bench);
+    });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
     legend.extend(marks.iter().map(|m| m.0));
@@ -749,30 +831,40 @@ fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str
     let curve = &a.curve;
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
-    let shown = plot_frame("stress-plot", "stroke, mm", "stress, MPa", height)
-        .allow_drag(false)
-        .label_formatter(move |hover| {
-            let (_, p) = hovered(hover);
-            Some(stroke_hover(curve, hover, format!("{:.1} MPa", p.y), false))
-        })
-        .include_y(0.0)
-        .show(ui, |p| {
-            phase_backdrop(p, a, &bands, mark);
-            for c in &curves {
-                c.add_to(p);
-            }
-            p.add(
-                HLine::new("static allowable", seg.static_allowable_mpa)
-                    .color(C_STRESS)
-                    .style(LineStyle::dashed_loose()),
-            );
-            p.add(
-                HLine::new("fatigue allowable", seg.fatigue_allowable_mpa)
-                    .color(C_LINE)
-                    .style(LineStyle::dashed_loose()),
-            );
-            super::strips::add_marks(p, marks);
-        });
+    let shown = plot_frame(
+        "stress-plot",
+        ("stroke", Quantity::Length),
+        ("stress", Quantity::Stress),
+        height,
+    )
+    .allow_drag(false)
+    .label_formatter(move |hover| {
+        let (_, p) = hovered(hover);
+        Some(stroke_hover(
+            curve,
+            hover,
+            units().prose(&format!("{:.1} MPa", p.y)),
+            false,
+        ))
+    })
+    .include_y(0.0)
+    .show(ui, |p| {
+        phase_backdrop(p, a, &bands, mark);
+        for c in &curves {
+            c.add_to(p);
+        }
+        p.add(
+            HLine::new("static allowable", seg.static_allowable_mpa)
+                .color(C_STRESS)
+                .style(LineStyle::dashed_loose()),
+        );
+        p.add(
+            HLine::new("fatigue allowable", seg.fatigue_allowable_mpa)
+                .color(C_LINE)
+                .style(LineStyle::dashed_loose()),
+        );
+        super::strips::add_marks(p, marks);
+    });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
     legend.extend(marks.iter().map(|m| m.0));
@@ -890,7 +982,7 @@ fn side_view_ui(ui: &mut Ui, a: &Analysis, drawn: &SideShape<'_>, size: Vec2) {
     painter.text(
         scale.p(chord * 0.5, r_wall) + Vec2::new(0.0, -4.0),
         egui::Align2::CENTER_BOTTOM,
-        format!("bore {:.2} mm", 2.0 * r_wall),
+        units().prose(&format!("bore {:.2} mm", 2.0 * r_wall)),
         egui::FontId::proportional(11.0),
         fg,
     );
@@ -960,8 +1052,9 @@ fn side_view_ui(ui: &mut Ui, a: &Analysis, drawn: &SideShape<'_>, size: Vec2) {
         rect.left_bottom(),
         egui::Align2::LEFT_BOTTOM,
         format!(
-            "drawn at {:.2} px/mm; red: flat run on the wall",
-            scale.px_per_mm
+            "drawn at {:.2} px/{}; red: flat run on the wall",
+            f64::from(scale.px_per_mm) * units().from_display(Quantity::Length, 1.0),
+            units().unit(Quantity::Length)
         ),
         egui::FontId::proportional(10.0),
         fg.gamma_multiply(0.7),
@@ -1002,7 +1095,15 @@ fn end_view_ui(ui: &mut Ui, a: &Analysis, size: Vec2) {
     painter.text(
         rect.center_bottom(),
         egui::Align2::CENTER_BOTTOM,
-        format!("{n} strips, {b} x {} mm", d.strip.thickness_mm),
+        if units().is_metric() {
+            format!("{n} strips, {b} x {} mm", d.strip.thickness_mm)
+        } else {
+            format!(
+                "{n} strips, {} x {} in",
+                units().number(Quantity::Length, b, 3),
+                units().number(Quantity::Thickness, d.strip.thickness_mm, 3)
+            )
+        },
         egui::FontId::proportional(10.0),
         fg.gamma_multiply(0.7),
     );

@@ -15,7 +15,7 @@ use egui::{Color32, Context, RichText, Ui};
 use egui_plot::{Bar, BarChart, Plot};
 
 use super::inputs::error_color;
-use super::{Command, Gesture, GripApp};
+use super::{Command, Gesture, GripApp, units};
 use crate::checks::MarginUnit;
 use crate::design::Design;
 use crate::map::palette;
@@ -23,6 +23,7 @@ use crate::scatter::command::{
     distribution_words, margin_text, percent, sd_text, sensitivities_of,
 };
 use crate::scatter::{self, Control, DistributionKind, ScatterError, ScatterReport, ScatterSpec};
+use crate::units::Quantity;
 
 /// How often the window looks for news while a run goes on.
 const POLL: Duration = Duration::from_millis(60);
@@ -279,11 +280,11 @@ fn sensitivity_ui(ui: &mut Ui, r: &ScatterReport, chart_check: &mut Option<&'sta
         return;
     }
     let Some(centre) = centre else { return };
-    // Ratio margins in per cent, as the table shows them.
+    // Ratio margins in per cent, as the table shows them; lengths in the display units.
     let scale = if unit == MarginUnit::Ratio {
         100.0
     } else {
-        1.0
+        1.0 / units().from_display(Quantity::Length, 1.0)
     };
     let n = list.len();
     let mut low = Vec::new();
@@ -297,28 +298,28 @@ fn sensitivity_ui(ui: &mut Ui, r: &ScatterReport, chart_check: &mut Option<&'sta
             low.push(
                 Bar::new(at + 0.18, scale * (m - centre))
                     .width(0.34)
-                    .name(format!(
+                    .name(units().prose(&format!(
                         "{} low end: margin {}",
                         s.input,
                         margin_text(Some(m), unit)
-                    )),
+                    ))),
             );
         }
         if let Some(m) = s.margin_high {
             high.push(
                 Bar::new(at - 0.18, scale * (m - centre))
                     .width(0.34)
-                    .name(format!(
+                    .name(units().prose(&format!(
                         "{} high end: margin {}",
                         s.input,
                         margin_text(Some(m), unit)
-                    )),
+                    ))),
             );
         }
     }
     let unit_words = match unit {
-        MarginUnit::Mm => "change of margin, mm",
-        MarginUnit::Ratio => "change of margin, percentage points",
+        MarginUnit::Mm => format!("change of margin, {}", units().unit(Quantity::Length)),
+        MarginUnit::Ratio => "change of margin, percentage points".to_string(),
     };
     let names_for_axis = names.clone();
     Plot::new("scatter-sensitivities")
@@ -385,15 +386,29 @@ fn tolerances_ui(ui: &mut Ui, design: &Design) -> Vec<Command> {
         .show(ui, |ui| {
             let mut row = |ui: &mut Ui, name: &str, v: &mut f64, unit: &str, max: f64, tip: &str| {
                 let l = ui.label(name);
+                // A length in the display units (the value itself stays in mm).
+                let u = units();
+                let length = unit == "mm" && !u.is_metric();
+                let mut value = egui::DragValue::new(v)
+                    .range(0.0..=max)
+                    .clamp_existing_to_range(false)
+                    .speed(max / 2000.0)
+                    .prefix("+/- ");
+                value = if length {
+                    value
+                        .suffix(format!(" {}", u.unit(Quantity::Length)))
+                        .custom_formatter(move |v, _| {
+                            format!("{:.5}", u.to_display(Quantity::Length, v))
+                        })
+                        .custom_parser(move |s| {
+                            s.trim().parse::<f64>().ok().map(|x| u.from_display(Quantity::Length, x))
+                        })
+                } else {
+                    value.suffix(format!(" {unit}"))
+                };
+                let tip = if length { u.prose(&tip.replace(", mm", "")) } else { tip.to_string() };
                 let r = ui
-                    .add(
-                        egui::DragValue::new(v)
-                            .range(0.0..=max)
-                            .clamp_existing_to_range(false)
-                            .speed(max / 2000.0)
-                            .prefix("+/- ")
-                            .suffix(format!(" {unit}")),
-                    )
+                    .add(value)
                     .labelled_by(l.id)
                     .on_hover_text(tip);
                 track(&r);
@@ -536,12 +551,12 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
                     percent(c.wilson_95[0]),
                     percent(c.wilson_95[1])
                 ));
-                let m = |v: Option<f64>| margin_text(v, c.unit);
+                let m = |v: Option<f64>| units().prose(&margin_text(v, c.unit));
                 ui.label(m(c.centre.margin));
                 ui.label(m(c.margin_p01));
                 ui.label(m(c.margin_p50));
                 ui.label(m(c.margin_p99));
-                let sd = |v: Option<f64>| sd_text(v, c.unit);
+                let sd = |v: Option<f64>| units().prose(&sd_text(v, c.unit));
                 ui.label(sd(c.margin_sd_monte_carlo));
                 ui.label(sd(c.margin_sd_propagation));
                 let worst = RichText::new(m(w.outcome.margin));
@@ -554,9 +569,10 @@ fn checks_table_ui(ui: &mut Ui, r: &ScatterReport) {
             }
         });
     ui.label(
-        RichText::new(
-            "Margins: clearance or stroke in mm, or capacity over demand minus one in per cent.",
-        )
+        RichText::new(format!(
+            "Margins: clearance or stroke in {}, or capacity over demand minus one in per cent.",
+            units().length_words()
+        ))
         .small(),
     );
 }
@@ -589,7 +605,11 @@ fn histogram_ui(ui: &mut Ui, r: &ScatterReport) {
         .allow_zoom(false)
         .allow_scroll(false)
         .allow_boxed_zoom(false)
-        .x_axis_label("margin of the governing check (its unit)")
+        .x_axis_label(if units().is_metric() {
+            "margin of the governing check (its unit)"
+        } else {
+            "margin of the governing check (its unit: mm for a clearance or stroke)"
+        })
         .y_axis_label("samples")
         .show(ui, |p| {
             p.add(BarChart::new("samples", bars));

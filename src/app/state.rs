@@ -115,6 +115,8 @@ pub struct Session {
     pub theme: ThemeChoice,
     /// Paper for the sizing sheet.
     pub paper: PaperChoice,
+    /// Units the app shows numbers in (and prints the sheet in); the design file stays SI.
+    pub units: crate::units::UnitSystem,
     /// Where the window was and how large, when the app last closed.
     pub window: Option<WindowPlace>,
 }

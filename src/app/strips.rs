@@ -17,6 +17,7 @@ use crate::design::Design;
 use crate::elastica::Phase;
 use crate::segment::Segment;
 use crate::sharing::{self, CaseChoice, Judge, LoadedPoint, Loading, SharedState};
+use crate::units::Quantity;
 
 const C_ARROW: Color32 = Color32::from_rgb(220, 60, 60);
 const C_CREST: Color32 = Color32::from_rgb(230, 140, 20);
@@ -288,8 +289,12 @@ pub fn table_ui(app: &GripApp, ui: &mut Ui) {
             return;
         }
     };
-    ui.label(RichText::new(&p.governing).small());
-    let stroke = |v: Option<f64>| v.map_or_else(|| "none".to_string(), |s| format!("{s:.3} mm"));
+    let u = super::units();
+    ui.label(RichText::new(u.prose(&p.governing)).small());
+    let stroke =
+        |v: Option<f64>| v.map_or_else(|| "none".to_string(), |s| u.format(Quantity::Length, s, 3));
+    let len = u.unit(Quantity::Length);
+    let offset = |v: f64| u.to_display(Quantity::Length, v);
     egui::Grid::new("loaded-strokes")
         .num_columns(2)
         .striped(true)
@@ -302,8 +307,9 @@ pub fn table_ui(app: &GripApp, ui: &mut Ui) {
             row(
                 "hub offset",
                 format!(
-                    "y {:+.3} mm, z {:+.3} mm",
-                    p.hub_offset_mm[0], p.hub_offset_mm[1]
+                    "y {:+.3} {len}, z {:+.3} {len}",
+                    offset(p.hub_offset_mm[0]),
+                    offset(p.hub_offset_mm[1])
                 ),
                 "The hub's offset from the bore's centre; y up, so a weight gives y below zero.",
             );
@@ -334,35 +340,36 @@ pub fn table_ui(app: &GripApp, ui: &mut Ui) {
                 .num_columns(6)
                 .striped(true)
                 .show(ui, |ui| {
-                    for (head, tip) in [
-                        ("clock, deg", "Clock angle from the top, clockwise looking along the bore."),
-                        ("gap, mm", "Gap from the relaxed strip's outer edges to the wall at this hub offset."),
-                        ("phase", "free, point contact, line contact, or off the wall (past its own limit while the hub rests on its rim; the rim carries the load)."),
-                        ("contact, N", "Force of the strip on the wall."),
-                        ("axial, N", "Axial compression of the strip (its share of the actuator pull)."),
-                        ("stress, MPa", "Peak stress of the strip, bending plus axial."),
-                    ] {
+                    let heads = [
+                        ("clock, deg".to_string(), "Clock angle from the top, clockwise looking along the bore."),
+                        (format!("gap, {len}"), "Gap from the relaxed strip's outer edges to the wall at this hub offset."),
+                        ("phase".to_string(), "free, point contact, line contact, or off the wall (past its own limit while the hub rests on its rim; the rim carries the load)."),
+                        (format!("contact, {}", u.unit(Quantity::Force)), "Force of the strip on the wall."),
+                        (format!("axial, {}", u.unit(Quantity::Force)), "Axial compression of the strip (its share of the actuator pull)."),
+                        (format!("stress, {}", u.unit(Quantity::Stress)), "Peak stress of the strip, bending plus axial."),
+                    ];
+                    for (head, tip) in heads {
                         ui.label(RichText::new(head).strong()).on_hover_text(tip);
                     }
                     ui.end_row();
-                    let num = |v: f64, d: usize| {
+                    let num = |q: Quantity, v: f64, d: usize| {
                         if v.is_finite() {
-                            format!("{v:.d$}")
+                            u.number(q, v, d)
                         } else {
                             "n/a".to_string()
                         }
                     };
                     for r in &p.strips {
                         ui.label(format!("{:.1}", r.clock_deg));
-                        ui.label(format!("{:.3}", r.gap_mm));
+                        ui.label(num(Quantity::Length, r.gap_mm, 3));
                         ui.label(if r.phase.has_state() {
                             r.phase.to_string()
                         } else {
                             "off the wall".to_string()
                         });
-                        ui.label(num(r.contact_force_n, 2));
-                        ui.label(num(r.axial_force_n, 2));
-                        ui.label(num(r.max_stress_mpa, 1));
+                        ui.label(num(Quantity::Force, r.contact_force_n, 2));
+                        ui.label(num(Quantity::Force, r.axial_force_n, 2));
+                        ui.label(num(Quantity::Stress, r.max_stress_mpa, 1));
                         ui.end_row();
                     }
                 });
@@ -480,13 +487,19 @@ pub fn end_view_ui(ui: &mut Ui, a: &Analysis, view: Option<&LoadedView>, size: V
             painter.arrow(base, dir * len, Stroke::new(2.0, C_ARROW));
         }
     }
+    let u = super::units();
+    let (oy, oz, len) = (
+        u.to_display(Quantity::Length, off[0]),
+        u.to_display(Quantity::Length, off[1]),
+        u.unit(Quantity::Length),
+    );
     let note1 = if k > 1.0 {
-        format!("hub y {:+.3} z {:+.3} mm, drawn {k:.0} x", off[0], off[1])
+        format!("hub y {oy:+.3} z {oz:+.3} {len}, drawn {k:.0} x")
     } else {
-        format!("hub y {:+.3} z {:+.3} mm, to scale", off[0], off[1])
+        format!("hub y {oy:+.3} z {oz:+.3} {len}, to scale")
     };
     let note2 = if fmax > 0.0 {
-        format!("arrows: 10 mm = {:.1} N", 10.0 / mm_per_n)
+        u.prose(&format!("arrows: 10 mm = {:.1} N", 10.0 / mm_per_n))
     } else {
         "no strip touches the wall".to_string()
     };
@@ -499,13 +512,13 @@ pub fn end_view_ui(ui: &mut Ui, a: &Analysis, view: Option<&LoadedView>, size: V
             fg.gamma_multiply(0.75),
         );
     }
-    resp.on_hover_text(format!(
+    resp.on_hover_text(u.prose(&format!(
         "Seen along the bore at the nominal bore {:.2} mm and the operating stroke, {}. Orange: strip crests (grey: off the wall); red arrows: each strip's contact force on the wall, to scale (10 mm of bore = {:.1} N, the longest {fmax:.1} N); dot: the hub, its offset (y {:+.3} mm, z {:+.3} mm) drawn {k:.0} x larger than it is so that it shows.",
         p.bore_mm,
         p.governing,
         if mm_per_n > 0.0 { 10.0 / mm_per_n } else { 0.0 },
         off[0],
         off[1]
-    ));
+    )));
     true
 }

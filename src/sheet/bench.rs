@@ -8,11 +8,12 @@
 use super::Section;
 use super::draw::{Block, GREY, INK, RED, Rgb};
 use super::font::Weight;
-use super::format::{NONE, fixed, sig};
+use super::format::{NONE, fixed, sig, units};
 use super::plot::{Item, Pen, Plot};
 use crate::analysis::Analysis;
 use crate::bench_data::{BenchData, Quantity};
 use crate::calibrate::{self, Calibration, Factor, Factors, QuantityResiduals};
+use crate::units::Quantity::Length;
 
 const BODY: f32 = 8.5;
 const SMALL: f32 = 7.5;
@@ -46,7 +47,14 @@ pub fn residual_cells(q: &QuantityResiduals) -> [String; 5] {
         s.points.to_string(),
         format!("{} {u}", fixed(s.rms, 3)),
         format!("{} {u}", signed(s.max_signed, 3)),
-        format!("line {}, stroke {}", s.max_line, fixed(s.max_stroke_mm, 3)),
+        format!(
+            "line {}, stroke {}",
+            s.max_line,
+            fixed(
+                units().to_display(Length, s.max_stroke_mm),
+                units().decimals(Length, 3)
+            )
+        ),
     ]
 }
 
@@ -213,7 +221,13 @@ fn residual_table(all: &[QuantityResiduals], width: f32) -> Block {
     let widths = [0.24, 0.1, 0.18, 0.18, 0.30].map(|f| f * width);
     let rows: Vec<Vec<String>> = all.iter().map(|q| residual_cells(q).to_vec()).collect();
     table(
-        &["column", "points", "RMS", "largest", "where (stroke in mm)"],
+        &[
+            "column",
+            "points",
+            "RMS",
+            "largest",
+            &format!("where (stroke in {})", units().unit(Length)),
+        ],
         &widths,
         &rows,
     )

@@ -112,9 +112,14 @@ pub fn text_width(text: &str, size: f32, weight: Weight) -> f32 {
     })
 }
 
-/// Breaks `text` into lines no wider than `width` points (a single word longer than the
-/// width is broken by characters).
+/// Breaks `text`, in the sheet's units ([`super::format::shown`]), into lines no wider
+/// than `width` points (a single word longer than the width is broken by characters).
 pub fn wrap(text: &str, width: f32, size: f32, weight: Weight) -> Vec<String> {
+    wrap_raw(&super::format::shown(text), width, size, weight)
+}
+
+/// [`wrap`] of a text kept as written (a design's own title).
+pub fn wrap_raw(text: &str, width: f32, size: f32, weight: Weight) -> Vec<String> {
     let mut lines = Vec::new();
     let mut line = String::new();
     for word in text.split_whitespace() {
@@ -159,7 +164,29 @@ impl Block {
         self.text_in(x, y, size, weight, INK, text);
     }
 
-    /// Coloured text with its baseline at `y`.
+    /// Text with its baseline at `y`, kept as written (a design's own title or file name:
+    /// not converted to the sheet's units).
+    #[allow(clippy::too_many_arguments)]
+    pub fn text_raw(
+        &mut self,
+        x: f32,
+        y: f32,
+        size: f32,
+        weight: Weight,
+        color: Rgb,
+        text: String,
+    ) {
+        self.marks.push(Mark::Text {
+            x,
+            y,
+            size,
+            weight,
+            color,
+            text,
+        });
+    }
+
+    /// Coloured text with its baseline at `y`, in the sheet's units.
     pub fn text_in(
         &mut self,
         x: f32,
@@ -169,13 +196,14 @@ impl Block {
         color: Rgb,
         text: impl Into<String>,
     ) {
+        let text = super::format::shown(&text.into());
         self.marks.push(Mark::Text {
             x,
             y,
             size,
             weight,
             color,
-            text: text.into(),
+            text,
         });
     }
 
@@ -217,7 +245,7 @@ impl Block {
         color: Rgb,
         text: impl Into<String>,
     ) {
-        let text = text.into();
+        let text = super::format::shown(&text.into());
         let w = text_width(&text, size, weight);
         self.text_in(x - anchor * w, y, size, weight, color, text);
     }

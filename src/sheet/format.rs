@@ -2,13 +2,81 @@
 //! quantity the same way: lengths and strokes in mm to 3 decimals, forces to 4
 //! significant figures, stresses in MPa to 1 decimal, factors and ratios to 3 decimals,
 //! angles to 1 decimal. A missing value prints as an en dash with the reason nearby.
+//!
+//! The sheet prints in one unit system, chosen per sheet ([`use_units`] holds it while a
+//! sheet is laid out): these functions convert lengths, forces, stresses and torques
+//! through `crate::units`, and every text placed on a page passes through [`shown`], which
+//! converts what a sentence says in mm, N or MPa. In inches a length shows 4 decimals.
+
+use std::cell::Cell;
+
+use crate::units::{Quantity, UnitSystem};
+
+thread_local! {
+    /// The units of the sheet being laid out on this thread.
+    static UNITS: Cell<UnitSystem> = const { Cell::new(UnitSystem::Metric) };
+}
+
+/// Restores the previous units when dropped.
+pub struct UnitsGuard(UnitSystem);
+
+impl Drop for UnitsGuard {
+    fn drop(&mut self) {
+        UNITS.with(|u| u.set(self.0));
+    }
+}
+
+/// Lays out in `units` until the guard is dropped.
+pub fn use_units(units: UnitSystem) -> UnitsGuard {
+    UnitsGuard(UNITS.with(|u| u.replace(units)))
+}
+
+/// The units of the sheet being laid out.
+pub fn units() -> UnitSystem {
+    UNITS.with(Cell::get)
+}
+
+/// A text as placed on the sheet: in metric as written, in inches with every number given
+/// in mm, N, MPa or N m converted ([`UnitSystem::prose`]).
+pub fn shown(text: &str) -> String {
+    units().prose(text)
+}
+
+/// A value of a design-file field shown on the inputs: in metric as `shown`; in inches
+/// with the file's own number beside it, `0.0098 in (0.25 mm in the file)`, so a reviewer
+/// can trace it to the file.
+pub fn from_file(si: f64, metric_unit: &str, shown: String) -> String {
+    if units().is_metric() {
+        shown
+    } else {
+        format!(
+            "{shown} ({} {metric_unit} in the file)",
+            crate::design::show_number(si)
+        )
+    }
+}
+
+/// Decimals for a length: 3 in mm, 4 in inches.
+fn length_decimals() -> usize {
+    if units().is_metric() { 3 } else { 4 }
+}
 
 /// What prints for a quantity that does not exist (out of reach, no state).
 pub const NONE: &str = "–";
 
-/// Millimetres, 3 decimals: `12.345 mm`.
+/// A length: millimetres to 3 decimals (`12.345 mm`), or inches to 4 (`0.4860 in`).
 pub fn mm(v: f64) -> String {
-    format!("{} mm", fixed(v, 3))
+    let u = units();
+    format!(
+        "{} {}",
+        fixed(u.to_display(Quantity::Length, v), length_decimals()),
+        u.unit(Quantity::Length)
+    )
+}
+
+/// A length value of a design-file field ([`mm`], with the file's value in inches).
+pub fn file_mm(v: f64) -> String {
+    from_file(v, "mm", mm(v))
 }
 
 /// An optional length.
@@ -59,14 +127,43 @@ pub fn sig(v: f64, sig: usize) -> String {
     fixed(v, decimals)
 }
 
-/// Force in newtons, 4 significant figures.
+/// Force in newtons (or pound-force), 4 significant figures.
 pub fn newton(v: f64) -> String {
-    format!("{} N", sig(v, 4))
+    let u = units();
+    format!(
+        "{} {}",
+        sig(u.to_display(Quantity::Force, v), 4),
+        u.unit(Quantity::Force)
+    )
 }
 
-/// Stress in MPa, 1 decimal.
+/// A force value of a design-file field ([`newton`], with the file's value in inches).
+pub fn file_newton(v: f64) -> String {
+    from_file(v, "N", newton(v))
+}
+
+/// Stress in MPa, 1 decimal (or ksi, 2 decimals).
 pub fn mpa(v: f64) -> String {
-    format!("{} MPa", fixed(v, 1))
+    let u = units();
+    format!(
+        "{} {}",
+        fixed(
+            u.to_display(Quantity::Stress, v),
+            u.decimals(Quantity::Stress, 1)
+        ),
+        u.unit(Quantity::Stress)
+    )
+}
+
+/// A bending stiffness given in N mm², 4 significant figures: `9124 N mm²`, or in inches
+/// `3.180 lbf in²` (a force times a length squared, through `crate::units`).
+pub fn bending_stiffness(n_mm2: f64) -> String {
+    let u = units();
+    if u.is_metric() {
+        return format!("{} N mm²", sig(n_mm2, 4));
+    }
+    let per = u.from_display(Quantity::Force, 1.0) * u.from_display(Quantity::Length, 1.0).powi(2);
+    format!("{} lbf in²", sig(n_mm2 / per, 4))
 }
 
 /// A factor or ratio, 3 decimals.
@@ -79,6 +176,17 @@ pub fn in_unit(v: f64, unit: &str) -> String {
     match unit {
         "mm" => mm(v),
         "deg" => format!("{}°", fixed(v, 1)),
+        "N" => newton(v),
+        "N m" => format!(
+            "{} {}",
+            sig(units().to_display(Quantity::Torque, v), 4),
+            units().unit(Quantity::Torque)
+        ),
+        "N/mm" => format!(
+            "{} {}",
+            sig(units().to_display(Quantity::Stiffness, v), 4),
+            units().unit(Quantity::Stiffness)
+        ),
         _ => format!("{} {unit}", sig(v, 4)),
     }
 }

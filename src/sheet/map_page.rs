@@ -54,7 +54,7 @@ fn figure(map: &DesignMap, width: f32) -> Block {
         8.0,
         Weight::Regular,
         INK,
-        format!("up: {}", map.y.label()),
+        format!("up: {}", shown_axis(&map.y).1),
     );
     let (nx, ny) = (map.x.len(), map.y.len());
     let (cw, ch) = (side / nx as f32, side / ny as f32);
@@ -108,10 +108,15 @@ fn figure(map: &DesignMap, width: f32) -> Block {
         b.line([cx - 6.5, cy], [cx + 6.5, cy], 0.8, INK);
         b.line([cx, cy - 6.5], [cx, cy + 6.5], 0.8, INK);
     }
-    // Ticks.
-    let (xt, xd) = ticks(map.x.from.min(map.x.to), map.x.from.max(map.x.to), 6);
+    // Ticks, at round values of the sheet's units (`f`: field units per shown unit).
+    let (fx, fy) = (shown_axis(&map.x).0, shown_axis(&map.y).0);
+    let (xt, xd) = ticks(
+        map.x.from.min(map.x.to) / fx,
+        map.x.from.max(map.x.to) / fx,
+        6,
+    );
     for v in xt {
-        let x = px(v);
+        let x = px(v * fx);
         if (x0 - 0.5..=x0 + side + 0.5).contains(&x) {
             b.line([x, y0 + side], [x, y0 + side + 3.0], 0.5, INK);
             b.text_centre(
@@ -124,9 +129,13 @@ fn figure(map: &DesignMap, width: f32) -> Block {
             );
         }
     }
-    let (yt, yd) = ticks(map.y.from.min(map.y.to), map.y.from.max(map.y.to), 6);
+    let (yt, yd) = ticks(
+        map.y.from.min(map.y.to) / fy,
+        map.y.from.max(map.y.to) / fy,
+        6,
+    );
     for v in yt {
-        let y = py(v);
+        let y = py(v * fy);
         if (y0 - 0.5..=y0 + side + 0.5).contains(&y) {
             b.line([x0 - 3.0, y], [x0, y], 0.5, INK);
             b.text_right(x0 - 5.0, y + 2.5, 7.0, Weight::Regular, format!("{v:.yd$}"));
@@ -138,10 +147,23 @@ fn figure(map: &DesignMap, width: f32) -> Block {
         8.0,
         Weight::Regular,
         INK,
-        format!("across: {}", map.x.label()),
+        format!("across: {}", shown_axis(&map.x).1),
     );
     b.height = y0 + side + BELOW_PT;
     b
+}
+
+/// An axis in the sheet's units: field units per shown unit (1 in metric, and for pure
+/// numbers) and its title (`strip.thickness_mm (in)`).
+fn shown_axis(axis: &Axis) -> (f64, String) {
+    let units = super::format::units();
+    match crate::units::Quantity::of_metric_unit(axis.unit) {
+        Some(q) if !units.is_metric() => (
+            units.from_display(q, 1.0),
+            format!("{} ({})", axis.field, units.unit(q)),
+        ),
+        _ => (1.0, axis.label()),
+    }
 }
 
 /// Where `v` lies along an axis, 0 at the first cell's outer edge, 1 at the last's.

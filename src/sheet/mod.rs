@@ -211,6 +211,9 @@ const CLOSING_FIRST: &str = "Model, assumptions and limits";
 pub struct SheetOptions {
     /// A design-map page over these two axes (across, up).
     pub map: Option<(crate::map::AxisSpec, crate::map::AxisSpec)>,
+    /// Units of every number printed (metric by default); the inputs also give the file's
+    /// own SI value beside an inch value.
+    pub units: crate::units::UnitSystem,
 }
 
 /// Lays the sheet out (with the given date text) without writing the PDF.
@@ -244,6 +247,8 @@ pub fn layout_with(
     options: &SheetOptions,
 ) -> anyhow::Result<SheetLayout> {
     font::faces()?;
+    // Every number laid out below is in the chosen units, until this returns.
+    let _units = format::use_units(options.units);
     let analysis = analysis::analyse(design)
         .map_err(|e| anyhow::anyhow!("cannot print a sheet for {file_label}: {e}"))?;
     let meta = SheetMeta {
@@ -416,7 +421,7 @@ fn paginate(
                 design.title.trim()
             };
             let title = fit(title, cw - 120.0, 8.5, Weight::Bold);
-            frame.text(0.0, 9.0, 8.5, Weight::Bold, title);
+            frame.text_raw(0.0, 9.0, 8.5, Weight::Bold, INK, title);
             frame.text_right(
                 cw,
                 9.0,
@@ -428,7 +433,7 @@ fn paginate(
             let hash = format!("  ·  SHA-256 {}", meta.hash16);
             let room = cw - 150.0 - draw::text_width(&hash, 7.5, Weight::Regular);
             let file = fit_start(&meta.file_label, room, 7.5, Weight::Regular) + &hash;
-            frame.text_in(0.0, 20.0, 7.5, Weight::Regular, GREY, file);
+            frame.text_raw(0.0, 20.0, 7.5, Weight::Regular, GREY, file);
             let d = format!("bowgrip {}  ·  {}", meta.version, meta.date);
             let dw = draw::text_width(&d, 7.5, Weight::Regular);
             frame.text_in(cw - dw, 20.0, 7.5, Weight::Regular, GREY, d);

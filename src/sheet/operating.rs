@@ -16,7 +16,7 @@ pub fn input_pairs(a: &Analysis) -> Vec<(String, String)> {
     let mut rows = Vec::new();
     match drive.operating {
         Operating::Stroke(op) => {
-            rows.push(("Operating stroke δ".to_string(), f::mm(op)));
+            rows.push(("Operating stroke δ".to_string(), f::file_mm(op)));
             let reading = seg.actuator_reading(op, 0.0);
             if reading.position_unit != "mm" {
                 rows.push((
@@ -30,14 +30,17 @@ pub fn input_pairs(a: &Analysis) -> Vec<(String, String)> {
                 "Operating point set by".to_string(),
                 "pull (force control)".to_string(),
             ));
-            rows.push(("Set pull on the plates".to_string(), f::newton(p)));
+            rows.push(("Set pull on the plates".to_string(), f::file_newton(p)));
         }
         Operating::Torque(t) => {
             rows.push((
                 "Operating point set by".to_string(),
                 "torque (force control)".to_string(),
             ));
-            rows.push(("Set torque".to_string(), f::in_unit(t, "N m")));
+            rows.push((
+                "Set torque".to_string(),
+                f::from_file(t, "N m", f::in_unit(t, "N m")),
+            ));
             if let Some(p) = drive.set_pull_n {
                 rows.push(("Pull it sets on the plates".to_string(), f::newton(p)));
             }
@@ -46,7 +49,7 @@ pub fn input_pairs(a: &Analysis) -> Vec<(String, String)> {
     if let Some(k) = drive.stiffness_n_per_mm {
         rows.push((
             "Drive stiffness k_c (in series)".to_string(),
-            f::in_unit(k, "N/mm"),
+            f::from_file(k, "N/mm", f::in_unit(k, "N/mm")),
         ));
     }
     rows

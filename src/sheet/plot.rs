@@ -7,6 +7,7 @@ use super::draw::{Block, GREY, INK, LIGHT, Rgb};
 use super::font::Weight;
 use super::format::fixed;
 use crate::ticks::ticks;
+use crate::units::UnitSystem;
 
 /// How a series is stroked.
 #[derive(Clone, Debug)]
@@ -113,8 +114,75 @@ const LABEL_SIZE: f32 = 8.0;
 const LEGEND_SIZE: f32 = 7.5;
 
 impl Plot {
-    /// Lays the plot out in a block `width` points wide with a frame `frame_height` tall.
+    /// The plot in `units`: the data on an axis whose title ends in a metric unit
+    /// (`stroke (mm)`) converted with the title, the legend in words converted.
+    fn in_units(&self, units: UnitSystem) -> Plot {
+        if units.is_metric() {
+            return self.clone();
+        }
+        let (x_label, xq) = units.axis_label(&self.x_label);
+        let (y_label, yq) = units.axis_label(&self.y_label);
+        let x = |v: f64| xq.map_or(v, |q| units.to_display(q, v));
+        let y = |v: f64| yq.map_or(v, |q| units.to_display(q, v));
+        let items = self
+            .items
+            .iter()
+            .map(|item| match item {
+                Item::Series { label, pen, points } => Item::Series {
+                    label: units.prose(label),
+                    pen: pen.clone(),
+                    points: points.iter().map(|&(a, b)| (x(a), b.map(y))).collect(),
+                },
+                Item::HLine { label, pen, y: v } => Item::HLine {
+                    label: units.prose(label),
+                    pen: pen.clone(),
+                    y: y(*v),
+                },
+                Item::VLine { label, pen, x: v } => Item::VLine {
+                    label: units.prose(label),
+                    pen: pen.clone(),
+                    x: x(*v),
+                },
+                Item::Band {
+                    label,
+                    color,
+                    x0,
+                    x1,
+                } => Item::Band {
+                    label: units.prose(label),
+                    color: *color,
+                    x0: x(*x0),
+                    x1: x(*x1),
+                },
+                Item::Points {
+                    label,
+                    color,
+                    points,
+                } => Item::Points {
+                    label: units.prose(label),
+                    color: *color,
+                    points: points.iter().map(|&(a, b)| (x(a), y(b))).collect(),
+                },
+            })
+            .collect();
+        Plot {
+            title: units.prose(&self.title),
+            x_label,
+            y_label,
+            x_range: (x(self.x_range.0), x(self.x_range.1)),
+            y_range: (y(self.y_range.0), y(self.y_range.1)),
+            items,
+        }
+    }
+
+    /// Lays the plot out in a block `width` points wide with a frame `frame_height` tall,
+    /// in the sheet's units.
     pub fn layout(&self, width: f32, frame_height: f32) -> Block {
+        self.in_units(super::format::units())
+            .layout_shown(width, frame_height)
+    }
+
+    fn layout_shown(&self, width: f32, frame_height: f32) -> Block {
         let mut b = Block::new();
         let (xlo, xhi) = usable_range(self.x_range.0, self.x_range.1);
         let (ylo, yhi) = usable_range(self.y_range.0, self.y_range.1);

@@ -138,7 +138,10 @@ fn table(r: &ScatterReport, width: f32) -> Block {
         7.0,
         Weight::Regular,
         GREY,
-        "Margins: clearance or stroke in mm, or capacity over demand minus one in per cent. 95 % Wilson: the score interval of the probability of failing (E. B. Wilson, JASA 1927). sd MC: standard deviation over the samples; sd prop.: law of propagation, JCGM 100:2008 section 5, sensitivities by central differences. Worst case: every input at the end of its tolerance in the harmful direction.",
+        &format!(
+            "Margins: clearance or stroke in {}, or capacity over demand minus one in per cent. 95 % Wilson: the score interval of the probability of failing (E. B. Wilson, JASA 1927). sd MC: standard deviation over the samples; sd prop.: law of propagation, JCGM 100:2008 section 5, sensitivities by central differences. Worst case: every input at the end of its tolerance in the harmful direction.",
+            super::format::units().length_words()
+        ),
     );
     b.height = y;
     b
@@ -153,7 +156,12 @@ fn histogram(r: &ScatterReport, width: f32) -> Block {
         10.0,
         8.0,
         Weight::Bold,
-        "Governing margin of each sample (its check's unit)",
+        // The bins are in the checks' own units; in inches say that a length stays in mm.
+        if super::format::units().is_metric() {
+            "Governing margin of each sample (its check's unit)"
+        } else {
+            "Governing margin of each sample (its check's unit: mm for a clearance or stroke, per unit for a ratio)"
+        },
     );
     let (top, height) = (16.0, 70.0);
     let left = 30.0;

@@ -3,7 +3,7 @@
 //! checks, the two plots, the side and end views, the model's assumptions and limits,
 //! references and safety cautions. Numbers go through `format` only.
 
-use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, wrap};
+use super::draw::{Block, GREEN, GREY, INK, LIGHT, RED, Rgb, wrap, wrap_raw};
 use super::font::Weight;
 use super::format::{self as f, NONE};
 use super::{Section, SheetMeta, fit, fit_start, plots, views};
@@ -192,11 +192,11 @@ fn title_block(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
         d.title.trim().to_string()
     };
     let mut y = 28.0;
-    for line in wrap(&title, width - 12.0, 14.0, Weight::Bold)
+    for line in wrap_raw(&title, width - 12.0, 14.0, Weight::Bold)
         .into_iter()
         .take(3)
     {
-        b.text(6.0, y, 14.0, Weight::Bold, line);
+        b.text_raw(6.0, y, 14.0, Weight::Bold, INK, line);
         y += 17.0;
     }
     y -= 6.0;
@@ -225,11 +225,12 @@ fn title_block(a: &Analysis, meta: &SheetMeta, width: f32) -> Section {
     for (l1, v1, l2, v2) in fields {
         b.text_in(6.0, y + 9.0, 6.5, Weight::Regular, GREY, l1);
         // A long path loses its leading folders, never the file name.
-        b.text(
+        b.text_raw(
             6.0,
             y + 20.0,
             9.0,
             Weight::Bold,
+            INK,
             fit_start(&v1, half - 12.0, 9.0, Weight::Bold),
         );
         b.text_in(half + 6.0, y + 9.0, 6.5, Weight::Regular, GREY, l2);
@@ -395,7 +396,7 @@ fn summary(a: &Analysis, width: f32) -> Section {
         );
     }
     if let Some(u) = a.usable_stroke() {
-        let usable = u.range_mm().is_some();
+        let usable = !u.is_problem();
         y = b.paragraph(
             0.0,
             y + 2.0,
@@ -421,7 +422,7 @@ pub(super) fn usable_text(u: &UsableStroke) -> String {
 
 /// A check's margin as [`Check::margin_text`] writes it, with the sheet's true minus sign.
 fn margin_text(c: &Check) -> String {
-    c.margin_text()
+    c.margin_text_in(f::units())
         .map_or_else(|| NONE.to_string(), |m| m.replace('-', "−"))
 }
 
@@ -467,9 +468,9 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         "Strips",
         vec![
             pair("Strip count N", s.count.to_string()),
-            pair("Free length L", f::mm(s.free_length_mm)),
-            pair("Width b", f::mm(s.width_mm)),
-            pair("Thickness t", f::mm(s.thickness_mm)),
+            pair("Free length L", f::file_mm(s.free_length_mm)),
+            pair("Width b", f::file_mm(s.width_mm)),
+            pair("Thickness t", f::file_mm(s.thickness_mm)),
             pair("Grade", grade),
             pair("End fixity", s.ends.name().to_string()),
             pair("Stiffness setting", stiffness.to_string()),
@@ -482,9 +483,9 @@ fn inputs(a: &Analysis, width: f32) -> Section {
         vec![
             pair(
                 "Mount radius r_m (strip centreline)",
-                f::mm(d.mount_radius_mm),
+                f::file_mm(d.mount_radius_mm),
             ),
-            pair("End-plate diameter", f::mm(d.end_plate_diameter_mm)),
+            pair("End-plate diameter", f::file_mm(d.end_plate_diameter_mm)),
         ],
     );
     let mut bore_rows = Vec::new();
@@ -502,11 +503,15 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             f::mm(seg.bore_nominal_mm),
         ));
     } else {
-        bore_rows.push(pair("Nominal bore D", f::mm(seg.bore_nominal_mm)));
+        bore_rows.push(pair("Nominal bore D", f::file_mm(seg.bore_nominal_mm)));
     }
     bore_rows.push(pair(
         "Tolerance minus / plus",
-        format!("{} / {}", f::mm(d.bore.minus_mm), f::mm(d.bore.plus_mm)),
+        format!(
+            "{} / {}",
+            f::file_mm(d.bore.minus_mm),
+            f::file_mm(d.bore.plus_mm)
+        ),
     ));
     bore_rows.push(pair(
         "Smallest / largest bore",
@@ -521,7 +526,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
     if d.bore.out_of_round_mm > 0.0 {
         bore_rows.push(pair(
             "Out of round (largest - smallest diameter)",
-            f::mm(d.bore.out_of_round_mm),
+            f::file_mm(d.bore.out_of_round_mm),
         ));
     }
     if let Some(bend) = d.bore.bend {
@@ -530,7 +535,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
     if d.end_plate_thickness_mm > 0.0 {
         bore_rows.push(pair(
             "End-plate thickness (each)",
-            f::mm(d.end_plate_thickness_mm),
+            f::file_mm(d.end_plate_thickness_mm),
         ));
     }
     group(&mut left, &mut y, "Bore", bore_rows);
@@ -554,8 +559,8 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             ..
         } => vec![
             pair("Kind", "direct pull on the plates".to_string()),
-            pair("Maximum force", f::newton(*max_force_n)),
-            pair("Maximum stroke", f::mm(*max_stroke_mm)),
+            pair("Maximum force", f::file_newton(*max_force_n)),
+            pair("Maximum stroke", f::file_mm(*max_stroke_mm)),
         ],
         Actuator::Spool {
             radius_mm,
@@ -564,8 +569,11 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             ..
         } => vec![
             pair("Kind", "cord on a spool".to_string()),
-            pair("Spool radius r_s", f::mm(*radius_mm)),
-            pair("Maximum torque", f::in_unit(*max_torque_nm, "N m")),
+            pair("Spool radius r_s", f::file_mm(*radius_mm)),
+            pair(
+                "Maximum torque",
+                f::from_file(*max_torque_nm, "N m", f::in_unit(*max_torque_nm, "N m")),
+            ),
             pair("Maximum angle", f::in_unit(*max_angle_deg, "deg")),
             pair("Maximum stroke (r_s x angle)", f::mm(seg.max_stroke_mm())),
             pair("Maximum pull (torque / r_s)", f::newton(seg.max_pull_n())),
@@ -578,9 +586,12 @@ fn inputs(a: &Analysis, width: f32) -> Section {
             ..
         } => vec![
             pair("Kind", "lead screw and nut".to_string()),
-            pair("Lead", f::mm(*lead_mm)),
+            pair("Lead", f::file_mm(*lead_mm)),
             pair("Screw efficiency", f::factor(*efficiency)),
-            pair("Maximum torque", f::in_unit(*max_torque_nm, "N m")),
+            pair(
+                "Maximum torque",
+                f::from_file(*max_torque_nm, "N m", f::in_unit(*max_torque_nm, "N m")),
+            ),
             pair("Maximum turns", f::in_unit(*max_turns, "turns")),
             pair("Maximum stroke (lead x turns)", f::mm(seg.max_stroke_mm())),
             pair(
@@ -592,7 +603,10 @@ fn inputs(a: &Analysis, width: f32) -> Section {
     group(&mut right, &mut y, "Actuator", act);
     let mut duty = super::operating::input_pairs(a);
     duty.extend([
-        pair("Holding force to resist", f::newton(d.duty.holding_force_n)),
+        pair(
+            "Holding force to resist",
+            f::file_newton(d.duty.holding_force_n),
+        ),
         pair("Safety factor on holding", f::factor(d.duty.safety_factor)),
         pair(
             "Required holding force",
@@ -603,7 +617,7 @@ fn inputs(a: &Analysis, width: f32) -> Section {
     if d.duty.radial_load_n > 0.0 {
         duty.push(pair(
             "Radial load on the strips (straight down)",
-            f::newton(d.duty.radial_load_n),
+            f::file_newton(d.duty.radial_load_n),
         ));
     }
     group(&mut right, &mut y, "Operating stroke and duty", duty);
@@ -689,7 +703,7 @@ fn material(a: &Analysis, width: f32) -> Section {
         pair("Bending modulus E'", gpa(seg.modulus_pa * 1e-9)),
         pair(
             "Bending stiffness B = E' b t³/12",
-            format!("{} N mm²", f::sig(b_nmm2, 4)),
+            f::bending_stiffness(b_nmm2),
         ),
         pair(
             "Static allowable 0.75 Su (common practice)",
@@ -921,7 +935,8 @@ fn check_table(a: &Analysis, width: f32) -> Section {
         Weight::Regular,
         GREY,
         &format!(
-            "Margins are in the check's own unit: mm for geometry, otherwise capacity over demand minus one, in per cent (+42.0 % is a capacity 1.42 times the demand). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
+            "Margins are in the check's own unit: {} for geometry, otherwise capacity over demand minus one, in per cent (+42.0 % is a capacity 1.42 times the demand). Positive passes. The limiting check (shaded) is the failing one with the least margin, or if all pass the passing ratio check with the least margin. Overall: {}.",
+            f::units().length_words(),
             if all { "every check passes" } else { "at least one check fails" }
         ),
     );

@@ -12,6 +12,7 @@ use super::{BLUE, BODY, ORANGE, SMALL, Section, col, rcol, row, section, table};
 use crate::analysis::Analysis;
 use crate::elastica::Phase;
 use crate::sharing::{self, CaseChoice, Judge, Loading};
+use crate::units::Quantity;
 
 /// The section, or `None` for a design without load-sharing fields (its sheet stays as it
 /// was).
@@ -103,9 +104,10 @@ pub fn strips_section(a: &Analysis, width: f32) -> Option<Section> {
         rcol(0.16 * table_w),
         rcol(0.16 * table_w),
     ];
-    let num = |v: f64, digits: usize| {
+    let units = super::super::format::units();
+    let num = |q: Quantity, v: f64, digits: usize| {
         if v.is_finite() {
-            format!("{v:.digits$}")
+            units.number(q, v, digits)
         } else {
             "n/a".to_string()
         }
@@ -116,27 +118,24 @@ pub fn strips_section(a: &Analysis, width: f32) -> Option<Section> {
         .map(|r| {
             row([
                 format!("{:.1}", r.clock_deg),
-                format!("{:.3}", r.gap_mm),
+                num(Quantity::Length, r.gap_mm, 3),
                 if r.phase.has_state() {
                     r.phase.to_string()
                 } else {
                     "off the wall".to_string()
                 },
-                num(r.contact_force_n, 2),
-                num(r.axial_force_n, 2),
-                num(r.max_stress_mpa, 1),
+                num(Quantity::Force, r.contact_force_n, 2),
+                num(Quantity::Force, r.axial_force_n, 2),
+                num(Quantity::Stress, r.max_stress_mpa, 1),
             ])
         })
         .collect();
+    let gap = format!("gap, {}", units.unit(Quantity::Length));
+    let contact = format!("contact, {}", units.unit(Quantity::Force));
+    let axial = format!("axial, {}", units.unit(Quantity::Force));
+    let stress = format!("stress, {}", units.unit(Quantity::Stress));
     let t = table(
-        &[
-            "clock, deg",
-            "gap, mm",
-            "phase",
-            "contact, N",
-            "axial, N",
-            "stress, MPa",
-        ],
+        &["clock, deg", &gap, "phase", &contact, &axial, &stress],
         &cols,
         &rows,
         SMALL,

@@ -706,6 +706,23 @@ fn the_command_line_refuses_both_operating_fields_at_once() {
 
 // ---------------------------------------------------------------- the app
 
+/// The app on a sample, in a tall window, after its first frame; the state folder lives
+/// as long as the returned guard.
+fn app_on(
+    name: &str,
+) -> (
+    tempfile::TempDir,
+    egui_kittest::Harness<'static, bowgrip::app::GripApp>,
+) {
+    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
+    let app = bowgrip::app::GripApp::new(state.path().to_path_buf(), Some(sample(name)));
+    let mut h = egui_kittest::Harness::builder()
+        .with_size([1500.0, 1400.0])
+        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
+    h.run();
+    (state, h)
+}
+
 /// The app's operating point is a mode choice (egui_kittest, through the accessibility
 /// tree): switching from the sample's torque to a pull keeps the pull it set, to a stroke
 /// keeps the nominal bore's operating stroke; each switch is one undo step.
@@ -713,18 +730,9 @@ fn the_command_line_refuses_both_operating_fields_at_once() {
 fn the_app_switches_the_operating_mode_and_undoes_it() {
     use egui::accesskit::Role;
     use egui::{Key, Modifiers};
-    use egui_kittest::Harness;
     use egui_kittest::kittest::Queryable;
 
-    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
-    let app = bowgrip::app::GripApp::new(
-        state.path().to_path_buf(),
-        Some(sample("water-main-tractor-torque-screw.ron")),
-    );
-    let mut h = Harness::builder()
-        .with_size([1500.0, 1400.0])
-        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
-    h.run();
+    let (_state, mut h) = app_on("water-main-tractor-torque-screw.ron");
     let d0 = h.state().design().clone();
     let seg = segment(&d0);
     let set = Drive::of(&seg).set_pull_n.unwrap_or(f64::NAN);
@@ -799,12 +807,18 @@ fn under_a_set_torque_stress_is_judged_where_it_is_highest() {
             "{}",
             c.reason
         );
+        // The title names the bore it was judged at, in every front end (they all print
+        // `Check::title`, and the check JSON carries it).
+        assert!(c.title().ends_with("at the largest bore"), "{}", c.title());
+        let json = serde_json::to_value(c).expect("serialises");
+        assert_eq!(json["title"], c.title());
     }
     // Under a fixed stroke the smallest bore stays where stress is judged (contract).
     let riser = segment(&load("riser-climber-2in-sch40.ron"));
     for c in checks::run(&riser) {
         if matches!(c.id, CheckId::Static | CheckId::Fatigue) {
             assert_eq!(c.bore_mm, Some(riser.bore_smallest_mm));
+            assert!(c.title().ends_with("at the smallest bore"), "{}", c.title());
         }
     }
 }
@@ -925,18 +939,9 @@ fn the_window_draws_the_maximum_travel_as_a_stroke_at_each_bore() {
 #[test]
 fn the_screw_turns_row_counts_the_travel_through_a_compliant_drive() {
     use egui::accesskit::Role;
-    use egui_kittest::Harness;
     use egui_kittest::kittest::Queryable;
 
-    let state = tempfile::TempDir::new().unwrap_or_else(|e| panic!("{e}"));
-    let app = bowgrip::app::GripApp::new(
-        state.path().to_path_buf(),
-        Some(sample("water-main-tractor-torque-screw.ron")),
-    );
-    let mut h = Harness::builder()
-        .with_size([1500.0, 1400.0])
-        .build_ui_state(|ui, app: &mut bowgrip::app::GripApp| app.ui(ui), app);
-    h.run();
+    let (_state, mut h) = app_on("water-main-tractor-torque-screw.ron");
     h.get_by_role_and_label(Role::RadioButton, "Stroke").click();
     h.run();
     let d = h.state().design().clone();
@@ -1015,4 +1020,38 @@ fn the_usable_stroke_ends_where_the_travel_reaches_the_maximum() {
     let seg = segment(&d);
     let top = seg.usable_stroke_across_tolerance().top.map(|t| t.0);
     assert!(top.is_some_and(|t| t > reach), "{top:?}");
+}
+
+/// Under a set torque each bore takes its own stroke, so a missing fixed-stroke window is
+/// not a finding: the torque sample passes every check (the contract's checks, each at its
+/// bore's own operating stroke), and its usable-stroke line says that the stroke follows the
+/// bore and gives the fixed-stroke comparison, not drawn as a failure. The same design
+/// under a fixed stroke reports the missing window as the finding it then is.
+#[test]
+fn under_a_set_torque_the_fixed_stroke_window_is_a_comparison() {
+    let d = load("water-main-tractor-torque-screw.ron");
+    let a = bowgrip::analysis::analyse(&d).unwrap_or_else(|e| panic!("{e}"));
+    assert!(a.checks.iter().all(|c| c.pass));
+    let u = a.usable_stroke().expect("both bores fit");
+    assert!(u.range_mm().is_none());
+    assert!(!u.is_problem());
+    let words = u.describe();
+    assert!(
+        words.starts_with("under the set torque the stroke follows the bore"),
+        "{words}"
+    );
+    assert!(
+        words.contains("no usable stroke across the bore tolerance"),
+        "{words}"
+    );
+    let mut fixed = d.clone();
+    fixed.set_operating(Operating::Stroke(2.0));
+    let a = bowgrip::analysis::analyse(&fixed).unwrap_or_else(|e| panic!("{e}"));
+    let u = a.usable_stroke().expect("both bores fit");
+    assert!(u.is_problem());
+    assert!(
+        u.describe().starts_with("no usable stroke"),
+        "{}",
+        u.describe()
+    );
 }

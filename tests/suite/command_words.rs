@@ -153,3 +153,39 @@ fn point_flags_a_stroke_past_the_actuator_travel() {
         String::from_utf8_lossy(&within.stderr)
     );
 }
+
+/// Through a compliant drive the actuator's maximum is of travel: the torque-screw sample
+/// cut to 2 turns of its 2 mm lead (4 mm of travel) with its 400 N/mm drive. At 2 mm of
+/// stroke the strips pull so hard that the travel is about 5 mm (stroke + pull / stiffness,
+/// springs in series): `point` says the actuator cannot reach it, though the stroke itself
+/// is short of 4 mm; at 1 mm it says nothing.
+#[test]
+fn point_flags_a_stroke_whose_travel_is_past_the_actuator() {
+    let sample = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs")
+        .join("water-main-tractor-torque-screw.ron");
+    let text = std::fs::read_to_string(&sample).expect("the sample");
+    assert!(text.contains("max_turns: 6.0"));
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    let file = dir.path().join("two-turns.ron");
+    std::fs::write(&file, text.replace("max_turns: 6.0", "max_turns: 2.0")).expect("written");
+    let file = file.to_str().expect("utf-8 path");
+    let past = run(&["point", file, "--stroke-mm", "2", "--json"]);
+    assert!(past.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&past.stdout).expect("JSON");
+    let travel = v["travel_mm"].as_f64().expect("a travel");
+    assert!(travel > 4.0, "{travel}");
+    let err = String::from_utf8_lossy(&past.stderr);
+    assert!(
+        err.contains(
+            "of actuator travel through the drive's stretch, past the actuator's maximum of 4 mm"
+        ),
+        "{err}"
+    );
+    let within = run(&["point", file, "--stroke-mm", "1", "--json"]);
+    assert!(
+        within.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&within.stderr)
+    );
+}

@@ -572,6 +572,7 @@ fn the_sheet_has_a_map_page_when_asked() {
     let passing = map.cells().filter(|c| c.pass).count();
     let options = SheetOptions {
         map: Some((x.clone(), y.clone())),
+        ..SheetOptions::default()
     };
     for paper in [Paper::A4, Paper::Letter] {
         let plain = sheet::layout_dated(&design, "demo.ron", b"demo", paper, "2026-01-01")

@@ -469,3 +469,30 @@ fn geometry_cautions_name_strips_that_leave_the_plates() {
             .is_empty()
     );
 }
+
+/// The relaxed segment must pass the least diameter of an out-of-round bore: an ellipse
+/// with diameters `D + o/2` and `D - o/2` (docs/mechanics.md, "Load sharing"), so the fit
+/// margin at the smallest bore loses half the out-of-roundness, and the reason says so.
+/// The horizontal drain sample has 1.5 mm of out-of-roundness: 0.75 mm less margin than
+/// the same design in a round bore, to rounding.
+#[test]
+fn the_fit_check_uses_the_least_diameter_of_an_oval_bore() {
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-designs/drain-crawler-horizontal-150mm.ron");
+    let oval = bowgrip::design::load(&path).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(oval.bore.out_of_round_mm, 1.5);
+    let mut round = oval.clone();
+    round.bore.out_of_round_mm = 0.0;
+    let fit = |d: &bowgrip::design::Design| {
+        let seg = bowgrip::segment::Segment::new(d).unwrap_or_else(|e| panic!("{e}"));
+        bowgrip::checks::run(&seg)
+            .into_iter()
+            .find(|c| c.id == bowgrip::checks::CheckId::Fit)
+            .expect("a fit check")
+    };
+    let (o, r) = (fit(&oval), fit(&round));
+    let (mo, mr) = (o.margin.expect("margin"), r.margin.expect("margin"));
+    assert!((mr - mo - 0.75).abs() < 1e-12, "{mr} vs {mo}");
+    assert!(o.reason.contains("least diameter"), "{}", o.reason);
+    assert!(!r.reason.contains("least diameter"), "{}", r.reason);
+}

@@ -574,3 +574,81 @@ fn the_stress_plot_explains_its_dip() {
         "{flat}"
     );
 }
+
+/// `--units in`: the sheet in inch, pound-force and ksi. Each input shows the file's own
+/// value beside the inch value; the plots' axes are in inches; every design still fits the
+/// printable area on both papers; and metric (the default) is the sheet as before.
+#[test]
+fn the_sheet_in_inches_converts_every_number_and_traces_the_inputs() {
+    use bowgrip::units::UnitSystem;
+    let inch = sheet::SheetOptions {
+        units: UnitSystem::Inch,
+        ..sheet::SheetOptions::default()
+    };
+    let lay = |d: &Design, paper, options: &sheet::SheetOptions| {
+        sheet::layout_with(d, "d.ron", b"d", paper, "2026-01-01", None, options)
+            .unwrap_or_else(|e| panic!("{e}"))
+    };
+    let d = Design::default();
+    let laid = lay(&d, Paper::A4, &inch);
+    let texts: Vec<&str> = laid.texts.iter().map(|t| t.text.as_str()).collect();
+    // The demo's 0.25 mm strip: 0.25 / 25.4 = 0.00984 in (NIST SP 811 (2008), Appendix
+    // B: 1 in = 25.4 mm exactly), to four decimals, with the file's value beside it.
+    assert!(
+        texts.contains(&"0.0098 in (0.25 mm in the file)"),
+        "{texts:?}"
+    );
+    assert!(texts.contains(&"stroke (in)") && texts.contains(&"force (lbf)"));
+    assert!(texts.contains(&"stress (ksi)"), "{texts:?}");
+    // No number is left in mm, N or MPa except the file's own values (the design's title
+    // and file name are printed as written).
+    for t in texts.iter().filter(|t| !d.title.contains(**t)) {
+        let words: Vec<&str> = t.split_whitespace().collect();
+        for w in words.windows(2) {
+            let number = w[0]
+                .trim_start_matches(['(', '−', '+'])
+                .parse::<f64>()
+                .is_ok();
+            let metric = ["mm", "N", "MPa", "mm,", "N,", "MPa,", "mm)", "N)"].contains(&w[1]);
+            assert!(
+                !(number && metric) || t.contains("in the file"),
+                "left in metric: {t:?}"
+            );
+        }
+    }
+    // The nominal bore in the results, 3 decimals of a mm / 25.4 printed to 4 decimals of
+    // an inch (NIST SP 811 Appendix B).
+    let seg = Segment::new(&d).expect("segment");
+    let bore_in = format!("{:.4} in", seg.bore_nominal_mm / 25.4);
+    assert!(texts.iter().any(|t| t.contains(&bore_in)), "{bore_in}");
+    for (name, d) in designs() {
+        for paper in [Paper::A4, Paper::Letter] {
+            assert_inside(&format!("{name} in inches"), &lay(&d, paper, &inch));
+        }
+    }
+    // The design-map page numbers its axes in inches too: the demo's thickness axis
+    // from 0.2 to 0.3 mm is 0.0079 to 0.0118 in (25.4 mm per inch, NIST SP 811), ticked
+    // every 0.0005 in.
+    let axis = |t: &str| bowgrip::map::command::axis_spec(t).unwrap_or_else(|e| panic!("{e}"));
+    let with_map = sheet::SheetOptions {
+        map: Some((
+            axis("strip.thickness_mm:0.2:0.3:3"),
+            axis("strip.count:8:12:3"),
+        )),
+        units: UnitSystem::Inch,
+    };
+    let laid = lay(&d, Paper::A4, &with_map);
+    let texts: Vec<&str> = laid.texts.iter().map(|t| t.text.as_str()).collect();
+    assert!(
+        texts.contains(&"across: strip.thickness_mm (in)"),
+        "{texts:?}"
+    );
+    assert!(texts.contains(&"up: strip.count"), "{texts:?}");
+    assert!(texts.contains(&"0.0100"), "an inch tick: {texts:?}");
+    // Metric is the default: the options' default lays out what the plain call does.
+    let metric = lay(&d, Paper::A4, &sheet::SheetOptions::default());
+    let plain = sheet::layout_dated(&d, "d.ron", b"d", Paper::A4, "2026-01-01").expect("lays out");
+    let lines = |l: &SheetLayout| l.texts.iter().map(|t| t.text.clone()).collect::<Vec<_>>();
+    assert_eq!(lines(&metric), lines(&plain));
+    assert!(!lines(&metric).iter().any(|t| t.contains(" in the file")));
+}
