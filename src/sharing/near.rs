@@ -306,8 +306,8 @@ impl LoadedBore<'_> {
             if a.is_beyond() || b.is_beyond() {
                 return None;
             }
-            for i in 0..2 {
-                k[i][j] = (a.force[i] - b.force[i]) / (2.0 * h);
+            for (row, (fa, fb)) in k.iter_mut().zip(a.force.iter().zip(&b.force)) {
+                row[j] = (fa - fb) / (2.0 * h);
             }
         }
         Some(k)
@@ -686,7 +686,7 @@ impl LoadedBore<'_> {
                     side = 1;
                     lo = Some(p);
                 }
-                Some(phi) if phi == 0.0 => return Ok(p.t.map(|t| (p.s, t))),
+                Some(0.0) => return Ok(p.t.map(|t| (p.s, t))),
                 _ => {
                     f_hi = p.phi.unwrap_or(f64::NAN);
                     if side == -1 {
