@@ -126,9 +126,10 @@ pub struct WorstCase {
     /// The check's id.
     pub id: &'static str,
     /// Its outcome with every input at the end of its tolerance in the harmful
-    /// direction (per strip), the direction taken from that input alone at each end, then
-    /// each per-strip input turned to its other end where that is more harmful with the
-    /// rest at the corner (strips that differ move the hub).
+    /// direction (per strip), the direction taken from that input alone at each end, then,
+    /// for a check that couples the strips ([`MarginModel::strips_interact`]), each
+    /// per-strip input turned to its other end where that is more harmful with the rest at
+    /// the corner (strips that differ move the hub).
     pub outcome: Outcome,
 }
 
@@ -327,9 +328,9 @@ fn deterministic<M: MarginModel>(
             }
             let mut out = eval(&x)?;
             // Strips that differ move the hub, so a strip's harmful end can depend on the
-            // others': one pass turns each per-strip input to its other end where that is
-            // more harmful with the rest at the corner.
-            if n > 1 {
+            // others': for a check that couples the strips, one pass turns each per-strip
+            // input to its other end where that is more harmful with the rest at the corner.
+            if n > 1 && model.strips_interact(k) {
                 for (&(input, _), &delta) in inputs.iter().zip(&signs) {
                     if !input.per_strip() {
                         continue;

@@ -62,6 +62,12 @@ pub trait MarginModel: Sync {
     fn design_friction(&self) -> f64;
     /// The outcome of every check for one sample.
     fn evaluate(&self, inputs: &SampleInputs) -> Result<Vec<Outcome>, SegmentError>;
+    /// Whether check `k` couples the strips (one strip's harmful end can depend on the
+    /// others', as when strips that differ move the hub); the worst-case corner then
+    /// looks at each per-strip input's other end as well. Default: no.
+    fn strips_interact(&self, _k: usize) -> bool {
+        false
+    }
 }
 
 /// The centred model: hub on the axis, each strip judged on its own geometry.

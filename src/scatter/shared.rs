@@ -127,6 +127,12 @@ impl MarginModel for SharedModel {
         self.centred.design_friction()
     }
 
+    fn strips_interact(&self, k: usize) -> bool {
+        self.checks()
+            .get(k)
+            .is_some_and(|info| SHARED.iter().any(|c| c.as_str() == info.id))
+    }
+
     fn evaluate(&self, x: &SampleInputs) -> Result<Vec<Outcome>, SegmentError> {
         let n = self.strips();
         if n == 0 || x.strips_alike() {
