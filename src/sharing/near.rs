@@ -37,6 +37,10 @@ pub const NEAR_ITER: usize = 30;
 /// Relative force tolerance of the Broyden balance (of the load plus the strips' forces).
 const NEAR_TOL: f64 = 1e-10;
 
+/// How far short of a predicted root the stroke searches step, as a fraction of it (twice
+/// the searches' own tolerance).
+const SHORT_OF_ROOT: f64 = 2e-10;
+
 /// Steps of the limit and last-contact searches at most.
 const FIXED_STEPS: usize = 40;
 
@@ -710,7 +714,9 @@ impl LoadedBore<'_> {
                     if f_hi.is_finite() && inside(secant) {
                         secant
                     } else if let Some(v) = extrapolated {
-                        v
+                        // Just short of the predicted root: at the limit itself a strip
+                        // sits on its own limit and rounding can put the balance past it.
+                        (v * (1.0 - SHORT_OF_ROOT)).max(0.5 * (a.s + v))
                     } else {
                         0.5 * (a.s + b.s)
                     }
@@ -720,6 +726,7 @@ impl LoadedBore<'_> {
                     lo_prev
                         .map(|(s0, f0)| a.s - f_lo * (a.s - s0) / (f_lo - f0))
                         .filter(|v| v.is_finite() && *v > a.s)
+                        .map(|v| (v * (1.0 - SHORT_OF_ROOT)).max(0.5 * (a.s + v)))
                         .unwrap_or(fixed)
                 }
                 (None, Some(b)) => match b.phi {
