@@ -66,7 +66,7 @@ fn recompute(c: &mut Criterion) {
         b.iter(|| bowgrip::analysis::analyse(black_box(&design)))
     });
     group.bench_function(
-        "the app's load-sharing worker (checks and the end view's state)",
+        "the app's load-sharing worker (checks, the end view's state, the loaded curves)",
         |b| b.iter(|| bowgrip::app::strips::compute(black_box(&design))),
     );
     group.finish();

@@ -89,6 +89,8 @@ pub struct Dialogs {
     /// What the last PNG export wrote, filled in by the screenshot callback.
     png_result: Arc<Mutex<Option<super::Status>>>,
     print_path: String,
+    /// A sheet being written on a worker thread (the scatter and map pages take a while).
+    print_job: Option<PrintJob>,
     /// The window should close now (the quit was confirmed).
     pub quit_requested: bool,
     /// The Help menu's windows.
@@ -292,6 +294,7 @@ pub fn windows(app: &mut GripApp, ctx: &Context) {
     fit_window(app, ctx);
     export_window(app, ctx);
     print_window(app, ctx);
+    poll_print(app);
     let dialogs = &mut app.dialogs;
     super::help::help_windows(&mut dialogs.help, &mut dialogs.show_cautions, ctx);
     let mut open = app.dialogs.show_cautions;
@@ -928,8 +931,19 @@ fn print_window(app: &mut GripApp, ctx: &Context) {
             let label = ui.label("PDF path");
             ui.add(egui::TextEdit::singleline(&mut app.dialogs.print_path).desired_width(340.0)).labelled_by(label.id).on_hover_text("Where the sheet is written; by default next to the design file.");
         });
-        if ui.button("Write the sheet").clicked() {
-            print_sheet(app);
+        let busy = app.dialogs.print_job.is_some();
+        if ui
+            .add_enabled(!busy, egui::Button::new("Write the sheet"))
+            .on_hover_text("Lays out and writes the PDF in the background; the design stays editable meanwhile (the sheet shows the design as it was when you asked).")
+            .clicked()
+        {
+            print_sheet(app, ctx);
+        }
+        if let Some(job) = &app.dialogs.print_job {
+            ui.horizontal(|ui| {
+                ui.spinner();
+                ui.label(format!("Writing the sheet to {}…", job.path.display()));
+            });
         }
         if app.map_view.sheet_options().map.is_some() {
             ui.label(RichText::new("The design map is open: the sheet adds a page with its map.").small());
@@ -939,7 +953,48 @@ fn print_window(app: &mut GripApp, ctx: &Context) {
     app.dialogs.show_print = open;
 }
 
-fn print_sheet(app: &mut GripApp) {
+/// A sheet being laid out and written on a worker thread.
+struct PrintJob {
+    /// Where it goes.
+    path: PathBuf,
+    /// The outcome: `Ok` once written, or what went wrong in words.
+    done: std::sync::mpsc::Receiver<Result<(), String>>,
+}
+
+/// Takes the outcome of a finished print job into the status line.
+fn poll_print(app: &mut GripApp) {
+    let Some(job) = &app.dialogs.print_job else {
+        return;
+    };
+    let outcome = match job.done.try_recv() {
+        Ok(outcome) => outcome,
+        Err(std::sync::mpsc::TryRecvError::Empty) => return,
+        Err(std::sync::mpsc::TryRecvError::Disconnected) => {
+            Err("The sizing sheet could not be made: its worker stopped".to_string())
+        }
+    };
+    let path = job.path.clone();
+    app.dialogs.print_job = None;
+    match outcome {
+        Err(e) => app.fail(e),
+        Ok(()) => {
+            let opened = app.system_dialogs
+                && std::process::Command::new("xdg-open")
+                    .arg(&path)
+                    .spawn()
+                    .is_ok();
+            app.say(format!(
+                "Sizing sheet written to {}{}.",
+                path.display(),
+                if opened { " and opened" } else { "" }
+            ));
+        }
+    }
+}
+
+/// Starts writing the sheet of the design as it is now on a worker thread; the outcome
+/// reaches the status line through [`poll_print`].
+fn print_sheet(app: &mut GripApp, ctx: &Context) {
     let path = PathBuf::from(app.dialogs.print_path.trim());
     let label = app.doc.file_label();
     // The bytes the sheet hashes: the saved file when it is up to date, else the design as it would be saved.
@@ -966,26 +1021,25 @@ fn print_sheet(app: &mut GripApp) {
         units: app.session.units,
         ..app.map_view.sheet_options()
     };
-    match sheet::render_with(&app.doc.design, &label, &bytes, paper, None, &options) {
-        Err(e) => app.fail(format!("The sizing sheet could not be made: {e}")),
-        Ok(pdf) => match crate::atomic::write(&path, &pdf) {
-            Err(e) => app.fail(format!(
-                "Could not write the sheet to {}: {e}",
-                path.display()
-            )),
-            Ok(()) => {
-                let opened = app.system_dialogs
-                    && std::process::Command::new("xdg-open")
-                        .arg(&path)
-                        .spawn()
-                        .is_ok();
-                app.say(format!(
-                    "Sizing sheet written to {}{}.",
-                    path.display(),
-                    if opened { " and opened" } else { "" }
-                ));
-            }
-        },
+    let design = app.doc.design.clone();
+    let (tx, rx) = std::sync::mpsc::channel();
+    let (to, ctx) = (path.clone(), ctx.clone());
+    let spawned = std::thread::Builder::new()
+        .name("bowgrip-sheet".to_string())
+        .spawn(move || {
+            let outcome = match sheet::render_with(&design, &label, &bytes, paper, None, &options) {
+                Err(e) => Err(format!("The sizing sheet could not be made: {e}")),
+                Ok(pdf) => crate::atomic::write(&to, &pdf)
+                    .map_err(|e| format!("Could not write the sheet to {}: {e}", to.display())),
+            };
+            let _ = tx.send(outcome);
+            ctx.request_repaint();
+        });
+    match spawned {
+        Ok(_) => app.dialogs.print_job = Some(PrintJob { path, done: rx }),
+        Err(e) => app.fail(format!(
+            "The sizing sheet could not be made: no worker thread ({e})"
+        )),
     }
 }
 

@@ -262,6 +262,7 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
         top: top_of(&forces).max(need),
     };
     let marks = super::strips::stroke_marks(app);
+    let loaded_curve = super::strips::loaded_curve_of(app).to_vec();
     let loaded = app.sharing.view_for(&app.doc.design);
     let bench = app
         .bench
@@ -282,9 +283,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             force_rect,
             &units().prose(&format!("Forces against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm)),
-            "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).",
+            "Shaded: the free, point-contact and line-contact phases (named when there is room; hover for the phase at a stroke).\n\nWith a radial load, an out-of-round bore or a bend, the dashed curves are the governing load-sharing case at the nominal bore: the strips' summed holding force and pull with the hub off-centre (the solid ones are the centred model).",
             rating.note().filter(|_| !a.curve.is_empty()),
-            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h, &marks, &bench),
+            |ui| force_plot_ui(ui, a, &forces, &rating, need, plot_h, &marks, &bench, &loaded_curve),
         );
     });
     ui.horizontal(|ui| {
@@ -293,9 +294,9 @@ pub fn results_ui(app: &mut GripApp, ui: &mut Ui) {
             cell.x,
             stress_rect,
             &units().prose(&format!("Peak stress against stroke at the nominal bore, {:.2} mm", seg.bore_nominal_mm)),
-            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.",
+            "Dashed: the static (0.75 x tensile) and the fatigue (Goodman, zero-to-peak) allowables. Shaded: the contact phases, as in the force plot.\n\nThe curve dips just after first contact, and that is physics, not a numerical fault: as the wall takes load, the peak curvature leaves the crest and the plates for points between them, and at first it falls before it rises again. Linear beam-column theory of a clamped strut pressed at mid-span shows the same dip.\n\nWith a radial load, an out-of-round bore or a bend, the dashed curve is the worst strip of the governing load-sharing case at the nominal bore: while the hub rests on its rim, the strips below it are pressed into a smaller gap and their stress rises fast until the strips lift the hub.",
             Some("dip after first contact: physical, see heading".to_string()),
-            |ui| stress_plot_ui(ui, a, plot_h, &marks),
+            |ui| stress_plot_ui(ui, a, plot_h, &marks, &loaded_curve),
         );
         ui.vertical(|ui| {
             ui.set_width(cell.x);
@@ -776,6 +777,7 @@ fn force_plot_ui(
     height: f32,
     marks: &[(&'static str, f64)],
     bench: &[super::bench::Overlay],
+    loaded: &[super::strips::LoadedCurvePoint],
 ) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
@@ -813,15 +815,52 @@ fn force_plot_ui(
         rating.add_to(p);
         super::strips::add_marks(p, marks);
         super::bench::overlay_ui(p, bench);
+        loaded_line(p, LOADED_HOLD, C_HOLD, loaded, |q| q.holding_force_n);
+        loaded_line(p, LOADED_PULL, C_ACT, loaded, |q| q.actuator_force_n);
     });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "load x safety factor", rating.name]);
+    if !loaded.is_empty() {
+        legend.extend([LOADED_HOLD, LOADED_PULL]);
+    }
     legend.extend(marks.iter().map(|m| m.0));
     band_labels_ui(ui, &shown.transform, &bands, &legend);
     drag_operating_line_ui(ui, &shown, a, "force");
 }
 
-fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str, f64)]) {
+/// Legend names of the load-sharing curves (the governing case at the nominal bore).
+const LOADED_HOLD: &str = "holding force, loaded";
+const LOADED_PULL: &str = "actuator pull, loaded";
+const LOADED_STRESS: &str = "peak stress, worst loaded strip";
+
+/// One quantity of the governing loaded case along the stroke, dashed in its centred
+/// curve's colour; nothing when there is no loaded curve.
+fn loaded_line(
+    p: &mut egui_plot::PlotUi<'_>,
+    name: &'static str,
+    color: Color32,
+    loaded: &[super::strips::LoadedCurvePoint],
+    value: impl Fn(&super::strips::LoadedCurvePoint) -> f64,
+) {
+    // Runs of known states; a missing state (NaN) breaks the line.
+    let points: Vec<[f64; 2]> = loaded.iter().map(|q| [q.stroke_mm, value(q)]).collect();
+    for run in points.split(|q| !q[1].is_finite()).filter(|r| r.len() >= 2) {
+        p.line(
+            Line::new(name, PlotPoints::new(run.to_vec()))
+                .color(color)
+                .width(1.5)
+                .style(LineStyle::dashed_dense()),
+        );
+    }
+}
+
+fn stress_plot_ui(
+    ui: &mut Ui,
+    a: &Analysis,
+    height: f32,
+    marks: &[(&'static str, f64)],
+    loaded: &[super::strips::LoadedCurvePoint],
+) {
     if a.curve.is_empty() {
         no_curve_ui(ui, a, height);
         return;
@@ -864,9 +903,13 @@ fn stress_plot_ui(ui: &mut Ui, a: &Analysis, height: f32, marks: &[(&'static str
                 .style(LineStyle::dashed_loose()),
         );
         super::strips::add_marks(p, marks);
+        loaded_line(p, LOADED_STRESS, C_STRESS, loaded, |q| q.max_stress_mpa);
     });
     let mut legend: Vec<&str> = curves.iter().map(|c| c.name).collect();
     legend.extend(["operating stroke", "static allowable", "fatigue allowable"]);
+    if !loaded.is_empty() {
+        legend.push(LOADED_STRESS);
+    }
     legend.extend(marks.iter().map(|m| m.0));
     band_labels_ui(ui, &shown.transform, &bands, &legend);
     drag_operating_line_ui(ui, &shown, a, "stress");

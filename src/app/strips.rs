@@ -35,6 +35,67 @@ pub struct LoadedView {
     pub point: Result<LoadedPoint, String>,
     /// The same case's full state (crest heights for the end view).
     pub state: Option<SharedState>,
+    /// The same case along the stroke at the nominal bore, for the force and stress plots
+    /// (empty without a governing case).
+    pub curve: Vec<LoadedCurvePoint>,
+}
+
+/// One stroke of the governing case's curve: segment totals over the loaded strips.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LoadedCurvePoint {
+    /// Stroke, mm.
+    pub stroke_mm: f64,
+    /// Holding force, `mu sum F_i` over the strips in contact, N.
+    pub holding_force_n: f64,
+    /// Pull on the end plates, `sum P_i`, N.
+    pub actuator_force_n: f64,
+    /// The worst strip's peak stress, MPa.
+    pub max_stress_mpa: f64,
+}
+
+/// Strokes of the loaded curve: it costs one loaded state each (tens of microseconds for
+/// equal strips), so a few milliseconds on the worker.
+const LOADED_CURVE_POINTS: usize = 160;
+
+/// The governing case along the stroke at `bore`, from rest to the first of the loaded
+/// limit and the actuator's maximum stroke. A state the solver cannot find, or one with a
+/// strip off the wall (its totals are not all known), is a point of NaNs, where the drawn
+/// line breaks.
+fn loaded_curve(seg: &Segment, bore: f64, case: &Loading) -> Vec<LoadedCurvePoint> {
+    let Ok(loaded) = seg.loaded_at_bore(bore, case) else {
+        return Vec::new();
+    };
+    let end = loaded
+        .strokes()
+        .map_or(0.0, |s| s.limit_stroke_mm)
+        .min(seg.max_stroke_mm());
+    if end.is_nan() || end <= 0.0 {
+        return Vec::new();
+    }
+    (0..=LOADED_CURVE_POINTS)
+        .map(|k| {
+            let stroke = end * k as f64 / LOADED_CURVE_POINTS as f64;
+            let known = loaded.state(stroke).ok().filter(|st| {
+                !st.beyond_limit
+                    && st.totals.strips_off_wall == 0
+                    && st.totals.max_stress_mpa.is_finite()
+            });
+            match known {
+                Some(st) => LoadedCurvePoint {
+                    stroke_mm: stroke,
+                    holding_force_n: st.totals.holding_force_n,
+                    actuator_force_n: st.totals.actuator_force_n,
+                    max_stress_mpa: st.totals.max_stress_mpa,
+                },
+                None => LoadedCurvePoint {
+                    stroke_mm: stroke,
+                    holding_force_n: f64::NAN,
+                    actuator_force_n: f64::NAN,
+                    max_stress_mpa: f64::NAN,
+                },
+            }
+        })
+        .collect()
 }
 
 /// The worker: at most one computation runs; an edit made meanwhile waits for it.
@@ -139,6 +200,7 @@ pub fn compute(design: &Design) -> LoadedView {
                 limiting: None,
                 point: Err(e.to_string()),
                 state: None,
+                curve: Vec::new(),
             };
         }
     };
@@ -153,22 +215,28 @@ pub fn compute(design: &Design) -> LoadedView {
         }
         None => Err("the actuator's set pull is never reached at the nominal bore".to_string()),
     };
-    let state = point.as_ref().ok().and_then(|p| {
-        let case = Loading {
-            clocking: p.clocking,
-            major_axis: p.major_axis,
-            ..sharing::loading_of(design)
-        };
-        seg.loaded_at_bore(bore, &case)
-            .ok()?
-            .state(p.stroke_mm)
-            .ok()
+    let case = point.as_ref().ok().map(|p| {
+        (
+            p.stroke_mm,
+            Loading {
+                clocking: p.clocking,
+                major_axis: p.major_axis,
+                ..sharing::loading_of(design)
+            },
+        )
     });
+    let state = case
+        .as_ref()
+        .and_then(|(stroke, case)| seg.loaded_at_bore(bore, case).ok()?.state(*stroke).ok());
+    let curve = case
+        .as_ref()
+        .map_or_else(Vec::new, |(_, case)| loaded_curve(&seg, bore, case));
     LoadedView {
         checks: list,
         limiting,
         point,
         state,
+        curve,
     }
 }
 
@@ -249,6 +317,13 @@ pub fn stroke_marks(app: &GripApp) -> Vec<(&'static str, f64)> {
     .into_iter()
     .filter_map(|(n, s)| s.map(|s| (n, s)))
     .collect()
+}
+
+/// The governing case's curve at the nominal bore, when ready (empty otherwise).
+pub fn loaded_curve_of(app: &GripApp) -> &[LoadedCurvePoint] {
+    app.sharing
+        .view_for(&app.doc.design)
+        .map_or(&[], |v| v.curve.as_slice())
 }
 
 /// Draws the new strokes as vertical lines on a stroke plot.
@@ -521,4 +596,55 @@ pub fn end_view_ui(ui: &mut Ui, a: &Analysis, view: Option<&LoadedView>, size: V
         off[1]
     )));
     true
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The loaded curves drawn on the force and stress plots are the governing case's own
+    /// states along the stroke (the same loaded bore the per-strip table shows), in rising
+    /// stroke, and run at least to the operating stroke. The horizontal drain sample, 80 N
+    /// on 8 strips in an oval bore.
+    #[test]
+    fn the_loaded_curve_is_the_governing_case_along_the_stroke() {
+        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("sample-designs/drain-crawler-horizontal-150mm.ron");
+        let design = crate::design::load(&path).expect("the sample loads");
+        let view = compute(&design);
+        let point = view.point.as_ref().expect("a governing point");
+        assert!(view.curve.len() > 100, "{}", view.curve.len());
+        assert!(
+            view.curve
+                .windows(2)
+                .all(|w| w[0].stroke_mm < w[1].stroke_mm)
+        );
+        let seg = Segment::new(&design).expect("valid");
+        let case = Loading {
+            clocking: point.clocking,
+            major_axis: point.major_axis,
+            ..sharing::loading_of(&design)
+        };
+        let at_op = loaded_curve(&seg, seg.bore_nominal_mm, &case);
+        let loaded = seg
+            .loaded_at_bore(seg.bore_nominal_mm, &case)
+            .expect("a loaded bore");
+        // The curve's points are states of that loaded bore (NaN where there is none).
+        for q in at_op
+            .iter()
+            .filter(|q| q.max_stress_mpa.is_finite())
+            .step_by(40)
+        {
+            let s = loaded.state(q.stroke_mm).expect("a state");
+            assert_eq!(q.holding_force_n, s.totals.holding_force_n);
+            assert_eq!(q.max_stress_mpa, s.totals.max_stress_mpa);
+        }
+        let last = view.curve.last().expect("points");
+        assert!(
+            last.stroke_mm >= point.stroke_mm,
+            "{} vs {}",
+            last.stroke_mm,
+            point.stroke_mm
+        );
+    }
 }

@@ -301,6 +301,16 @@ fn files_open_save_and_guard_unsaved_work() {
     h.run();
     h.get_by_role_and_label(Role::Button, "Write the sheet")
         .click();
+    // The sheet is laid out and written on a worker thread: frames go on meanwhile, and
+    // its outcome reaches the status line when it is done.
+    let asked = std::time::Instant::now();
+    while !h.state().status().is_some_and(|s| {
+        s.text.contains("Sizing sheet written") || s.text.contains("sheet could not")
+    }) && asked.elapsed() < std::time::Duration::from_secs(300)
+    {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
     h.run();
     let status = h
         .state()
