@@ -934,8 +934,14 @@ pub struct Governing {
     pub reason: String,
 }
 
-/// The cases judged: both clockings, and both major axes when the bore is out of round.
+/// The cases judged: both clockings (one when there is no load in a round bore, where
+/// they are the same segment turned), and both major axes when the bore is out of round.
 pub fn cases(loading: &Loading) -> Vec<(Clocking, MajorAxis)> {
+    // With no load in a round bore no direction is singled out: turning the strips by half
+    // a pitch gives the same segment, so one clocking is the whole story.
+    if loading.radial_load_n == 0.0 && loading.out_of_round_mm == 0.0 {
+        return vec![(Clocking::Strip, MajorAxis::Vertical)];
+    }
     let axes: &[MajorAxis] = if loading.out_of_round_mm > 0.0 {
         &[MajorAxis::Vertical, MajorAxis::Horizontal]
     } else {
