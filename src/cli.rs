@@ -567,7 +567,9 @@ pub fn run(cli: Cli) -> anyhow::Result<Status> {
         Command::Sheet(a) => write_sheet(&a, units)?,
         Command::Compare(a) => crate::compare::run(&a, &mut out).map(|()| Status::Done)?,
         Command::Map(a) => crate::map::command::run(&a, &mut out).map(|()| Status::Done)?,
-        Command::Scatter(a) => crate::scatter::command::run(&a, &mut out).map(|()| Status::Done)?,
+        Command::Scatter(a) => {
+            crate::scatter::command::run(&a, units, &mut out).map(|()| Status::Done)?
+        }
         Command::Completions(a) => {
             let mut command = <Cli as clap::CommandFactory>::command();
             clap_complete::generate(a.shell.generator(), &mut command, "bowgrip", &mut out);
@@ -596,9 +598,10 @@ fn refuse_units(command: &Command, units: UnitSystem) -> anyhow::Result<()> {
         Command::Map(_) => bail!(
             "--units in: map works on the design file's own fields (mm, N, MPa); use --units mm (the default)"
         ),
-        Command::Scatter(_) => bail!(
-            "--units in: scatter prints in the design file's units (mm, N, MPa); use --units mm (the default)"
+        Command::Scatter(a) if a.json || a.csv => bail!(
+            "--units in applies to scatter's tables; its JSON and CSV keep the design file's units (mm, per cent), so use --units mm (the default) with --json or --csv"
         ),
+        Command::Scatter(_) => false,
         Command::Sheet(_) | Command::Completions(_) => false,
     };
     if json {

@@ -368,8 +368,14 @@ impl UnitSystem {
         let mut i = 0;
         let mut copied = 0;
         while i < bytes.len() {
-            // A number starts at a digit not preceded by a letter, digit, '.' or '_'.
+            // A number starts at a digit not preceded by a letter, digit, '.' or '_', nor by
+            // the sign of an exponent (`2e-5`: the `5` is not a number of its own).
+            let in_exponent = i >= 3
+                && b"+-".contains(&bytes[i - 1])
+                && b"eE".contains(&bytes[i - 2])
+                && bytes[i - 3].is_ascii_digit();
             let starts = bytes[i].is_ascii_digit()
+                && !in_exponent
                 && (i == 0
                     || !(bytes[i - 1].is_ascii_alphanumeric() || b"._".contains(&bytes[i - 1])));
             if !starts {
@@ -386,7 +392,18 @@ impl UnitSystem {
                     j += 1;
                 }
             }
-            let decimals = text[i..j].find('.').map_or(0, |d| j - i - d - 1);
+            // An exponent belongs to the number (`2e-5 mm` is two hundred-thousandths).
+            if j + 1 < bytes.len() && b"eE".contains(&bytes[j]) {
+                let sign = usize::from(b"+-".contains(&bytes[j + 1]));
+                if j + 1 + sign < bytes.len() && bytes[j + 1 + sign].is_ascii_digit() {
+                    j += 1 + sign;
+                    while j < bytes.len() && bytes[j].is_ascii_digit() {
+                        j += 1;
+                    }
+                }
+            }
+            let mantissa = text[i..j].split(['e', 'E']).next().unwrap_or("");
+            let decimals = mantissa.find('.').map_or(0, |d| mantissa.len() - d - 1);
             let unit = text[j..].strip_prefix(' ').and_then(|rest| {
                 PROSE_UNITS.iter().find(|(u, _)| {
                     rest.starts_with(u)
@@ -595,6 +612,17 @@ mod tests {
              peak 212.06 ksi at 100 000 cycles; needs 194.318 lbf in; gap +0.0049 in, \
              2 r tan(pi/N) = 1.239 in for 8 strips, 12.5 % and 30 deg, 5710.1 lbf/in, \
              +/-0.00039 in, stroke_mm 3 mmHg, 1234 N mm², 0.25 mm in the file"
+        );
+    }
+
+    #[test]
+    fn prose_reads_an_exponent_as_part_of_its_number() {
+        // 2e-5 mm / 25.4 = 7.874e-7 in (NIST SP 811 (2008), Appendix B): the whole number
+        // converts, not the exponent's "5 mm"; a bare exponent without a unit stays.
+        let text = "within 1e-7 on ratios and 2e-5 mm on strokes; 2.5E+1 N";
+        assert_eq!(
+            UnitSystem::Inch.prose(text),
+            "within 1e-7 on ratios and 0.00000079 in on strokes; 5.6 lbf"
         );
     }
 }

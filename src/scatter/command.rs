@@ -15,6 +15,7 @@ use super::{DistributionKind, ScatterReport, Tolerance};
 use crate::checks::MarginUnit;
 use crate::design::{self, Design};
 use crate::segment::csv_cell;
+use crate::units::UnitSystem;
 
 /// The CSV header: one row per check.
 pub const CSV_COLUMNS: &str = "id,unit,failures,samples,probability_of_failure,wilson_95_low,wilson_95_high,margin_nominal,margin_p01,margin_p50,margin_p99,margin_sd_monte_carlo,margin_sd_propagation,margin_worst_case";
@@ -38,8 +39,10 @@ pub struct ScatterArgs {
     pub csv: bool,
 }
 
-/// Runs `scatter`: loads the design, applies the options and prints the report.
-pub fn run(a: &ScatterArgs, out: &mut impl Write) -> anyhow::Result<()> {
+/// Runs `scatter`: loads the design, applies the options and prints the report; the
+/// tables in `units` (JSON and CSV keep the file's units, so the caller refuses inches
+/// with them).
+pub fn run(a: &ScatterArgs, units: UnitSystem, out: &mut impl Write) -> anyhow::Result<()> {
     let file = a.file.display();
     let design = design::load(&a.file).map_err(|e| anyhow!(e.in_file(&a.file)))?;
     let Some(mut spec) = design.scatter.clone() else {
@@ -59,7 +62,7 @@ pub fn run(a: &ScatterArgs, out: &mut impl Write) -> anyhow::Result<()> {
     } else if a.csv {
         write!(out, "{}", csv(&report))?;
     } else {
-        write!(out, "{}", tables(&design, &report))?;
+        write!(out, "{}", units.prose(&tables(&design, &report, units)))?;
     }
     Ok(())
 }
@@ -156,7 +159,7 @@ pub fn distribution_words(d: DistributionKind) -> &'static str {
 
 /// The tables for people: what was drawn, per check the probability of failing and the
 /// margins, the worst-case corner, and the sensitivities largest first.
-fn tables(design: &Design, r: &ScatterReport) -> String {
+fn tables(design: &Design, r: &ScatterReport, units: UnitSystem) -> String {
     let mut t = String::new();
     if !design.title.is_empty() {
         let _ = writeln!(t, "{}", design.title);
@@ -223,7 +226,8 @@ fn tables(design: &Design, r: &ScatterReport) -> String {
     }
     let _ = writeln!(
         t,
-        "margins: clearance or stroke in mm, or capacity over demand minus one in per cent; sd in the margin's unit (MC: Monte Carlo, JCGM 101; prop.: law of propagation, JCGM 100)"
+        "margins: clearance or stroke in {}, or capacity over demand minus one in per cent; sd in the margin's unit (MC: Monte Carlo, JCGM 101; prop.: law of propagation, JCGM 100)",
+        if units.is_metric() { "mm" } else { "inches" }
     );
     let _ = writeln!(t);
     let _ = writeln!(

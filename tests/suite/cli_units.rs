@@ -202,3 +202,50 @@ fn json_with_inches_is_refused_with_the_reason() {
     let (_, bash, _) = run(&["completions", "bash"]);
     assert!(bash.contains("--units"));
 }
+
+/// `scatter --units in` prints its tables in inches: every clearance or stroke margin is the
+/// metric one over 25.4 (NIST SP 811, Appendix B) to the printed digits, ratio margins
+/// unchanged; with `--json` or `--csv` it is refused (exit 2), since those keep the file's
+/// units. A small equal-strip scatter keeps the run short.
+#[test]
+fn scatter_tables_follow_the_inch_choice() {
+    let dir = TempDir::new().expect("temp dir");
+    let d = Design {
+        scatter: Some(bowgrip::scatter::ScatterSpec {
+            modulus_percent: 3.0,
+            samples: 50,
+            ..Default::default()
+        }),
+        ..Design::default()
+    };
+    let path = dir.path().join("scatter.ron");
+    std::fs::write(&path, design::to_ron(&d).expect("RON")).expect("write");
+    let file = path.to_str().expect("utf-8 path");
+    let (code_mm, mm, _) = run(&["scatter", file]);
+    let (code_in, inch, err) = run(&["scatter", file, "--units", "in"]);
+    assert_eq!((code_mm, code_in), (Some(0), Some(0)), "{err}");
+    let row = |text: &str, id: &str| -> Vec<String> {
+        text.lines()
+            .find(|l| l.starts_with(&format!("{id} ")))
+            .unwrap_or_else(|| panic!("no {id} row in {text}"))
+            .split_whitespace()
+            .map(str::to_string)
+            .collect()
+    };
+    // `fit  0  0 % [0 %, 7.1 %]  +12.700 mm ...`: the nominal margin follows the interval.
+    let nominal = |cells: &[String], unit: &str| -> f64 {
+        let k = cells.iter().position(|c| c == unit).expect("a unit cell");
+        cells[k - 1].parse().expect("a number")
+    };
+    let (fit_mm, fit_in) = (row(&mm, "fit"), row(&inch, "fit"));
+    let (a, b) = (nominal(&fit_mm, "mm"), nominal(&fit_in, "in"));
+    assert!((b - a / MM_PER_IN).abs() <= 0.5e-4, "{a} mm vs {b} in");
+    assert_eq!(row(&mm, "hold")[..6], row(&inch, "hold")[..6]);
+    assert!(inch.contains("clearance or stroke in inches"), "{inch}");
+    assert!(!inch.contains(" mm "), "{inch}");
+    for flag in ["--json", "--csv"] {
+        let (code, out, err) = run(&["scatter", file, "--units", "in", flag]);
+        assert_eq!(code, Some(2), "{flag}: {out}");
+        assert!(err.contains("keep the design file's units"), "{err}");
+    }
+}
