@@ -229,11 +229,23 @@ fn reach(seg: &Segment, loading: &Loading, large_cases: &CaseStrokes) -> Check {
     } else {
         format!("the first strip touches at {at:.3} mm stroke")
     };
+    // Through a compliant drive the actuator's maximum is of travel, as in the centred
+    // reach check (the pull from the centred curve at that stroke, as for the operating
+    // stroke under a set pull); a rigid drive's travel is the stroke itself.
+    let (travel, note) = match seg.at_bore(large) {
+        Ok(p) => (
+            crate::actuation::travel_at_mm(&p, at),
+            crate::actuation::travel_note(&p, at),
+        ),
+        Err(_) => (at, String::new()),
+    };
     Check {
         id: CheckId::Reach,
-        pass: at <= max_stroke,
-        margin: Some(max_stroke - at),
-        reason: format!("{what} vs actuator maximum {max_stroke:.3} mm (worst case: {words})"),
+        pass: travel <= max_stroke,
+        margin: Some(max_stroke - travel),
+        reason: format!(
+            "{what}{note} vs actuator maximum {max_stroke:.3} mm (worst case: {words})"
+        ),
         bore_mm: Some(large),
         stroke_mm: Some(at),
     }

@@ -1206,3 +1206,39 @@ fn unequal_strips_also_leave_the_wall_while_the_hub_rests() {
         check_balance(&st, w, &format!("unequal, stroke {stroke}"));
     }
 }
+
+/// Under load sharing, reach is judged at the stroke where the strips lift the hub, and
+/// through a compliant drive (springs in series, common practice) the actuator's maximum is
+/// of travel there, `stroke + pull / k`, as in the centred reach check: the horizontal
+/// drain sample given a 40 N/mm cord. Its margin is the maximum less that travel, and the
+/// reason gives the travel; with the rigid cord the margin is the maximum less the stroke.
+#[test]
+fn loaded_reach_counts_the_drive_travel() {
+    let rigid = sample("drain-crawler-horizontal-150mm.ron");
+    let mut soft = rigid.clone();
+    let design::Actuator::Spool {
+        stiffness_n_per_mm, ..
+    } = &mut soft.actuator
+    else {
+        panic!("the drain sample has a spool")
+    };
+    *stiffness_n_per_mm = Some(40.0);
+    let reach = |d: &Design| {
+        let seg = Segment::new(d).unwrap_or_else(|e| panic!("{e}"));
+        let c = bowgrip::checks::run(&seg)
+            .into_iter()
+            .find(|c| c.id == bowgrip::checks::CheckId::Reach)
+            .expect("a reach check");
+        (seg, c)
+    };
+    let (seg, r) = reach(&rigid);
+    let at = r.stroke_mm.expect("the lift-off stroke");
+    assert!((r.margin.expect("margin") - (seg.max_stroke_mm() - at)).abs() < 1e-12);
+    let (seg, s) = reach(&soft);
+    let at = s.stroke_mm.expect("the lift-off stroke");
+    let path = seg.at_bore(seg.bore_largest_mm).expect("a bore path");
+    let travel = bowgrip::actuation::travel_at_mm(&path, at);
+    assert!(travel > at + 1.0, "{travel} vs {at}");
+    assert!((s.margin.expect("margin") - (seg.max_stroke_mm() - travel)).abs() < 1e-12);
+    assert!(s.reason.contains("actuator travel"), "{}", s.reason);
+}
