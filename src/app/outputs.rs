@@ -599,6 +599,31 @@ fn hovered<'h>(hover: &egui_plot::HoverPosition<'h>) -> (&'h str, egui_plot::Plo
 
 /// Hover text of the plots against stroke: the item, the stroke, the value, the phase at
 /// that stroke and, when asked, the actuator's own reading there.
+/// The frame of a plot against stroke at the nominal bore: fixed in place (the operating
+/// line is dragged instead), its hover reading the value under the pointer (`value`
+/// writes it in the file's unit; the display units convert it) and the state of `curve`
+/// at that stroke (`actuator`: with the actuator's reading).
+fn stroke_plot_frame<'a>(
+    id: &str,
+    y_axis: (&str, Quantity),
+    height: f32,
+    curve: &'a [SegmentState],
+    value: fn(f64) -> String,
+    actuator: bool,
+) -> Plot<'a> {
+    plot_frame(id, ("stroke", Quantity::Length), y_axis, height)
+        .allow_drag(false)
+        .label_formatter(move |hover| {
+            let (_, p) = hovered(hover);
+            Some(stroke_hover(
+                curve,
+                hover,
+                units().prose(&value(p.y)),
+                actuator,
+            ))
+        })
+}
+
 fn stroke_hover(
     curve: &[SegmentState],
     hover: &egui_plot::HoverPosition<'_>,
@@ -786,22 +811,14 @@ fn force_plot_ui(
     let curve = &a.curve;
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
-    let shown = plot_frame(
+    let shown = stroke_plot_frame(
         "force-plot",
-        ("stroke", Quantity::Length),
         ("force", Quantity::Force),
         height,
+        curve,
+        |y| format!("{y:.2} N"),
+        true,
     )
-    .allow_drag(false)
-    .label_formatter(move |hover| {
-        let (_, p) = hovered(hover);
-        Some(stroke_hover(
-            curve,
-            hover,
-            units().prose(&format!("{:.2} N", p.y)),
-            true,
-        ))
-    })
     .show(ui, |p| {
         phase_backdrop(p, a, &bands, mark);
         for c in curves {
@@ -870,22 +887,14 @@ fn stress_plot_ui(
     let curve = &a.curve;
     let mark = marker(ui.visuals());
     let bands = phase_bands(a);
-    let shown = plot_frame(
+    let shown = stroke_plot_frame(
         "stress-plot",
-        ("stroke", Quantity::Length),
         ("stress", Quantity::Stress),
         height,
+        curve,
+        |y| format!("{y:.1} MPa"),
+        false,
     )
-    .allow_drag(false)
-    .label_formatter(move |hover| {
-        let (_, p) = hovered(hover);
-        Some(stroke_hover(
-            curve,
-            hover,
-            units().prose(&format!("{:.1} MPa", p.y)),
-            false,
-        ))
-    })
     .include_y(0.0)
     .show(ui, |p| {
         phase_backdrop(p, a, &bands, mark);
